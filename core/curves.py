@@ -1,0 +1,271 @@
+"""Engine torque curves: validated samples and their interpolation.
+
+A curve is sampled at strictly increasing engine speeds. Between samples it is
+interpolated with a monotone piecewise-cubic (PCHIP) by default, which never overshoots
+the measured points, or linearly on request. Outside the sampled range the curve is not
+defined: callers clip their speeds to it, never extrapolate.
+"""
+
+from __future__ import annotations
+
+import enum
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+from scipy.interpolate import PchipInterpolator
+
+from core.errors import CurveError
+
+__all__ = [
+    "MAX_CURVE_POINTS",
+    "MIN_CURVE_POINTS",
+    "CurveSource",
+    "Interpolation",
+    "TorqueCurve",
+    "torque_curve_from_power",
+    "torque_curve_from_torque",
+]
+
+MIN_CURVE_POINTS = 3
+MAX_CURVE_POINTS = 2000
+RPM_TO_RAD_S = 2.0 * math.pi / 60.0
+
+FloatArray = NDArray[np.float64]
+
+
+class Interpolation(enum.Enum):
+    """How the curve is filled in between its samples."""
+
+    PCHIP = "pchip"
+    LINEAR = "linear"
+
+
+class CurveSource(enum.Enum):
+    """Where a curve was measured.
+
+    ``ENGINE``: at the crankshaft (engine dyno); driveline losses still to be applied.
+    ``CHASSIS``: at the wheels (chassis dyno) and referred to engine rpm, so it is already
+    net of driveline losses.
+    """
+
+    ENGINE = "engine"
+    CHASSIS = "chassis"
+
+
+@dataclass(frozen=True)
+class TorqueCurve:
+    """A torque curve over engine speed.
+
+    Attributes
+    ----------
+    rpm : ndarray, shape (n,)
+        Engine speed [rpm], strictly increasing.
+    torque_nm : ndarray, shape (n,)
+        Torque at each speed [N*m], non-negative.
+    interpolation : Interpolation
+        Fill between samples.
+    source : CurveSource
+        Engine dyno or chassis dyno.
+    """
+
+    rpm: FloatArray
+    torque_nm: FloatArray
+    interpolation: Interpolation = Interpolation.PCHIP
+    source: CurveSource = CurveSource.ENGINE
+    _interp: Any = field(init=False, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        rpm = _validated_rpm(self.rpm)
+        torque = _validated_values(self.torque_nm, "torque_nm", rpm.size)
+        object.__setattr__(self, "rpm", rpm)
+        object.__setattr__(self, "torque_nm", torque)
+        if self.interpolation is Interpolation.PCHIP:
+            interp: Any = PchipInterpolator(rpm, torque, extrapolate=False)
+        else:
+            interp = None
+        object.__setattr__(self, "_interp", interp)
+
+    @property
+    def rpm_min(self) -> float:
+        """Lowest sampled engine speed [rpm]."""
+        return float(self.rpm[0])
+
+    @property
+    def rpm_max(self) -> float:
+        """Highest sampled engine speed [rpm]."""
+        return float(self.rpm[-1])
+
+    def torque_at(self, rpm: ArrayLike) -> FloatArray:
+        """Interpolated torque [N*m] at engine speeds inside the sampled range.
+
+        Parameters
+        ----------
+        rpm : array_like, shape (m,)
+            Engine speed [rpm]; values outside ``[rpm_min, rpm_max]`` are clipped to it.
+
+        Returns
+        -------
+        ndarray, shape (m,)
+            Torque [N*m], never negative.
+
+        Examples
+        --------
+        >>> c = torque_curve_from_torque([1000, 2000, 3000], [100, 200, 100],
+        ...                              interpolation=Interpolation.LINEAR)
+        >>> c.torque_at([1500, 2500]).tolist()
+        [150.0, 150.0]
+        """
+        n = np.clip(np.asarray(rpm, dtype=np.float64), self.rpm[0], self.rpm[-1])
+        if self._interp is None:
+            out = np.interp(n, self.rpm, self.torque_nm)
+        else:
+            out = self._interp(n)
+        return np.maximum(np.asarray(out, dtype=np.float64), 0.0)
+
+    def power_at(self, rpm: ArrayLike) -> FloatArray:
+        """Interpolated power [W] at engine speeds inside the sampled range.
+
+        Parameters
+        ----------
+        rpm : array_like, shape (m,)
+            Engine speed [rpm], clipped to the sampled range.
+
+        Returns
+        -------
+        ndarray, shape (m,)
+            Power [W] = torque * angular speed.
+        """
+        n = np.clip(np.asarray(rpm, dtype=np.float64), self.rpm[0], self.rpm[-1])
+        return self.torque_at(n) * n * RPM_TO_RAD_S
+
+    def peak_torque_rpm(self) -> float:
+        """Engine speed of the highest torque [rpm], searched on a fine grid."""
+        grid = self._fine_grid()
+        return float(grid[np.argmax(self.torque_at(grid))])
+
+    def peak_power_rpm(self) -> float:
+        """Engine speed of the highest power [rpm], searched on a fine grid."""
+        grid = self._fine_grid()
+        return float(grid[np.argmax(self.power_at(grid))])
+
+    def _fine_grid(self) -> FloatArray:
+        return np.union1d(np.linspace(self.rpm[0], self.rpm[-1], 1001), self.rpm)
+
+
+def _validated_rpm(rpm: ArrayLike) -> FloatArray:
+    arr = np.asarray(rpm, dtype=np.float64)
+    if arr.ndim != 1:
+        raise CurveError(f"`rpm` must be one-dimensional, got {arr.ndim} dimensions",
+                         parameter="rpm")
+    if arr.size < MIN_CURVE_POINTS:
+        raise CurveError(
+            f"`rpm` must have at least {MIN_CURVE_POINTS} points, got {arr.size}",
+            parameter="rpm",
+        )
+    if arr.size > MAX_CURVE_POINTS:
+        raise CurveError(
+            f"`rpm` must have at most {MAX_CURVE_POINTS} points, got {arr.size}",
+            parameter="rpm",
+        )
+    bad = np.flatnonzero(~np.isfinite(arr) | (arr <= 0.0))
+    if bad.size:
+        i = int(bad[0])
+        raise CurveError(f"`rpm[{i}]` must be finite and > 0, got {arr[i]}",
+                         parameter=f"rpm[{i}]")
+    steps = np.flatnonzero(np.diff(arr) <= 0.0)
+    if steps.size:
+        i = int(steps[0]) + 1
+        raise CurveError(
+            f"`rpm` must be strictly increasing: rpm[{i}] = {arr[i]:g} follows "
+            f"rpm[{i - 1}] = {arr[i - 1]:g}",
+            parameter=f"rpm[{i}]",
+        )
+    return arr
+
+
+def _validated_values(values: ArrayLike, name: str, size: int) -> FloatArray:
+    arr = np.asarray(values, dtype=np.float64)
+    if arr.shape != (size,):
+        raise CurveError(
+            f"`{name}` must have one value per rpm point ({size}), got {arr.size}",
+            parameter=name,
+        )
+    bad = np.flatnonzero(~np.isfinite(arr) | (arr < 0.0))
+    if bad.size:
+        i = int(bad[0])
+        raise CurveError(f"`{name}[{i}]` must be finite and >= 0, got {arr[i]}",
+                         parameter=f"{name}[{i}]")
+    if not np.any(arr > 0.0):
+        raise CurveError(f"`{name}` must have at least one value > 0", parameter=name)
+    return arr
+
+
+def torque_curve_from_torque(
+    rpm: ArrayLike,
+    torque_nm: ArrayLike,
+    *,
+    interpolation: Interpolation = Interpolation.PCHIP,
+    source: CurveSource = CurveSource.ENGINE,
+) -> TorqueCurve:
+    """Build a curve from torque samples.
+
+    Parameters
+    ----------
+    rpm : array_like, shape (n,)
+        Engine speed [rpm], strictly increasing, 3 <= n <= 2000.
+    torque_nm : array_like, shape (n,)
+        Torque [N*m] at each speed, non-negative.
+    interpolation : Interpolation
+        PCHIP (default) or linear.
+    source : CurveSource
+        Engine dyno (default) or chassis dyno.
+
+    Returns
+    -------
+    TorqueCurve
+
+    Raises
+    ------
+    CurveError
+        On fewer than 3 points, non-increasing rpm, or negative or non-finite values.
+    """
+    rpm_arr = _validated_rpm(rpm)
+    return TorqueCurve(rpm_arr, np.asarray(torque_nm, dtype=np.float64), interpolation, source)
+
+
+def torque_curve_from_power(
+    rpm: ArrayLike,
+    power_w: ArrayLike,
+    *,
+    interpolation: Interpolation = Interpolation.PCHIP,
+    source: CurveSource = CurveSource.ENGINE,
+) -> TorqueCurve:
+    """Build a curve from power samples, torque = power / angular speed.
+
+    Parameters
+    ----------
+    rpm : array_like, shape (n,)
+        Engine speed [rpm], strictly increasing, 3 <= n <= 2000.
+    power_w : array_like, shape (n,)
+        Power [W] at each speed, non-negative.
+    interpolation : Interpolation
+        PCHIP (default) or linear; applied to the derived torque.
+    source : CurveSource
+        Engine dyno (default) or chassis dyno.
+
+    Returns
+    -------
+    TorqueCurve
+
+    Examples
+    --------
+    >>> c = torque_curve_from_power([1000, 2000, 3000], [10471.9755, 20943.951, 31415.9265])
+    >>> [round(t, 3) for t in c.torque_nm.tolist()]
+    [100.0, 100.0, 100.0]
+    """
+    rpm_arr = _validated_rpm(rpm)
+    power = _validated_values(power_w, "power_w", rpm_arr.size)
+    return TorqueCurve(rpm_arr, power / (rpm_arr * RPM_TO_RAD_S), interpolation, source)

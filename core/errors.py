@@ -1,0 +1,64 @@
+"""Exceptions raised by the pure core.
+
+Every exception is a ``ValueError`` so callers that only know the standard library still
+catch it. Each carries ``parameter``: the core argument at fault (with an index where one
+applies, e.g. ``"gear_ratios[2]"``), which the service maps onto the caller's field path.
+
+::
+
+    ValueError
+     └── GearworkError            base of everything below
+          ├── CurveError          torque or power curve, rev limit
+          ├── TireSizeError       tire diameter, size code, revolutions per distance
+          ├── DrivetrainError     gear ratios, final drive, reductions, efficiency
+          ├── VehicleError        mass, geometry, road load, converter, launch
+          └── SimulationError     a run that cannot proceed (car cannot move, no finish)
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "CurveError",
+    "DrivetrainError",
+    "GearworkError",
+    "SimulationError",
+    "TireSizeError",
+    "VehicleError",
+]
+
+
+class GearworkError(ValueError):
+    """Base class of every error the core raises.
+
+    Parameters
+    ----------
+    message : str
+        What is wrong, naming the argument and the limit.
+    parameter : str or None
+        The core argument at fault, optionally with an index (``"rpm[3]"``).
+    """
+
+    def __init__(self, message: str, *, parameter: str | None = None) -> None:
+        super().__init__(message)
+        self.message = message
+        self.parameter = parameter
+
+
+class CurveError(GearworkError):
+    """A torque or power curve, or the rev limit applied to it, is invalid."""
+
+
+class TireSizeError(GearworkError):
+    """A tire description cannot be parsed or gives an impossible size."""
+
+
+class DrivetrainError(GearworkError):
+    """Gear ratios, final drive, extra reduction or efficiency are invalid."""
+
+
+class VehicleError(GearworkError):
+    """Vehicle mass, geometry, road load, converter or launch data are invalid."""
+
+
+class SimulationError(GearworkError):
+    """A simulated run cannot proceed (the car cannot move or never reaches the finish)."""

@@ -1,0 +1,281 @@
+"""The shift plan: gear tables plus the shift for every gear change, from wheel force."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+
+from core.curves import CurveSource, TorqueCurve
+from core.drivetrain import Drivetrain
+from core.errors import CurveError
+from core.gearing import GearTable, gear_tables, road_speed_m_s, rpm_grid
+from core.shifting import ShiftReason, best_shift_rpm
+from core.tires import Tire
+
+__all__ = ["Notice", "ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan"]
+
+FloatArray = NDArray[np.float64]
+
+
+@dataclass(frozen=True)
+class Notice:
+    """Something the caller should know about a result.
+
+    Attributes
+    ----------
+    code : str
+        Stable identifier, e.g. ``"rev_limit_clipped"``.
+    message : str
+        One plain sentence.
+    parameter : str or None
+        The core argument concerned, if any.
+    """
+
+    code: str
+    message: str
+    parameter: str | None = None
+
+
+@dataclass(frozen=True)
+class ShiftPoint:
+    """One gear change.
+
+    Attributes
+    ----------
+    from_gear, to_gear : int
+        Gear numbers, 1 for first.
+    shift_rpm : float
+        Engine speed at the shift [rpm].
+    shift_speed_m_s : float
+        Road speed at the shift [m/s].
+    rpm_after : float
+        Engine speed after the shift, shift_rpm * ratio_next / ratio_current [rpm].
+    rpm_drop : float
+        shift_rpm - rpm_after [rpm].
+    reason : ShiftReason
+        Force crossover or rev limit.
+    force_before_n, force_after_n : float
+        Tractive force just before and just after the shift [N].
+    crossings : int
+        Number of force crossovers found in the gears' shared range.
+    coincident_rpm : tuple of float or None
+        Band of shift rpm where both gears give the same force, if any.
+    """
+
+    from_gear: int
+    to_gear: int
+    shift_rpm: float
+    shift_speed_m_s: float
+    rpm_after: float
+    rpm_drop: float
+    reason: ShiftReason
+    force_before_n: float
+    force_after_n: float
+    crossings: int
+    coincident_rpm: tuple[float, float] | None
+
+
+@dataclass(frozen=True)
+class ShiftPlan:
+    """Gear tables and shifts for one curve, drivetrain and tire.
+
+    Attributes
+    ----------
+    gears : tuple of GearTable
+        One table per forward gear.
+    shifts : tuple of ShiftPoint
+        One per gear change (gear count - 1).
+    rev_limit_rpm : float
+        Rev limit used [rpm], after clipping to the curve.
+    efficiency_applied : bool
+        False for a chassis-dyno curve, which is already net of driveline losses.
+    peak_torque_rpm, peak_power_rpm : float
+        Where the curve peaks [rpm].
+    notices : tuple of Notice
+        Warnings about the inputs or the result.
+    """
+
+    gears: tuple[GearTable, ...]
+    shifts: tuple[ShiftPoint, ...]
+    rev_limit_rpm: float
+    efficiency_applied: bool
+    peak_torque_rpm: float
+    peak_power_rpm: float
+    notices: tuple[Notice, ...]
+
+
+def resolve_rev_limit(
+    curve: TorqueCurve, rev_limit_rpm: float | None
+) -> tuple[float, tuple[Notice, ...]]:
+    """The rev limit to use: the caller's, clipped to the curve's last point.
+
+    Parameters
+    ----------
+    curve : TorqueCurve
+        The torque curve.
+    rev_limit_rpm : float or None
+        Caller's rev limit [rpm]; None means the curve's last point.
+
+    Returns
+    -------
+    tuple of (float, tuple of Notice)
+        The rev limit [rpm] and any notice about clipping.
+
+    Raises
+    ------
+    CurveError
+        When the rev limit is not finite or does not exceed the curve's first point.
+    """
+    if rev_limit_rpm is None:
+        return curve.rpm_max, ()
+    if not math.isfinite(rev_limit_rpm) or rev_limit_rpm <= curve.rpm_min:
+        raise CurveError(
+            f"`rev_limit_rpm` must be above the curve's first point ({curve.rpm_min:g} rpm), "
+            f"got {rev_limit_rpm:g}",
+            parameter="rev_limit_rpm",
+        )
+    if rev_limit_rpm > curve.rpm_max:
+        note = Notice(
+            "rev_limit_clipped",
+            f"Rev limit {rev_limit_rpm:g} rpm is above the curve's last point; the plan "
+            f"stops at {curve.rpm_max:g} rpm (the curve is not extrapolated).",
+            "rev_limit_rpm",
+        )
+        return curve.rpm_max, (note,)
+    return float(rev_limit_rpm), ()
+
+
+def shift_plan(
+    curve: TorqueCurve,
+    drivetrain: Drivetrain,
+    tire: Tire,
+    *,
+    rev_limit_rpm: float | None = None,
+    rpm_step: float | None = None,
+) -> ShiftPlan:
+    """Gear tables and wheel-force shift points.
+
+    Parameters
+    ----------
+    curve : TorqueCurve
+        Torque over engine speed; a chassis curve is used without efficiency.
+    drivetrain : Drivetrain
+        Gear ratios, final drive, extra reduction and efficiency.
+    tire : Tire
+        Driven tires.
+    rev_limit_rpm : float, optional
+        Rev limit [rpm]; defaults to the curve's last point and is clipped to it.
+    rpm_step : float, optional
+        Row spacing of the gear tables [rpm]; default the curve's own points.
+
+    Returns
+    -------
+    ShiftPlan
+
+    Examples
+    --------
+    >>> from core.curves import torque_curve_from_torque, Interpolation
+    >>> from core.drivetrain import make_drivetrain
+    >>> from core.tires import tire_from_diameter
+    >>> c = torque_curve_from_torque([1000, 4000, 7000], [350, 200, 50],
+    ...                              interpolation=Interpolation.LINEAR)
+    >>> p = shift_plan(c, make_drivetrain([3.0, 2.0], 1.0), tire_from_diameter(0.6))
+    >>> round(p.shifts[0].shift_rpm, 3), round(p.shifts[0].rpm_after, 3)
+    (4800.0, 3200.0)
+    """
+    limit, notices = resolve_rev_limit(curve, rev_limit_rpm)
+    notes = list(notices)
+    chassis = curve.source is CurveSource.CHASSIS
+    efficiency = np.ones(drivetrain.gear_count) if chassis else drivetrain.efficiency
+    if chassis and np.any(drivetrain.efficiency != 1.0):
+        notes.append(
+            Notice(
+                "efficiency_not_applied",
+                "The curve is from a chassis dyno and already net of driveline losses; the "
+                "given efficiency is not applied again.",
+                "efficiency",
+            )
+        )
+    rows = rpm_grid(curve, limit, rpm_step)
+    tables = gear_tables(curve, drivetrain, tire, rows, efficiency)
+    ratios = drivetrain.overall_ratios
+    r = tire.rolling_radius_m
+    shifts = []
+    for i in range(ratios.size - 1):
+        g1, g2 = float(ratios[i]), float(ratios[i + 1])
+        q = g2 / g1
+        k1, k2 = g1 * efficiency[i] / r, g2 * efficiency[i + 1] / r
+
+        def force_cur(n: FloatArray, k1: float = k1) -> FloatArray:
+            return k1 * curve.torque_at(n)
+
+        def force_next(n: FloatArray, k2: float = k2, q: float = q) -> FloatArray:
+            return k2 * curve.torque_at(n * q)
+
+        low = curve.rpm_min / q
+        knots = np.concatenate((curve.rpm, curve.rpm / q))
+        choice = best_shift_rpm(force_cur, force_next, low, limit, knots=knots)
+        n_s = choice.shift_rpm
+        after = n_s * q
+        if after < curve.rpm_min:
+            notes.append(
+                Notice(
+                    "gear_gap",
+                    f"Shifting {i + 1}-{i + 2} at the rev limit drops the engine to "
+                    f"{after:.0f} rpm, below the curve's first point ({curve.rpm_min:g} rpm); "
+                    "the force after the shift is taken at that point.",
+                    "gear_ratios",
+                )
+            )
+        if choice.coincident_rpm is not None:
+            lo, hi = choice.coincident_rpm
+            notes.append(
+                Notice(
+                    "coincident_force",
+                    f"Gears {i + 1} and {i + 2} give the same tractive force from {lo:.0f} "
+                    f"to {hi:.0f} rpm; any shift in that band is equally quick.",
+                )
+            )
+        if choice.crossings > 1:
+            notes.append(
+                Notice(
+                    "multiple_crossovers",
+                    f"Gears {i + 1} and {i + 2} cross {choice.crossings} times; the shift "
+                    "that crosses their shared speed range quickest was chosen.",
+                )
+            )
+        if choice.below_range:
+            notes.append(
+                Notice(
+                    "next_gear_stronger",
+                    f"Gear {i + 2} pulls harder than gear {i + 1} wherever both are on the "
+                    "curve; shift as soon as the next gear reaches the curve's first point.",
+                )
+            )
+        shifts.append(
+            ShiftPoint(
+                from_gear=i + 1,
+                to_gear=i + 2,
+                shift_rpm=n_s,
+                shift_speed_m_s=float(road_speed_m_s(n_s, g1, r)),
+                rpm_after=after,
+                rpm_drop=n_s - after,
+                reason=choice.reason,
+                force_before_n=float(force_cur(np.array([n_s]))[0]),
+                force_after_n=float(force_next(np.array([n_s]))[0]),
+                crossings=choice.crossings,
+                coincident_rpm=choice.coincident_rpm,
+            )
+        )
+    return ShiftPlan(
+        gears=tables,
+        shifts=tuple(shifts),
+        rev_limit_rpm=limit,
+        efficiency_applied=not chassis,
+        peak_torque_rpm=curve.peak_torque_rpm(),
+        peak_power_rpm=curve.peak_power_rpm(),
+        notices=tuple(notes),
+    )
