@@ -18,8 +18,8 @@ __all__ = [
     "GearTable",
     "engine_rpm_at_speed",
     "gear_tables",
-    "rpm_grid",
     "road_speed_m_s",
+    "rpm_grid",
 ]
 
 MAX_TABLE_ROWS = 2000
@@ -152,7 +152,7 @@ def rpm_grid(curve: TorqueCurve, rev_limit_rpm: float, rpm_step: float | None) -
                 f"`rpm_step` of {rpm_step:g} rpm gives {rows} rows; at most {MAX_TABLE_ROWS}",
                 parameter="rpm_step",
             )
-        inner = start + rpm_step * np.arange(rows)
+        inner = start + rpm_step * np.arange(rows, dtype=np.float64)
         inner = inner[inner < rev_limit_rpm * (1.0 - 1e-12)]
     return np.append(inner, rev_limit_rpm)
 

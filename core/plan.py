@@ -12,7 +12,7 @@ from core.curves import CurveSource, TorqueCurve
 from core.drivetrain import Drivetrain
 from core.errors import CurveError
 from core.gearing import GearTable, gear_tables, road_speed_m_s, rpm_grid
-from core.shifting import ShiftReason, best_shift_rpm
+from core.shifting import ShiftReason, best_shifts
 from core.tires import Tire
 
 __all__ = ["Notice", "ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan"]
@@ -203,21 +203,30 @@ def shift_plan(
     tables = gear_tables(curve, drivetrain, tire, rows, efficiency)
     ratios = drivetrain.overall_ratios
     r = tire.rolling_radius_m
+    k_cur = ratios[:-1] * efficiency[:-1] / r
+    k_next = ratios[1:] * efficiency[1:] / r
+    step = ratios[1:] / ratios[:-1]
+
+    def efforts(n: FloatArray) -> tuple[FloatArray, FloatArray]:
+        return (
+            k_cur[:, None] * curve.torque_at(n),
+            k_next[:, None] * curve.torque_at(n * step[:, None]),
+        )
+
+    kc: list[float] = k_cur.tolist()
+    kn: list[float] = k_next.tolist()
+    qs: list[float] = step.tolist()
+    torque = curve.torque_scalar
+
+    def diff_scalar(k: int, n: float) -> float:
+        return kc[k] * torque(n) - kn[k] * torque(n * qs[k])
+
+    low = curve.rpm_min / step
+    choices = best_shifts(efforts, diff_scalar, low, np.full(step.size, limit))
     shifts = []
-    for i in range(ratios.size - 1):
-        g1, g2 = float(ratios[i]), float(ratios[i + 1])
-        q = g2 / g1
-        k1, k2 = g1 * efficiency[i] / r, g2 * efficiency[i + 1] / r
-
-        def force_cur(n: FloatArray, k1: float = k1) -> FloatArray:
-            return k1 * curve.torque_at(n)
-
-        def force_next(n: FloatArray, k2: float = k2, q: float = q) -> FloatArray:
-            return k2 * curve.torque_at(n * q)
-
-        low = curve.rpm_min / q
-        knots = np.concatenate((curve.rpm, curve.rpm / q))
-        choice = best_shift_rpm(force_cur, force_next, low, limit, knots=knots)
+    for i, choice in enumerate(choices):
+        g1 = float(ratios[i])
+        q = qs[i]
         n_s = choice.shift_rpm
         after = n_s * q
         if after < curve.rpm_min:
@@ -264,8 +273,8 @@ def shift_plan(
                 rpm_after=after,
                 rpm_drop=n_s - after,
                 reason=choice.reason,
-                force_before_n=float(force_cur(np.array([n_s]))[0]),
-                force_after_n=float(force_next(np.array([n_s]))[0]),
+                force_before_n=kc[i] * torque(n_s),
+                force_after_n=kn[i] * torque(after),
                 crossings=choice.crossings,
                 coincident_rpm=choice.coincident_rpm,
             )

@@ -7,11 +7,13 @@ range when shifting at speed s is, up to a constant,
 
     J(s) = integral from v_lo to s of dv / e_i(v)  +  integral from s to v_hi of dv / e_{i+1}(v)
 
-so dJ/ds = 1/e_i(s) - 1/e_{i+1}(s): J is stationary where the two efforts cross. This module
-finds every crossing by root finding on the interpolated curves (``scipy.optimize.brentq``),
-adds the ends of the range as candidates, and keeps the candidate with the least J, so a
-curve pair that crosses more than once still gets the quickest shift. Where the efforts
-coincide over a stretch, J is flat there and the module reports the band.
+so dJ/ds = 1/e_i(s) - 1/e_{i+1}(s): J is stationary where the two efforts cross, and a
+minimum where gear i's effort falls below gear i+1's. This module scans every gear pair at
+once on a fine grid, refines each such crossing with ``scipy.optimize.brentq`` on the
+interpolated curves, adds the ends of the range as candidates, and keeps the candidate with
+the least J (integrated with ``scipy.integrate.cumulative_trapezoid``), so curves that cross
+more than once still get the quickest shift. Where the efforts coincide over a stretch, J is
+flat there and the band is reported.
 
 Everything is written in the current gear's engine speed n, which is proportional to road
 speed in a gear without slip, so the argmin is the same.
@@ -24,18 +26,26 @@ from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.typing import NDArray
+from numpy.typing import ArrayLike, NDArray
 from scipy.integrate import cumulative_trapezoid
 from scipy.optimize import brentq
 
-__all__ = ["COINCIDENT_RTOL", "ShiftChoice", "ShiftReason", "best_shift_rpm"]
+__all__ = [
+    "COINCIDENT_RTOL",
+    "SCAN_POINTS",
+    "ScalarDiff",
+    "ShiftChoice",
+    "ShiftReason",
+    "VectorEfforts",
+    "best_shifts",
+]
 
 FloatArray = NDArray[np.float64]
-Effort = Callable[[FloatArray], FloatArray]
+VectorEfforts = Callable[[FloatArray], tuple[FloatArray, FloatArray]]
+ScalarDiff = Callable[[int, float], float]
 
 COINCIDENT_RTOL = 1e-4
-_SCAN_POINTS = 257
-_INTEGRATION_POINTS = 2049
+SCAN_POINTS = 513
 
 
 class ShiftReason(enum.Enum):
@@ -56,7 +66,7 @@ class ShiftChoice:
     reason : ShiftReason
         Crossover of the efforts, or the rev limit.
     crossings : int
-        Number of distinct crossovers found in the shared range.
+        Number of distinct crossovers (current gear falling behind) in the shared range.
     coincident_rpm : tuple of float or None
         ``(low, high)`` current-gear rpm band where the two efforts coincide to within
         ``COINCIDENT_RTOL``, or None.
@@ -78,7 +88,6 @@ def _coincident_band(
     close = np.abs(diff) <= COINCIDENT_RTOL * scale
     if not close.any():
         return None
-    # longest run of consecutive close points
     edges = np.flatnonzero(np.diff(np.concatenate(([0], close.astype(np.int8), [0]))))
     starts, stops = edges[::2], edges[1::2] - 1
     k = int(np.argmax(grid[stops] - grid[starts]))
@@ -88,32 +97,32 @@ def _coincident_band(
     return lo, hi
 
 
-def best_shift_rpm(
-    effort_current: Effort,
-    effort_next: Effort,
-    rpm_low: float,
-    rpm_high: float,
-    *,
-    knots: FloatArray | None = None,
-) -> ShiftChoice:
-    """The quickest shift from one gear to the next over their shared range.
+def best_shifts(
+    efforts: VectorEfforts,
+    diff_scalar: ScalarDiff,
+    rpm_low: ArrayLike,
+    rpm_high: ArrayLike,
+) -> tuple[ShiftChoice, ...]:
+    """The quickest shift for each of p gear changes, computed together.
 
     Parameters
     ----------
-    effort_current, effort_next : callable
-        Vectorised functions of the current gear's engine speed [rpm], shape (m,) to (m,),
-        giving each gear's effort (tractive force [N] or net acceleration [m/s^2]) at the
-        road speed that engine speed means in the current gear. Higher is better.
-    rpm_low : float
-        Start of the shared range in current-gear rpm (the next gear's lowest usable speed).
-    rpm_high : float
-        End of the shared range: the current gear's rev limit [rpm].
-    knots : ndarray, optional
-        Engine speeds where the curves have kinks or samples, added to the scan grid.
+    efforts : callable
+        ``efforts(n) -> (current, next)``: for current-gear engine speeds ``n`` [rpm] of
+        shape (p, m), row k belonging to gear change k, the effort (tractive force [N] or
+        net acceleration [m/s^2]) of the current and of the next gear at the road speed
+        each ``n`` means in the current gear; both of shape (p, m). Higher is better.
+    diff_scalar : callable
+        ``diff_scalar(k, n) -> current - next`` for one gear change and one speed, the same
+        function as ``efforts`` without array overhead, for root refinement.
+    rpm_low : array_like, shape (p,)
+        Start of each shared range in current-gear rpm (the next gear's lowest usable speed).
+    rpm_high : array_like, shape (p,)
+        End of each shared range: the current gear's rev limit [rpm].
 
     Returns
     -------
-    ShiftChoice
+    tuple of ShiftChoice, length p
 
     Examples
     --------
@@ -121,65 +130,51 @@ def best_shift_rpm(
     (T0/c) * G1 / (G1 + G2) = 4800 rpm.
 
     >>> t = lambda n: 400.0 - 0.05 * n
-    >>> c = best_shift_rpm(lambda n: 3.0 * t(n), lambda n: 2.0 * t(n * 2 / 3), 1500.0, 7000.0)
+    >>> (c,) = best_shifts(lambda n: (3.0 * t(n), 2.0 * t(n * 2 / 3)),
+    ...                    lambda k, n: 3.0 * t(n) - 2.0 * t(n * 2 / 3), [1500.0], [7000.0])
     >>> round(c.shift_rpm, 6), c.reason.value
     (4800.0, 'crossover')
     """
-    if not rpm_high > rpm_low:
-        return ShiftChoice(rpm_high, ShiftReason.REV_LIMIT, 0, None, False)
-    grid = np.linspace(rpm_low, rpm_high, _SCAN_POINTS)
-    if knots is not None:
-        inside = knots[(knots > rpm_low) & (knots < rpm_high)]
-        grid = np.union1d(grid, inside)
-
-    def diff_fn(n: FloatArray) -> FloatArray:
-        return effort_current(n) - effort_next(n)
-
-    e_cur, e_next = effort_current(grid), effort_next(grid)
+    lo = np.atleast_1d(np.asarray(rpm_low, dtype=np.float64))
+    hi = np.atleast_1d(np.asarray(rpm_high, dtype=np.float64))
+    valid = hi > lo
+    span = np.where(valid, hi - lo, 1.0)
+    grid = lo[:, None] + span[:, None] * np.linspace(0.0, 1.0, SCAN_POINTS)
+    e_cur, e_next = efforts(grid)
     diff = e_cur - e_next
-    scale = float(max(np.max(np.abs(e_cur)), np.max(np.abs(e_next)), 1e-300))
-    band = _coincident_band(grid, diff, scale)
+    scale = np.maximum(np.max(np.abs(e_cur), axis=1), np.max(np.abs(e_next), axis=1))
+    scale = np.maximum(scale, 1e-300)
+    floor = 1e-9 * scale[:, None]
+    slowness = 1.0 / np.maximum(e_cur, floor) - 1.0 / np.maximum(e_next, floor)
+    cost = cumulative_trapezoid(slowness, grid, axis=1, initial=0.0)
+    falling = (diff[:, :-1] > 0.0) & (diff[:, 1:] <= 0.0)
 
-    roots: list[float] = []
-    changes = np.flatnonzero(diff[:-1] * diff[1:] < 0.0)
-    for j in changes.tolist():
-        root = brentq(
-            lambda x: float(diff_fn(np.array([x]))[0]), grid[j], grid[j + 1], xtol=1e-9,
-            rtol=1e-12,
+    choices = []
+    for k in range(lo.size):
+        if not valid[k]:
+            choices.append(ShiftChoice(float(hi[k]), ShiftReason.REV_LIMIT, 0, None, False))
+            continue
+        g, d = grid[k], diff[k]
+        band = _coincident_band(g, d, float(scale[k]))
+        roots = []
+        for j in np.flatnonzero(falling[k]).tolist():
+            if d[j + 1] == 0.0:
+                root = float(g[j + 1])
+            else:
+                root = float(brentq(lambda x, k=k: diff_scalar(k, x), g[j], g[j + 1], xtol=1e-7))
+            if band is None or not band[0] <= root <= band[1]:
+                roots.append(root)
+        candidates = [float(lo[k]), float(hi[k]), *roots]
+        if band is not None:
+            candidates.append(band[1])
+        at = np.interp(candidates, g, cost[k])
+        best = candidates[int(np.argmin(at))]
+        if band is not None and band[0] <= best <= band[1]:
+            best = band[1]
+        below = best == float(lo[k]) and bool(d[0] < 0.0)
+        at_limit = best >= float(hi[k]) and not any(
+            abs(r - float(hi[k])) <= 1e-9 * float(hi[k]) for r in roots
         )
-        roots.append(float(root))
-    roots.extend(grid[diff == 0.0].tolist())
-    # a crossover is a change from the current gear ahead to the next gear ahead
-    crossovers = sorted(
-        r
-        for r in roots
-        if _falls_through(diff_fn, r, rpm_low, rpm_high)
-        and (band is None or not band[0] <= r <= band[1])
-    )
-
-    candidates = np.unique(np.array([rpm_low, rpm_high, *crossovers]))
-    if band is not None:
-        candidates = np.union1d(candidates, [band[1]])
-    fine = np.union1d(np.linspace(rpm_low, rpm_high, _INTEGRATION_POINTS), candidates)
-    floor = 1e-9 * scale
-    slowness = 1.0 / np.maximum(effort_current(fine), floor) - 1.0 / np.maximum(
-        effort_next(fine), floor
-    )
-    cost = cumulative_trapezoid(slowness, fine, initial=0.0)
-    cost_at = np.interp(candidates, fine, cost)
-    best = float(candidates[int(np.argmin(cost_at))])
-    if band is not None and band[0] <= best <= band[1]:
-        best = band[1]
-    below = best == rpm_low and bool(diff[0] < 0.0)
-    reason = ShiftReason.REV_LIMIT
-    if best < rpm_high or any(abs(r - rpm_high) <= 1e-9 * rpm_high for r in crossovers):
-        reason = ShiftReason.CROSSOVER
-    return ShiftChoice(best, reason, len(crossovers), band, below)
-
-
-def _falls_through(diff_fn: Callable[[FloatArray], FloatArray], root: float, lo: float,
-                   hi: float) -> bool:
-    h = max(1e-6 * (hi - lo), 1e-9)
-    before = float(diff_fn(np.array([max(root - h, lo)]))[0])
-    after = float(diff_fn(np.array([min(root + h, hi)]))[0])
-    return before >= 0.0 >= after and before != after
+        reason = ShiftReason.REV_LIMIT if at_limit else ShiftReason.CROSSOVER
+        choices.append(ShiftChoice(best, reason, len(roots), band, below))
+    return tuple(choices)

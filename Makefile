@@ -1,0 +1,39 @@
+# Every target sets up its own virtual environment from the pinned constraints first.
+PY ?= python3
+VENV := .venv
+BIN := $(VENV)/bin
+STAMP := $(VENV)/.installed-stamp
+SRC := core service tests scripts bench
+
+.PHONY: serve test lint fuzz bench openapi clean
+
+$(STAMP): pyproject.toml constraints.txt
+	$(PY) -m venv $(VENV)
+	$(BIN)/python -m pip install --quiet --disable-pip-version-check --upgrade pip
+	$(BIN)/python -m pip install --quiet --disable-pip-version-check -c constraints.txt -e '.[test]'
+	touch $(STAMP)
+
+serve: $(STAMP)  ## run the service on 127.0.0.1:8000 (GEARWORK_HOST / _PORT / _WORKERS)
+	$(BIN)/python -m service
+
+lint: $(STAMP)
+	$(BIN)/ruff check $(SRC)
+	$(BIN)/ruff format --check $(SRC)
+	$(BIN)/mypy
+
+test: lint  ## lint, type-check and run the whole test suite
+	$(BIN)/python -m pytest
+
+fuzz: $(STAMP)  ## long schemathesis run over every endpoint
+	GEARWORK_FUZZ_EXAMPLES=$${EXAMPLES:-2000} $(BIN)/python -m pytest -p no:cacheprovider \
+		tests/service/test_schema_fuzz.py
+
+bench: $(STAMP)  ## benchmarks: core timings and served throughput against /healthz
+	command -v wrk >/dev/null || (apt-get update -qq && apt-get install -y -qq wrk)
+	$(BIN)/python -m bench.shift_plan
+
+openapi: $(STAMP)  ## rewrite openapi/openapi.json from the app
+	$(BIN)/python -m scripts.write_openapi
+
+clean:
+	rm -rf $(VENV) .pytest_cache .mypy_cache .ruff_cache .hypothesis

@@ -1,0 +1,133 @@
+"""Benchmark helpers: repeated timing with median/p99, a uvicorn server, wrk runs."""
+
+from __future__ import annotations
+
+import json
+import os
+import re
+import shutil
+import socket
+import subprocess
+import sys
+import tempfile
+import time
+import urllib.request
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+__all__ = ["Timing", "WrkResult", "serve", "time_call", "wrk"]
+
+
+@dataclass(frozen=True)
+class Timing:
+    """Wall-clock statistics of repeated calls [s]."""
+
+    median: float
+    p99: float
+    runs: int
+
+    def __str__(self) -> str:
+        return (
+            f"median {self.median * 1e3:8.3f} ms   p99 {self.p99 * 1e3:8.3f} ms"
+            f"   ({self.runs} runs)"
+        )
+
+
+def time_call(fn: Callable[[], object], *, runs: int = 300, warmup: int = 20) -> Timing:
+    """Call ``fn`` repeatedly and report the median and 99th percentile."""
+    for _ in range(warmup):
+        fn()
+    samples = np.empty(runs)
+    for i in range(runs):
+        t0 = time.perf_counter()
+        fn()
+        samples[i] = time.perf_counter() - t0
+    return Timing(float(np.median(samples)), float(np.percentile(samples, 99)), runs)
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return int(s.getsockname()[1])
+
+
+@contextmanager
+def serve(workers: int = 1) -> Iterator[str]:
+    """Run ``python -m service`` on a free loopback port; yield its base URL."""
+    port = _free_port()
+    env = {**os.environ, "GEARWORK_LOG_LEVEL": "warning"}
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "service", "--port", str(port), "--workers", str(workers)],
+        env=env,
+    )
+    base = f"http://127.0.0.1:{port}"
+    try:
+        for _ in range(200):
+            try:
+                with urllib.request.urlopen(base + "/healthz", timeout=1):
+                    break
+            except OSError:
+                time.sleep(0.05)
+        yield base
+    finally:
+        proc.terminate()
+        proc.wait(timeout=10)
+
+
+@dataclass(frozen=True)
+class WrkResult:
+    """What wrk reported."""
+
+    requests_per_s: float
+    p50_ms: float
+    p99_ms: float
+    errors: int
+
+    def __str__(self) -> str:
+        return (
+            f"{self.requests_per_s:9.0f} req/s   p50 {self.p50_ms:7.2f} ms   "
+            f"p99 {self.p99_ms:7.2f} ms   errors {self.errors}"
+        )
+
+
+_LUA = """
+wrk.method = "{method}"
+wrk.body = {body}
+wrk.headers["Content-Type"] = "application/json"
+done = function(summary, latency, requests)
+  io.write(string.format(
+    "JSON {{\\"p50\\": %f, \\"p99\\": %f, \\"non2xx\\": %d, \\"errors\\": %d}}\\n",
+    latency:percentile(50) / 1000, latency:percentile(99) / 1000,
+    summary.errors.status, summary.errors.connect + summary.errors.read +
+    summary.errors.write + summary.errors.timeout))
+end
+"""
+
+
+def wrk(
+    url: str, *, body: bytes | None = None, seconds: int = 8, connections: int = 16
+) -> WrkResult:
+    """Load ``url`` with wrk (one thread, keep-alive) and parse its figures."""
+    exe = shutil.which("wrk")
+    if exe is None:
+        raise SystemExit("wrk not found: apt-get install wrk")
+    lua = _LUA.format(
+        method="POST" if body is not None else "GET",
+        body=json.dumps(body.decode()) if body is not None else "nil",
+    )
+    with tempfile.TemporaryDirectory() as tmp:
+        script = Path(tmp) / "req.lua"
+        script.write_text(lua)
+        out = subprocess.run(
+            [exe, "-t1", f"-c{connections}", f"-d{seconds}s", "-s", str(script), url],
+            capture_output=True,
+            text=True,
+            check=True,
+        ).stdout
+    rps = float(re.search(r"Requests/sec:\s+([\d.]+)", out).group(1))  # type: ignore[union-attr]
+    stats = json.loads(out[out.index("JSON ") + 5 :].splitlines()[0])
+    return WrkResult(rps, stats["p50"], stats["p99"], int(stats["non2xx"]) + int(stats["errors"]))

@@ -1,0 +1,91 @@
+"""Shift-plan benchmark: core timing, serialisation choice, served throughput vs /healthz.
+
+Run with ``make bench``. Figures are printed, never asserted: the machine is shared.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import json
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import orjson
+
+from bench.common import serve, time_call, wrk
+from core import make_drivetrain, shift_plan, tire_from_size, torque_curve_from_torque
+from service.schemas.shift_plan import ShiftPlanRequest, ShiftPlanResponse
+
+DEMO = Path(__file__).resolve().parent.parent / "tests" / "data" / "demo_coupe_us.json"
+
+
+def _hundred_point_request() -> dict[str, Any]:
+    """The demo coupe with its curve resampled to 100 points (invented data)."""
+    body: dict[str, Any] = json.loads(DEMO.read_text())
+    curve = body["engine"]["curve"]
+    rpm = np.linspace(curve["rpm"][0], curve["rpm"][-1], 100)
+    curve["torque"] = np.round(np.interp(rpm, curve["rpm"], curve["torque"]), 2).tolist()
+    curve["rpm"] = np.round(rpm, 1).tolist()
+    return body
+
+
+def main() -> None:
+    body = _hundred_point_request()
+    curve = torque_curve_from_torque(
+        np.array(body["engine"]["curve"]["rpm"]),
+        np.array(body["engine"]["curve"]["torque"]) * 1.3558,
+    )
+    drivetrain = make_drivetrain([3.10, 2.05, 1.48, 1.16, 0.94, 0.79], 3.55, efficiency=0.87)
+    tire = tire_from_size("255/40R18")
+    print("core shift_plan, 6 gears, 100-point curve")
+    print("  ", time_call(lambda: shift_plan(curve, drivetrain, tire), runs=500))
+
+    # serialisation of the same response document, side by side
+    from service.app import app  # noqa: F401  (imports the routes)
+    from service.routes.shift_plan import create_shift_plan
+
+    request = ShiftPlanRequest.model_validate(body)
+    response = asyncio.run(create_shift_plan(request, None))
+    doc = orjson.loads(response.body)
+
+    from service.present import shift_plan_document
+
+    raw = shift_plan_document(
+        shift_plan(curve, drivetrain, tire), curve, drivetrain, tire, request.units, {}
+    )
+    raw.update(reference=None, summary="x")
+    opts = orjson.OPT_SERIALIZE_NUMPY
+    print("serialise response: orjson with NumPy arrays vs pydantic model")
+    t_orjson = time_call(lambda: orjson.dumps(raw, option=opts), runs=500)
+    t_pyd = time_call(lambda: ShiftPlanResponse.model_validate(doc).model_dump_json(), runs=500)
+    print("   orjson  ", t_orjson)
+    print("   pydantic", t_pyd)
+    print(f"   pydantic / orjson = {t_pyd.median / t_orjson.median:.1f}x")
+    print("handler in-process (parse model, compute, serialise)")
+    loop = asyncio.new_event_loop()
+    print(
+        "  ",
+        time_call(
+            lambda: loop.run_until_complete(
+                create_shift_plan(ShiftPlanRequest.model_validate(body), None)
+            )
+        ),
+    )
+    loop.close()
+
+    payload = json.dumps(body).encode()
+    with serve(workers=1) as base:
+        wrk(base + "/healthz", seconds=2)  # warm-up
+        wrk(base + "/v1/shift-plan", body=payload, seconds=2)
+        health = wrk(base + "/healthz")
+        plan = wrk(base + "/v1/shift-plan", body=payload)
+    print("served by uvicorn, 1 worker, wrk 1 thread 16 connections, 8 s each")
+    print("   /healthz       ", health)
+    print("   /v1/shift-plan ", plan)
+    ratio = plan.requests_per_s / health.requests_per_s
+    print(f"   throughput ratio shift-plan / healthz = {ratio:.2f}")
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,1 @@
+"""gearwork HTTP service: schemas, unit conversion, error mapping and routes."""

@@ -1,0 +1,128 @@
+"""Core results to response documents in the caller's units (NumPy arrays kept for orjson)."""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Mapping
+from typing import Any
+
+import numpy as np
+from numpy.typing import NDArray
+
+from core import Drivetrain, Notice, ShiftPlan, Tire, TorqueCurve
+from service.builders import request_field
+from service.cautions import CAUTIONS
+from service.units import Quantity, UnitSystem, from_si, unit_labels
+
+__all__ = ["notices_out", "rounded", "shift_plan_document", "tire_document"]
+
+FloatArray = NDArray[np.float64]
+
+
+def rounded(values: FloatArray | float, digits: int = 3) -> Any:
+    """Round for display; arrays stay NumPy arrays (orjson writes them directly)."""
+    if isinstance(values, np.ndarray):
+        return np.round(values, digits)
+    return round(float(values), digits)
+
+
+def notices_out(notices: Iterable[Notice], fields: Mapping[str, str]) -> list[dict[str, Any]]:
+    """Warnings with the request field each concerns."""
+    return [
+        {"code": n.code, "message": n.message, "field": request_field(n.parameter, fields)}
+        for n in notices
+    ]
+
+
+def tire_document(tire: Tire, units: UnitSystem) -> dict[str, Any]:
+    """The tire as used, in the caller's length unit."""
+
+    def length(x: float) -> float:
+        return rounded(from_si(x, Quantity.LENGTH, units), 2)  # type: ignore[no-any-return]
+
+    return {
+        "size": tire.designation,
+        "diameter": None if tire.free_diameter_m is None else length(tire.free_diameter_m),
+        "rolling_radius": length(tire.rolling_radius_m),
+        "circumference": length(tire.circumference_m),
+        "revs_per_mile": rounded(tire.revs_per_mile, 2),
+        "revs_per_km": rounded(tire.revs_per_km, 2),
+    }
+
+
+def shift_plan_document(
+    plan: ShiftPlan,
+    curve: TorqueCurve,
+    drivetrain: Drivetrain,
+    tire: Tire,
+    units: UnitSystem,
+    fields: Mapping[str, str],
+) -> dict[str, Any]:
+    """The body of a shift-plan response, without reference and summary."""
+    speed, force, torque, power = Quantity.SPEED, Quantity.FORCE, Quantity.TORQUE, Quantity.POWER
+    tables = plan.gears
+    # every gear's columns converted and rounded together, one array operation per quantity
+    v = rounded(from_si(np.stack([g.speed_m_s for g in tables]), speed, units), 2)
+    wt = rounded(from_si(np.stack([g.wheel_torque_nm for g in tables]), torque, units), 1)
+    tf = rounded(from_si(np.stack([g.tractive_force_n for g in tables]), force, units), 1)
+    wp = rounded(from_si(np.stack([g.wheel_power_w for g in tables]), power, units), 2)
+    rpm = rounded(tables[0].rpm, 1)
+    gears = [
+        {
+            "gear": g.gear,
+            "ratio": ratio,
+            "overall_ratio": round(g.overall_ratio, 4),
+            "efficiency": g.efficiency,
+            "max_speed": round(from_si(g.max_speed_m_s, speed, units), 2),
+            "table": {
+                "rpm": rpm,
+                "speed": v[i],
+                "wheel_torque": wt[i],
+                "tractive_force": tf[i],
+                "wheel_power": wp[i],
+            },
+        }
+        for i, (g, ratio) in enumerate(zip(tables, drivetrain.gear_ratios.tolist(), strict=True))
+    ]
+    shifts = [
+        {
+            "from_gear": s.from_gear,
+            "to_gear": s.to_gear,
+            "shift_rpm": rounded(s.shift_rpm, 1),
+            "shift_speed": rounded(from_si(s.shift_speed_m_s, speed, units), 2),
+            "reason": s.reason.value,
+            "rpm_after": rounded(s.rpm_after, 1),
+            "rpm_drop": rounded(s.rpm_drop, 1),
+            "force_before": rounded(from_si(s.force_before_n, force, units), 1),
+            "force_after": rounded(from_si(s.force_after_n, force, units), 1),
+            "crossings": s.crossings,
+            "coincident_rpm": None
+            if s.coincident_rpm is None
+            else [rounded(s.coincident_rpm[0], 1), rounded(s.coincident_rpm[1], 1)],
+        }
+        for s in plan.shifts
+    ]
+    t_peak = float(curve.torque_at([plan.peak_torque_rpm])[0])
+    p_peak = float(curve.power_at([plan.peak_power_rpm])[0])
+    return {
+        "units": unit_labels(units),
+        "engine": {
+            "source": curve.source.value,
+            "efficiency_applied": plan.efficiency_applied,
+            "rev_limit_rpm": rounded(plan.rev_limit_rpm, 1),
+            "curve_rpm_min": rounded(curve.rpm_min, 1),
+            "peak_torque": rounded(from_si(t_peak, torque, units), 2),
+            "peak_torque_rpm": rounded(plan.peak_torque_rpm, 1),
+            "peak_power": rounded(from_si(p_peak, power, units), 2),
+            "peak_power_rpm": rounded(plan.peak_power_rpm, 1),
+            "table": {
+                "rpm": rpm,
+                "torque": rounded(from_si(tables[0].engine_torque_nm, torque, units), 2),
+                "power": rounded(from_si(tables[0].engine_power_w, power, units), 2),
+            },
+        },
+        "tire": tire_document(tire, units),
+        "gears": gears,
+        "shifts": shifts,
+        "warnings": notices_out(plan.notices, fields),
+        "cautions": list(CAUTIONS),
+    }

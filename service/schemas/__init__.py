@@ -1,0 +1,1 @@
+"""Request and response models of the API (pydantic v2)."""

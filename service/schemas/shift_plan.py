@@ -1,0 +1,138 @@
+"""Request and response of POST /v1/shift-plan."""
+
+from __future__ import annotations
+
+from typing import Literal
+
+from pydantic import Field
+
+from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.inputs import DrivetrainIn, EngineIn
+
+__all__ = [
+    "CurveTableOut",
+    "EngineOut",
+    "GearOut",
+    "GearTableOut",
+    "ShiftOut",
+    "ShiftPlanRequest",
+    "ShiftPlanResponse",
+    "TableOptions",
+    "TireOut",
+]
+
+
+class TableOptions(ApiModel):
+    """How the per-gear tables are sampled."""
+
+    rpm_step: float | None = Field(
+        None,
+        ge=1,
+        le=10000,
+        description="Row spacing [rpm], from the curve's first point to the rev limit; "
+        "default the curve's own points. At most 2000 rows.",
+    )
+
+
+class ShiftPlanRequest(ApiModel):
+    """A torque curve and a drivetrain."""
+
+    units: UnitsField
+    reference: Reference
+    engine: EngineIn
+    drivetrain: DrivetrainIn
+    table: TableOptions = Field(default_factory=TableOptions)
+
+
+class GearTableOut(ApiModel):
+    """One gear's rows as columns of equal length."""
+
+    rpm: list[float] = Field(description="Engine speed [rpm], the same rows in every gear.")
+    speed: list[float] = Field(description="Road speed [km/h | mph].")
+    wheel_torque: list[float] = Field(description="Torque at the driven wheels [N*m | lbf*ft].")
+    tractive_force: list[float] = Field(description="Force at the contact patch [N | lbf].")
+    wheel_power: list[float] = Field(description="Power at the wheels [kW | hp].")
+
+
+class GearOut(ApiModel):
+    """One forward gear."""
+
+    gear: int = Field(description="Gear number, 1 for first.")
+    ratio: float = Field(description="Transmission ratio of the gear.")
+    overall_ratio: float = Field(description="Gear * final drive * extra reduction.")
+    efficiency: float = Field(description="Driveline efficiency applied (1 for chassis).")
+    max_speed: float = Field(description="Road speed at the rev limit [km/h | mph].")
+    table: GearTableOut
+
+
+class ShiftOut(ApiModel):
+    """One gear change."""
+
+    from_gear: int
+    to_gear: int
+    shift_rpm: float = Field(description="Engine speed at the shift [rpm].")
+    shift_speed: float = Field(description="Road speed at the shift [km/h | mph].")
+    reason: Literal["crossover", "rev_limit"] = Field(
+        description="`crossover`: the next gear's tractive force overtakes this gear's; "
+        "`rev_limit`: it never does before the rev limit."
+    )
+    rpm_after: float = Field(description="Engine speed right after the shift [rpm].")
+    rpm_drop: float = Field(description="shift_rpm - rpm_after [rpm].")
+    force_before: float = Field(description="Tractive force just before the shift [N | lbf].")
+    force_after: float = Field(description="Tractive force just after the shift [N | lbf].")
+    crossings: int = Field(description="Force crossovers found in the gears' shared range.")
+    coincident_rpm: list[float] | None = Field(
+        None,
+        min_length=2,
+        max_length=2,
+        description="[low, high] shift rpm band where both gears give the same force, if any.",
+    )
+
+
+class CurveTableOut(ApiModel):
+    """The interpolated curve on the table rows, shared by every gear."""
+
+    rpm: list[float] = Field(description="Engine speed [rpm].")
+    torque: list[float] = Field(description="Curve torque [N*m | lbf*ft].")
+    power: list[float] = Field(description="Curve power [kW | hp].")
+
+
+class EngineOut(ApiModel):
+    """What was used of the engine curve."""
+
+    source: Literal["engine", "chassis"]
+    efficiency_applied: bool = Field(
+        description="False for a chassis curve: it is already net of driveline losses."
+    )
+    rev_limit_rpm: float = Field(description="Rev limit used [rpm].")
+    curve_rpm_min: float = Field(description="First point of the curve [rpm].")
+    peak_torque: float = Field(description="Highest torque [N*m | lbf*ft].")
+    peak_torque_rpm: float = Field(description="Where torque peaks [rpm].")
+    peak_power: float = Field(description="Highest power [kW | hp].")
+    peak_power_rpm: float = Field(description="Where power peaks [rpm].")
+    table: CurveTableOut
+
+
+class TireOut(ApiModel):
+    """The tire as used."""
+
+    size: str | None = Field(None, description="Normalised size code, when given as one.")
+    diameter: float | None = Field(None, description="Free overall diameter [mm | in].")
+    rolling_radius: float = Field(description="Effective rolling radius [mm | in].")
+    circumference: float = Field(description="Rolling circumference [mm | in].")
+    revs_per_mile: float
+    revs_per_km: float
+
+
+class ShiftPlanResponse(ApiModel):
+    """Gear tables, shifts, warnings, cautions and a printable summary."""
+
+    reference: str | None = Field(description="The caller's reference, echoed.")
+    units: UnitLabels
+    engine: EngineOut
+    tire: TireOut
+    gears: list[GearOut]
+    shifts: list[ShiftOut]
+    warnings: list[NoticeOut]
+    cautions: list[str] = Field(description="Safety cautions that go with the advice.")
+    summary: str = Field(description="Plain-text summary, at most 80 columns, printable.")

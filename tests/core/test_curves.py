@@ -1,0 +1,89 @@
+"""Torque curves: validation, interpolation, power conversion."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from numpy.testing import assert_allclose
+
+from core import CurveError, Interpolation, torque_curve_from_power, torque_curve_from_torque
+from service.units import Quantity, UnitSystem, from_si, to_si
+
+RPM = [1000.0, 2000.0, 3000.0, 4000.0, 5000.0]
+TORQUE = [200.0, 260.0, 300.0, 280.0, 220.0]
+
+
+def test_power_from_torque_matches_5252_rule() -> None:
+    # hp = lbf*ft * rpm / 5252.113 (REFERENCES.md: 33000/(2*pi); common practice)
+    curve = torque_curve_from_torque(RPM, to_si(np.array(TORQUE), Quantity.TORQUE, UnitSystem.US))
+    hp = from_si(curve.power_at(RPM), Quantity.POWER, UnitSystem.US)
+    assert_allclose(hp, np.array(TORQUE) * np.array(RPM) / 5252.113, rtol=1e-6)
+
+
+def test_power_from_torque_matches_metric_rule() -> None:
+    # kW = N*m * rpm / 9549.297 (REFERENCES.md: 60000/(2*pi))
+    curve = torque_curve_from_torque(RPM, TORQUE)
+    assert_allclose(curve.power_at(RPM) / 1000.0, np.array(TORQUE) * RPM / 9549.297, rtol=1e-6)
+
+
+def test_torque_and_power_cross_at_5252_rpm_in_us_units() -> None:
+    # common practice: lbf*ft and hp curves cross at 5252 rpm
+    curve = torque_curve_from_torque([4000.0, 5252.113, 6000.0], [300.0, 300.0, 300.0])
+    hp = from_si(curve.power_at([5252.113]), Quantity.POWER, UnitSystem.US)
+    lbft = from_si(curve.torque_at([5252.113]), Quantity.TORQUE, UnitSystem.US)
+    assert_allclose(hp, lbft, rtol=1e-6)
+
+
+def test_curve_from_power_recovers_torque() -> None:
+    power = np.array(TORQUE) * np.array(RPM) * 2 * math.pi / 60
+    curve = torque_curve_from_power(RPM, power)
+    assert_allclose(curve.torque_nm, TORQUE, rtol=1e-12)
+
+
+def test_pchip_passes_through_samples_without_overshoot() -> None:
+    curve = torque_curve_from_torque(RPM, TORQUE)
+    assert_allclose(curve.torque_at(RPM), TORQUE, rtol=1e-12)
+    fine = np.linspace(RPM[0], RPM[-1], 2001)
+    assert curve.torque_at(fine).max() <= max(TORQUE) * (1 + 1e-12)
+
+
+def test_linear_interpolation_is_piecewise_linear() -> None:
+    curve = torque_curve_from_torque(RPM, TORQUE, interpolation=Interpolation.LINEAR)
+    assert_allclose(curve.torque_at([1500.0, 4500.0]), [230.0, 250.0], rtol=1e-12)
+
+
+def test_speeds_outside_curve_are_clipped_not_extrapolated() -> None:
+    curve = torque_curve_from_torque(RPM, TORQUE)
+    assert_allclose(curve.torque_at([500.0, 9000.0]), [200.0, 220.0], rtol=1e-12)
+
+
+def test_peaks_are_found_between_samples() -> None:
+    curve = torque_curve_from_torque(RPM, TORQUE)
+    assert 2900.0 <= curve.peak_torque_rpm() <= 3500.0
+    assert curve.peak_power_rpm() > curve.peak_torque_rpm()
+
+
+@pytest.mark.parametrize(
+    ("rpm", "torque", "match"),
+    [
+        pytest.param([1000, 2000], [1, 2], "at least 3", id="too-few-points"),
+        pytest.param([1000, 3000, 2000], [1, 2, 3], "strictly increasing", id="not-increasing"),
+        pytest.param([1000, 2000, 2000], [1, 2, 3], "strictly increasing", id="repeated-rpm"),
+        pytest.param([1000, 2000, 3000], [1, -2, 3], r"torque_nm\[1\]", id="negative-torque"),
+        pytest.param([1000, 2000, 3000], [1, math.nan, 3], "finite", id="nan-torque"),
+        pytest.param([0, 2000, 3000], [1, 2, 3], r"rpm\[0\]", id="zero-rpm"),
+        pytest.param([1000, 2000, 3000], [1, 2], "one value per rpm", id="length-mismatch"),
+        pytest.param([1000, 2000, 3000], [0, 0, 0], "at least one value > 0", id="all-zero"),
+    ],
+)
+def test_invalid_curve_is_rejected(rpm: list[float], torque: list[float], match: str) -> None:
+    with pytest.raises(CurveError, match=match):
+        torque_curve_from_torque(rpm, torque)
+
+
+def test_invalid_curve_error_names_the_index() -> None:
+    with pytest.raises(CurveError) as info:
+        torque_curve_from_torque([1000, 3000, 2000, 4000], [1, 2, 3, 4])
+    assert info.value.parameter == "rpm[2]"

@@ -1,0 +1,152 @@
+"""Shift points against closed forms and against brute-force minimisation of the time."""
+
+from __future__ import annotations
+
+import itertools
+from collections.abc import Callable
+
+import numpy as np
+import pytest
+from numpy.testing import assert_allclose
+from scipy.integrate import simpson
+
+from core import (
+    CurveError,
+    CurveSource,
+    Interpolation,
+    ShiftReason,
+    make_drivetrain,
+    shift_plan,
+    tire_from_diameter,
+    torque_curve_from_power,
+    torque_curve_from_torque,
+)
+
+T0, C = 520.0, 0.06  # T = T0 - C * n [N*m], invented linear curve
+RPM = np.linspace(1000.0, 7000.0, 13)
+LINEAR = T0 - C * RPM
+TIRE = tire_from_diameter(0.65)
+
+
+@pytest.mark.parametrize(
+    "interpolation",
+    [
+        pytest.param(Interpolation.PCHIP, id="pchip"),
+        pytest.param(Interpolation.LINEAR, id="linear"),
+    ],
+)
+@pytest.mark.parametrize(
+    ("g1", "g2", "final"),
+    [
+        pytest.param(3.2, 2.1, 3.73, id="wide"),
+        pytest.param(1.3, 1.0, 4.10, id="close"),
+        pytest.param(2.5, 1.6, 2.0, id="short-final"),
+    ],
+)
+def test_crossover_linear_curve_matches_closed_form(
+    interpolation: Interpolation, g1: float, g2: float, final: float
+) -> None:
+    # closed form (REFERENCES.md, derived from Newton's second law): for T = T0 - c*n the
+    # wheel forces of overall ratios G1 > G2 cross at n1 = (T0/c) * G1/(G1 + G2), and the
+    # engine lands at n1 * G2/G1; the final drive cancels
+    curve = torque_curve_from_torque(RPM, LINEAR, interpolation=interpolation)
+    plan = shift_plan(curve, make_drivetrain([g1, g2], final), TIRE)
+    s = plan.shifts[0]
+    expected = T0 / C * g1 / (g1 + g2)
+    assert s.reason is ShiftReason.CROSSOVER
+    assert_allclose(s.shift_rpm, expected, rtol=1e-3)
+    assert_allclose(s.rpm_after, expected * g2 / g1, rtol=1e-3)
+    assert_allclose(s.rpm_drop, s.shift_rpm - s.rpm_after, rtol=1e-12)
+    assert_allclose(s.force_before_n, s.force_after_n, rtol=1e-6)
+
+
+def test_every_shift_of_six_speed_matches_closed_form() -> None:
+    ratios = [3.6, 2.4, 1.7, 1.3, 1.0, 0.82]
+    curve = torque_curve_from_torque(RPM, LINEAR)
+    plan = shift_plan(curve, make_drivetrain(ratios, 3.42), TIRE)
+    for s, (a, b) in zip(plan.shifts, itertools.pairwise(ratios), strict=True):
+        expected = min(T0 / C * a / (a + b), 7000.0)
+        assert_allclose(s.shift_rpm, expected, rtol=1e-3)
+
+
+def test_flat_torque_never_crosses_and_shifts_at_rev_limit() -> None:
+    curve = torque_curve_from_torque([1000, 4000, 6500], [300.0, 300.0, 300.0])
+    plan = shift_plan(curve, make_drivetrain([3.0, 2.0, 1.4], 3.5), TIRE, rev_limit_rpm=6200)
+    assert all(s.reason is ShiftReason.REV_LIMIT for s in plan.shifts)
+    assert_allclose([s.shift_rpm for s in plan.shifts], [6200.0, 6200.0], rtol=0)
+    assert_allclose(plan.shifts[0].rpm_after, 6200.0 * 2.0 / 3.0, rtol=1e-12)
+
+
+def test_constant_power_gears_coincide_and_plan_says_so() -> None:
+    # constant power P: T(n) G1 = (P/w) G1 = T(n G2/G1) G2, so the forces coincide
+    rpm = np.linspace(2000.0, 7000.0, 21)
+    curve = torque_curve_from_power(rpm, np.full(rpm.size, 150e3))
+    plan = shift_plan(curve, make_drivetrain([3.0, 2.2], 3.5), TIRE)
+    s = plan.shifts[0]
+    assert s.coincident_rpm is not None
+    assert s.coincident_rpm[1] - s.coincident_rpm[0] > 1000.0
+    assert any(n.code == "coincident_force" for n in plan.notices)
+
+
+def _crossing_time(
+    torque: Callable[[np.ndarray], np.ndarray],
+    g1: float,
+    g2: float,
+    lo: float,
+    hi: float,
+    ns: float,
+) -> float:
+    """Time to cross [lo, hi] shifting at ns, up to constant factors: the integral of
+    dv/F evaluated by Simpson's rule on 4001 points per side (scipy.integrate.simpson)."""
+    q = g2 / g1
+    a = np.linspace(lo, ns, 4001)
+    b = np.linspace(ns, hi, 4001)
+    return float(simpson(1.0 / (g1 * torque(a)), x=a) + simpson(1.0 / (g2 * torque(b * q)), x=b))
+
+
+def test_multiple_crossovers_pick_the_quickest_shift() -> None:
+    # a curve with a mid-range dip and a second peak: the forces cross more than once, and
+    # the chosen shift must be the one brute-force integration of dv/F says is quickest
+    rpm = [2000, 2800, 3600, 4400, 5000, 5600, 6200, 6800, 7400]
+    torque = [330, 360, 300, 250, 300, 360, 370, 330, 250]
+    curve = torque_curve_from_torque(rpm, torque)
+    g1, g2 = 2.0, 1.6
+    plan = shift_plan(curve, make_drivetrain([g1, g2], 3.9), TIRE)
+    s = plan.shifts[0]
+    assert s.crossings >= 2
+    lo, hi = 2000.0 / (g2 / g1), 7400.0
+    grid = np.linspace(lo, hi, 601)
+    times = [_crossing_time(curve.torque_at, g1, g2, lo, hi, ns) for ns in grid]
+    best = float(grid[int(np.argmin(times))])
+    t_chosen = _crossing_time(curve.torque_at, g1, g2, lo, hi, s.shift_rpm)
+    assert t_chosen <= min(times) * (1 + 1e-6)
+    assert abs(s.shift_rpm - best) <= (hi - lo) / 600 * 1.5
+
+
+def test_rev_limit_above_curve_is_clipped_with_notice() -> None:
+    curve = torque_curve_from_torque(RPM, LINEAR)
+    plan = shift_plan(curve, make_drivetrain([3.0, 2.0], 3.5), TIRE, rev_limit_rpm=8000)
+    assert plan.rev_limit_rpm == 7000.0
+    assert plan.notices[0].code == "rev_limit_clipped"
+
+
+def test_rev_limit_below_curve_start_is_rejected() -> None:
+    curve = torque_curve_from_torque(RPM, LINEAR)
+    with pytest.raises(CurveError, match="rev_limit_rpm"):
+        shift_plan(curve, make_drivetrain([3.0, 2.0], 3.5), TIRE, rev_limit_rpm=900)
+
+
+def test_chassis_curve_is_not_reduced_by_efficiency() -> None:
+    curve = torque_curve_from_torque(RPM, LINEAR, source=CurveSource.CHASSIS)
+    plan = shift_plan(curve, make_drivetrain([3.0, 2.0], 3.5, efficiency=0.85), TIRE)
+    assert not plan.efficiency_applied
+    g = plan.gears[0]
+    assert_allclose(g.wheel_torque_nm, g.engine_torque_nm * 3.0 * 3.5, rtol=1e-12)
+    assert any(n.code == "efficiency_not_applied" for n in plan.notices)
+
+
+def test_wide_gap_warns_when_engine_lands_below_curve() -> None:
+    curve = torque_curve_from_torque([3000, 5000, 7000], [300.0, 320.0, 300.0])
+    plan = shift_plan(curve, make_drivetrain([4.0, 1.5], 3.5), TIRE)
+    assert plan.shifts[0].reason is ShiftReason.REV_LIMIT
+    assert any(n.code == "gear_gap" for n in plan.notices)

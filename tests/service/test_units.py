@@ -1,0 +1,59 @@
+"""Unit factors of the API against the reference library scipy.constants."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from numpy.testing import assert_allclose
+from scipy import constants
+
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
+
+
+@pytest.mark.parametrize(
+    ("quantity", "si_per_unit"),
+    [
+        # reference library: scipy.constants (CODATA / NIST SP 811 exact definitions)
+        pytest.param(Quantity.TORQUE, constants.pound_force * constants.foot, id="lbf*ft"),
+        pytest.param(Quantity.POWER, constants.horsepower, id="hp"),
+        pytest.param(Quantity.SPEED, constants.mile / constants.hour, id="mph"),
+        pytest.param(Quantity.FORCE, constants.pound_force, id="lbf"),
+        pytest.param(Quantity.LENGTH, constants.inch, id="in"),
+        pytest.param(Quantity.MASS, constants.pound, id="lb"),
+    ],
+)
+def test_us_factor_matches_scipy_constants(quantity: Quantity, si_per_unit: float) -> None:
+    assert_allclose(to_si(1.0, quantity, UnitSystem.US), si_per_unit, rtol=1e-12)
+
+
+@pytest.mark.parametrize(
+    ("quantity", "si_per_unit"),
+    [
+        pytest.param(Quantity.POWER, constants.kilo, id="kW"),
+        pytest.param(Quantity.SPEED, constants.kilo / constants.hour, id="km/h"),
+        pytest.param(Quantity.LENGTH, constants.milli, id="mm"),
+    ],
+)
+def test_metric_factor_matches_scipy_constants(quantity: Quantity, si_per_unit: float) -> None:
+    assert_allclose(to_si(1.0, quantity, UnitSystem.METRIC), si_per_unit, rtol=1e-12)
+
+
+def test_reference_values_from_references_md() -> None:
+    # REFERENCES.md: 1 lbf = 4.4482216152605 N; 1 lbf*ft = 1.3558179483314 N*m;
+    # 1 mph = 0.44704 m/s; 1 hp = 745.69987 W
+    us = UnitSystem.US
+    assert_allclose(to_si(1.0, Quantity.FORCE, us), 4.4482216152605, rtol=1e-13)
+    assert_allclose(to_si(1.0, Quantity.TORQUE, us), 1.3558179483314, rtol=1e-12)
+    assert_allclose(to_si(1.0, Quantity.SPEED, us), 0.44704, rtol=1e-15)
+    assert_allclose(to_si(1.0, Quantity.POWER, us), 745.69987, rtol=1e-8)
+
+
+@pytest.mark.parametrize("system", [pytest.param(s, id=s.value) for s in UnitSystem])
+def test_conversion_round_trips(system: UnitSystem) -> None:
+    x = np.array([0.5, 12.0, 3.3e4])
+    for q in Quantity:
+        assert_allclose(from_si(to_si(x, q, system), q, system), x, rtol=1e-14)
+
+
+def test_labels_name_every_quantity() -> None:
+    assert set(unit_labels(UnitSystem.US)) == {q.value for q in Quantity} | {"engine_speed"}
