@@ -56,10 +56,10 @@ def _free_port() -> int:
 
 
 @contextmanager
-def serve(workers: int = 1) -> Iterator[str]:
+def serve(workers: int = 1, env: dict[str, str] | None = None) -> Iterator[str]:
     """Run ``python -m service`` on a free loopback port; yield its base URL."""
     port = _free_port()
-    env = {**os.environ, "GEARWORK_LOG_LEVEL": "warning"}
+    env = {**os.environ, "GEARWORK_LOG_LEVEL": "warning", **(env or {})}
     proc = subprocess.Popen(
         [sys.executable, "-m", "service", "--port", str(port), "--workers", str(workers)],
         env=env,

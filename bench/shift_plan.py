@@ -74,17 +74,33 @@ def main() -> None:
     )
     loop.close()
 
+    from scipy.interpolate import PchipInterpolator
+
+    from core.curves import pchip_coefficients
+
+    x, y = curve.rpm, curve.torque_nm
+    print("PCHIP coefficients for the 100-point curve")
+    t_scipy = time_call(lambda: PchipInterpolator(x, y).c, runs=500)
+    t_own = time_call(lambda: pchip_coefficients(x, y), runs=500)
+    print("   scipy PchipInterpolator", t_scipy)
+    print("   core pchip_coefficients", t_own)
+
     payload = json.dumps(body).encode()
-    with serve(workers=1) as base:
-        wrk(base + "/healthz", seconds=2)  # warm-up
-        wrk(base + "/v1/shift-plan", body=payload, seconds=2)
-        health = wrk(base + "/healthz")
-        plan = wrk(base + "/v1/shift-plan", body=payload)
-    print("served by uvicorn, 1 worker, wrk 1 thread 16 connections, 8 s each")
-    print("   /healthz       ", health)
-    print("   /v1/shift-plan ", plan)
-    ratio = plan.requests_per_s / health.requests_per_s
-    print(f"   throughput ratio shift-plan / healthz = {ratio:.2f}")
+    for label, env in (
+        ("result cache off (every request computed)", {"GEARWORK_CACHE_ENTRIES": "0"}),
+        ("result cache on (the same request repeated)", {}),
+    ):
+        for workers in (1, 2):
+            with serve(workers=workers, env=env) as base:
+                wrk(base + "/healthz", seconds=2)  # warm-up
+                wrk(base + "/v1/shift-plan", body=payload, seconds=2)
+                health = wrk(base + "/healthz")
+                plan = wrk(base + "/v1/shift-plan", body=payload)
+            print(f"served by uvicorn, {workers} worker(s), {label}; wrk 1 thread, 16 conn., 8 s")
+            print("   /healthz       ", health)
+            print("   /v1/shift-plan ", plan)
+            ratio = plan.requests_per_s / health.requests_per_s
+            print(f"   throughput ratio shift-plan / healthz = {ratio:.2f}")
 
 
 if __name__ == "__main__":

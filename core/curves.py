@@ -16,8 +16,6 @@ from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy.interpolate import PchipInterpolator
-from scipy.optimize import minimize_scalar
 
 from core.errors import CurveError
 
@@ -27,6 +25,7 @@ __all__ = [
     "CurveSource",
     "Interpolation",
     "TorqueCurve",
+    "pchip_coefficients",
     "torque_curve_from_power",
     "torque_curve_from_torque",
 ]
@@ -86,14 +85,14 @@ class TorqueCurve:
         object.__setattr__(self, "rpm", rpm)
         object.__setattr__(self, "torque_nm", torque)
         if self.interpolation is Interpolation.PCHIP:
-            coef = np.asarray(PchipInterpolator(rpm, torque).c, dtype=np.float64)
+            coef = pchip_coefficients(rpm, torque)
         else:
             coef = np.zeros((4, rpm.size - 1))
             coef[2] = np.diff(torque) / np.diff(rpm)
             coef[3] = torque[:-1]
         # piecewise cubic on each interval: ((c0*dx + c1)*dx + c2)*dx + c3, dx = n - rpm[i]
         object.__setattr__(self, "_coef", coef)
-        scalar = (rpm.tolist(), [tuple(col) for col in coef.T.tolist()])
+        scalar = (rpm.tolist(), coef.T.tolist())
         object.__setattr__(self, "_scalar", scalar)
 
     @property
@@ -126,9 +125,10 @@ class TorqueCurve:
         >>> c.torque_at([1500, 2500]).tolist()
         [150.0, 150.0]
         """
-        n = np.clip(np.asarray(rpm, dtype=np.float64), self.rpm[0], self.rpm[-1])
-        i = np.clip(np.searchsorted(self.rpm, n, side="right") - 1, 0, self.rpm.size - 2)
-        dx = n - self.rpm[i]
+        x = self.rpm
+        n = np.minimum(np.maximum(np.asarray(rpm, dtype=np.float64), x[0]), x[-1])
+        i = np.minimum(np.searchsorted(x, n, side="right") - 1, x.size - 2)
+        dx = n - x[i]
         c = self._coef
         out: FloatArray = ((c[0, i] * dx + c[1, i]) * dx + c[2, i]) * dx + c[3, i]
         return np.maximum(out, 0.0)
@@ -166,8 +166,11 @@ class TorqueCurve:
         ndarray, shape (m,)
             Power [W] = torque * angular speed.
         """
-        n = np.clip(np.asarray(rpm, dtype=np.float64), self.rpm[0], self.rpm[-1])
-        return self.torque_at(n) * n * RPM_TO_RAD_S
+        n: FloatArray = np.minimum(
+            np.maximum(np.asarray(rpm, dtype=np.float64), self.rpm[0]), self.rpm[-1]
+        )
+        power: FloatArray = self.torque_at(n) * n * RPM_TO_RAD_S
+        return power
 
     def peak_torque_rpm(self) -> float:
         """Engine speed of the highest torque [rpm].
@@ -179,21 +182,68 @@ class TorqueCurve:
     def peak_power_rpm(self) -> float:
         """Engine speed of the highest power [rpm].
 
-        Found on a 1-in-1000 grid, then refined by bounded scalar minimisation
-        (``scipy.optimize.minimize_scalar``) to within 0.01 rpm.
+        Found on a 1-in-1000 grid and refined by the vertex of the parabola through the
+        best grid point and its neighbours (error well under 1 rpm).
         """
         grid = np.linspace(self.rpm[0], self.rpm[-1], 1001)
-        k = int(np.argmax(self.power_at(grid)))
-        lo, hi = grid[max(k - 1, 0)], grid[min(k + 1, grid.size - 1)]
-        res = minimize_scalar(
-            lambda n: -n * self.torque_scalar(n),
-            bounds=(lo, hi),
-            method="bounded",
-            options={"xatol": 0.01},
-        )
-        return (
-            float(res.x) if -res.fun >= grid[k] * self.torque_scalar(grid[k]) else float(grid[k])
-        )
+        p = self.power_at(grid)
+        k = int(np.argmax(p))
+        if k == 0 or k == grid.size - 1:
+            return float(grid[k])
+        left, mid, right = float(p[k - 1]), float(p[k]), float(p[k + 1])
+        curvature = left - 2.0 * mid + right
+        if curvature >= 0.0:
+            return float(grid[k])
+        step = float(grid[1] - grid[0])
+        return float(grid[k]) + 0.5 * step * (left - right) / curvature
+
+
+def _pchip_edge_slope(h0: float, h1: float, m0: float, m1: float) -> float:
+    d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1)
+    if np.sign(d) != np.sign(m0):
+        return 0.0
+    if np.sign(m0) != np.sign(m1) and abs(d) > 3.0 * abs(m0):
+        return 3.0 * m0
+    return float(d)
+
+
+def pchip_coefficients(x: FloatArray, y: FloatArray) -> FloatArray:
+    """Piecewise-cubic coefficients of the monotone PCHIP fill through (x, y).
+
+    The Fritsch-Carlson slopes with the one-sided three-point end condition, exactly as
+    ``scipy.interpolate.PchipInterpolator`` computes them (a test holds the two to 1e-12),
+    without its per-call overhead: a request builds one curve, and building it through
+    scipy cost more than the whole shift search (``bench/shift_plan.py`` measures both).
+
+    Parameters
+    ----------
+    x : ndarray, shape (n,)
+        Strictly increasing abscissae, n >= 3.
+    y : ndarray, shape (n,)
+        Ordinates.
+
+    Returns
+    -------
+    ndarray, shape (4, n - 1)
+        Rows c0..c3 of ``((c0*dx + c1)*dx + c2)*dx + c3`` on each interval, dx = t - x[i].
+    """
+    h = np.diff(x)
+    m = np.diff(y) / h
+    d = np.zeros_like(y)
+    w1 = 2.0 * h[1:] + h[:-1]
+    w2 = h[1:] + 2.0 * h[:-1]
+    flat = (np.sign(m[1:]) != np.sign(m[:-1])) | (m[1:] == 0.0) | (m[:-1] == 0.0)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        whmean = (w1 / m[:-1] + w2 / m[1:]) / (w1 + w2)
+        d[1:-1] = np.where(flat, 0.0, 1.0 / whmean)
+    d[0] = _pchip_edge_slope(h[0], h[1], m[0], m[1])
+    d[-1] = _pchip_edge_slope(h[-1], h[-2], m[-1], m[-2])
+    coef = np.empty((4, x.size - 1))
+    coef[0] = (d[:-1] + d[1:] - 2.0 * m) / h**2
+    coef[1] = (3.0 * m - 2.0 * d[:-1] - d[1:]) / h
+    coef[2] = d[:-1]
+    coef[3] = y[:-1]
+    return coef
 
 
 def _validated_rpm(rpm: ArrayLike) -> FloatArray:

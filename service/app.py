@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from fastapi import FastAPI
 
+from service.cache import ResultCache
 from service.limits import BodySizeLimit
 from service.openapi import build_openapi
 from service.problems import install_problem_handlers
@@ -39,6 +40,10 @@ def create_app() -> FastAPI:
     app.include_router(health.router)
     app.include_router(shift_plan.router)
     install_problem_handlers(app)
+    # outermost last: the size limit runs before the cache reads the body
+    app.add_middleware(
+        ResultCache, max_entries=settings.cache_entries, max_bytes=settings.cache_max_bytes
+    )
     app.add_middleware(BodySizeLimit, max_bytes=settings.max_body_bytes)
 
     def openapi() -> dict[str, object]:

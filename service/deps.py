@@ -13,7 +13,7 @@ from service.settings import Settings, get_settings
 __all__ = ["JsonBody", "SettingsDep", "require_json_body"]
 
 
-def require_json_body(request: Request) -> None:
+async def require_json_body(request: Request) -> None:
     """Reject a body declared as anything but JSON with 415 (a missing type is read as JSON)."""
     declared = request.headers.get("content-type")
     if not declared:

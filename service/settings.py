@@ -19,6 +19,12 @@ class Settings(BaseSettings):
     port: int = Field(8000, ge=1, le=65535, description="TCP port.")
     workers: int = Field(1, ge=1, le=64, description="uvicorn worker processes.")
     log_level: str = Field("info", pattern="^(critical|error|warning|info|debug)$")
+    cache_entries: int = Field(
+        512, ge=0, le=100_000, description="Results kept per worker for repeated requests."
+    )
+    cache_max_bytes: int = Field(
+        64 * 1024 * 1024, ge=0, le=4 * 1024**3, description="Bytes of results kept [bytes]."
+    )
     max_body_bytes: int = Field(
         262_144, ge=1024, le=16_777_216, description="Largest accepted request body [bytes]."
     )

@@ -87,3 +87,24 @@ def test_invalid_curve_error_names_the_index() -> None:
     with pytest.raises(CurveError) as info:
         torque_curve_from_torque([1000, 3000, 2000, 4000], [1, 2, 3, 4])
     assert info.value.parameter == "rpm[2]"
+
+
+@pytest.mark.parametrize(
+    "torque",
+    [
+        pytest.param(TORQUE, id="hump"),
+        pytest.param([300.0, 300.0, 310.0, 290.0, 290.0], id="flat-stretches"),
+        pytest.param([100.0, 250.0, 260.0, 400.0, 100.0], id="steep-edges"),
+        pytest.param([400.0, 300.0, 200.0, 150.0, 10.0], id="falling"),
+    ],
+)
+def test_pchip_fill_matches_scipy_pchip_interpolator(torque: list[float]) -> None:
+    # reference library: scipy.interpolate.PchipInterpolator (Fritsch-Carlson slopes)
+    from scipy.interpolate import PchipInterpolator
+
+    rpm = np.array([1000.0, 1800.0, 3000.0, 4100.0, 5000.0])
+    curve = torque_curve_from_torque(rpm, torque)
+    fine = np.linspace(1000.0, 5000.0, 997)
+    expected = np.maximum(PchipInterpolator(rpm, torque)(fine), 0.0)
+    assert_allclose(curve.torque_at(fine), expected, rtol=1e-12, atol=1e-9)
+    assert_allclose([curve.torque_scalar(n) for n in fine[::50]], expected[::50], rtol=1e-12)

@@ -1,0 +1,139 @@
+"""ASGI middleware: deterministic POST results cached by a digest of the request.
+
+Every calculation endpoint is a pure function of its path and body, so the same request
+always gets the same answer. A retailer's page re-sends the configurations buyers flip
+between; a shop's job system re-sends a work order. The middleware keys each POST under
+``/v1/`` by SHA-256 of (path, content type, accept, body), keeps successful answers in a
+bounded LRU (entry count and total bytes), and sends every 200 with an ``ETag`` of that
+digest, so a caller holding the tag can send ``If-None-Match`` and get 304 with no body.
+Set ``GEARWORK_CACHE_ENTRIES=0`` to turn the store off (the ETag stays).
+"""
+
+from __future__ import annotations
+
+import hashlib
+from collections import OrderedDict
+from dataclasses import dataclass
+
+from starlette.types import ASGIApp, Message, Receive, Scope, Send
+
+__all__ = ["ResultCache"]
+
+_VERSION = b"gearwork/0.1.0"
+
+
+@dataclass(frozen=True)
+class _Entry:
+    status: int
+    headers: list[tuple[bytes, bytes]]
+    body: bytes
+
+
+class ResultCache:
+    """Cache and tag deterministic POST results.
+
+    Parameters
+    ----------
+    app : ASGI app
+        The wrapped application.
+    max_entries : int
+        Most results kept; 0 keeps none.
+    max_bytes : int
+        Most response bytes kept in all.
+    prefix : str
+        Only POSTs under this path prefix are considered.
+    """
+
+    def __init__(self, app: ASGIApp, max_entries: int, max_bytes: int, prefix: str = "/v1/"):
+        self.app = app
+        self.max_entries = max_entries
+        self.max_bytes = max_bytes
+        self.prefix = prefix
+        self._store: OrderedDict[bytes, _Entry] = OrderedDict()
+        self._bytes = 0
+
+    async def __call__(self, scope: Scope, receive: Receive, send: Send) -> None:
+        if (
+            scope["type"] != "http"
+            or scope["method"] != "POST"
+            or not scope["path"].startswith(self.prefix)
+        ):
+            await self.app(scope, receive, send)
+            return
+        chunks = []
+        while True:
+            message = await receive()
+            if message["type"] != "http.request":
+                return  # client went away
+            chunks.append(message.get("body", b""))
+            if not message.get("more_body", False):
+                break
+        body = b"".join(chunks)
+        headers = dict(scope["headers"])
+        digest = hashlib.sha256(_VERSION)
+        for part in (
+            scope["path"].encode(),
+            headers.get(b"content-type", b""),
+            headers.get(b"accept", b""),
+            body,
+        ):
+            digest.update(len(part).to_bytes(8, "little"))
+            digest.update(part)
+        key = digest.digest()
+        etag = b'"' + digest.hexdigest()[:32].encode() + b'"'
+        if headers.get(b"if-none-match") == etag:
+            await send(
+                {"type": "http.response.start", "status": 304, "headers": [(b"etag", etag)]}
+            )
+            await send({"type": "http.response.body", "body": b""})
+            return
+        entry = self._store.get(key)
+        if entry is not None:
+            self._store.move_to_end(key)
+            await self._send(send, entry)
+            return
+        await self._compute(scope, body, send, key, etag)
+
+    async def _compute(
+        self, scope: Scope, body: bytes, send: Send, key: bytes, etag: bytes
+    ) -> None:
+        replayed = False
+
+        async def replay() -> Message:
+            nonlocal replayed
+            if not replayed:
+                replayed = True
+                return {"type": "http.request", "body": body, "more_body": False}
+            return {"type": "http.disconnect"}
+
+        status = 0
+        out_headers: list[tuple[bytes, bytes]] = []
+        parts: list[bytes] = []
+
+        async def capture(message: Message) -> None:
+            nonlocal status, out_headers
+            if message["type"] == "http.response.start":
+                status = int(message["status"])
+                out_headers = list(message.get("headers", []))
+                if status == 200:
+                    out_headers.append((b"etag", etag))
+                    message = {**message, "headers": out_headers}
+            elif message["type"] == "http.response.body":
+                parts.append(message.get("body", b""))
+            await send(message)
+
+        await self.app(scope, replay, capture)
+        size = sum(len(p) for p in parts)
+        if status == 200 and self.max_entries > 0 and size <= self.max_bytes // 8:
+            self._store[key] = _Entry(status, out_headers, b"".join(parts))
+            self._bytes += size
+            while len(self._store) > self.max_entries or self._bytes > self.max_bytes:
+                _, old = self._store.popitem(last=False)
+                self._bytes -= len(old.body)
+
+    @staticmethod
+    async def _send(send: Send, entry: _Entry) -> None:
+        await send(
+            {"type": "http.response.start", "status": entry.status, "headers": entry.headers}
+        )
+        await send({"type": "http.response.body", "body": entry.body})
