@@ -26,6 +26,7 @@ __all__ = ["TorqueConverter"]
 FloatArray = NDArray[np.float64]
 
 _CONVERTER_PHASE_POINTS = 17
+_COUPLING_PHASE_POINTS = 9
 _UNITY_K_MULTIPLIER = 10.0
 
 
@@ -125,8 +126,9 @@ class TorqueConverter:
           ``coupling_speed_ratio`` and stays 1 above it;
         * up to the coupling point the K-factor rises modestly,
           ``K = K(0)*(1 + k_factor_rise*(SR/SR_c)**2)``, tabulated at 17 evenly spaced
-          points; above it, in the fluid-coupling phase, K climbs linearly to ten times its
-          coupling value at ``SR = 1``, so under power it keeps slipping a few per cent
+          points; above it, in the fluid-coupling phase, K climbs as the fourth power of
+          the way from coupling to ``SR = 1``, to ten times its coupling value there
+          (tabulated at 9 points), so under power it keeps slipping a few per cent
           rather than reaching ``SR = 1``;
         * with ``lockup`` the converter locks (1:1) from the coupling point on.
 
@@ -182,10 +184,13 @@ class TorqueConverter:
         fraction = phase / coupling_speed_ratio
         k_phase = stall_k_factor * (1.0 + k_factor_rise * fraction**2)
         tr_phase = stall_torque_ratio + (1.0 - stall_torque_ratio) * fraction
+        coupling = np.linspace(coupling_speed_ratio, 1.0, _COUPLING_PHASE_POINTS)[1:]
+        way = (coupling - coupling_speed_ratio) / (1.0 - coupling_speed_ratio)
+        k_coupling = k_phase[-1] * (1.0 + (_UNITY_K_MULTIPLIER - 1.0) * way**4)
         return cls(
-            speed_ratio=np.append(phase, 1.0),
-            k_factor=np.append(k_phase, _UNITY_K_MULTIPLIER * k_phase[-1]),
-            torque_ratio=np.append(tr_phase, 1.0),
+            speed_ratio=np.append(phase, coupling),
+            k_factor=np.append(k_phase, k_coupling),
+            torque_ratio=np.append(tr_phase, np.ones(coupling.size)),
             lockup_speed_ratio=coupling_speed_ratio if lockup else None,
         )
 

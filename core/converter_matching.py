@@ -30,7 +30,7 @@ FloatArray = NDArray[np.float64]
 EngineTorqueFn = Callable[[FloatArray], FloatArray]
 """Vectorised wide-open-throttle engine torque [N*m] at engine speeds [rpm], shape (n,)."""
 
-_BISECTION_STEPS = 60
+_BISECTION_STEPS = 28  # brackets narrow to (rpm_max - rpm_min) / 2**28, below 1e-4 rpm
 
 
 def _fail(name: str, condition: str) -> VehicleError:
@@ -163,7 +163,7 @@ def converter_operating_points(
     """Engine speed and torques at wide-open throttle for each turbine speed.
 
     Solves ``T_engine(n) = (n/K(n_t/n))**2`` for ``n`` in ``[max(n_t, rpm_min), rpm_max]`` by
-    bisection on the whole array at once (a fixed 60 halvings). Where no root lies in that
+    bisection on the whole array at once (a fixed 28 halvings). Where no root lies in that
     bracket the engine is held at the end it is pushed against:
 
     * if the converter already absorbs the engine's torque at the lower end (at ``SR = 1``,

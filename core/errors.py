@@ -12,14 +12,18 @@ applies, e.g. ``"gear_ratios[2]"``), which the service maps onto the caller's fi
           ├── TireSizeError       tire diameter, size code, revolutions per distance
           ├── DrivetrainError     gear ratios, final drive, reductions, efficiency
           ├── VehicleError        mass, geometry, road load, converter, launch
-          └── SimulationError     a run that cannot proceed (car cannot move, no finish)
+          ├── SimulationError     a run that cannot proceed (car cannot move, no finish)
+          ├── CorrectionError     dyno correction: ambient conditions, correction factor
+          └── DynoFileError       a dyno export that cannot be read (``line``, ``column``)
 """
 
 from __future__ import annotations
 
 __all__ = [
+    "CorrectionError",
     "CurveError",
     "DrivetrainError",
+    "DynoFileError",
     "GearworkError",
     "SimulationError",
     "TireSizeError",
@@ -62,3 +66,37 @@ class VehicleError(GearworkError):
 
 class SimulationError(GearworkError):
     """A simulated run cannot proceed (the car cannot move or never reaches the finish)."""
+
+
+class CorrectionError(GearworkError):
+    """Ambient conditions or a correction factor for a dyno correction are invalid."""
+
+
+class DynoFileError(GearworkError):
+    """A dyno export cannot be read.
+
+    Parameters
+    ----------
+    message : str
+        What is wrong, naming the place in the text.
+    line : int or None
+        1-based line of the text at fault, or None when the whole text is at fault.
+    column : int or None
+        1-based column (cell number, counting the fields of the line) of the cell at fault;
+        for a character that cannot appear in a text export, its 1-based character position
+        in the line; None when no single cell is at fault.
+    parameter : str or None
+        The core argument at fault, ``"text"`` unless an option is.
+    """
+
+    def __init__(
+        self,
+        message: str,
+        *,
+        line: int | None = None,
+        column: int | None = None,
+        parameter: str | None = "text",
+    ) -> None:
+        super().__init__(message, parameter=parameter)
+        self.line = line
+        self.column = column

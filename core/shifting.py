@@ -99,7 +99,7 @@ def _coincident_band(
 
 def best_shifts(
     efforts: VectorEfforts,
-    diff_scalar: ScalarDiff,
+    diff_scalar: ScalarDiff | None,
     rpm_low: ArrayLike,
     rpm_high: ArrayLike,
 ) -> tuple[ShiftChoice, ...]:
@@ -112,9 +112,12 @@ def best_shifts(
         shape (p, m), row k belonging to gear change k, the effort (tractive force [N] or
         net acceleration [m/s^2]) of the current and of the next gear at the road speed
         each ``n`` means in the current gear; both of shape (p, m). Higher is better.
-    diff_scalar : callable
+    diff_scalar : callable or None
         ``diff_scalar(k, n) -> current - next`` for one gear change and one speed, the same
-        function as ``efforts`` without array overhead, for root refinement.
+        function as ``efforts`` without array overhead; each crossing is refined with
+        ``brentq`` on it. None (for efforts too costly to call one point at a time, such as
+        a converter solved by bisection) locates each crossing by linear interpolation in
+        its scan cell, 1/512 of the range wide.
     rpm_low : array_like, shape (p,)
         Start of each shared range in current-gear rpm (the next gear's lowest usable speed).
     rpm_high : array_like, shape (p,)
@@ -160,6 +163,8 @@ def best_shifts(
         for j in np.flatnonzero(falling[k]).tolist():
             if d[j + 1] == 0.0:
                 root = float(g[j + 1])
+            elif diff_scalar is None:
+                root = float(g[j] + d[j] / (d[j] - d[j + 1]) * (g[j + 1] - g[j]))
             else:
                 root = float(brentq(lambda x, k=k: diff_scalar(k, x), g[j], g[j + 1], xtol=1e-7))
             if band is None or not band[0] <= root <= band[1]:

@@ -89,10 +89,12 @@ def test_flat_capacity_holds_the_stall_speed_until_lockup() -> None:
         converter, turbine, flat_torque(400.0), rpm_min=RPM_MIN, rpm_max=RPM_MAX
     )
     assert isinstance(points, ConverterOperatingPoints)
-    assert_allclose(points.engine_rpm, np.full(5, 2000.0), rtol=1e-12)
-    assert_allclose(points.speed_ratio, turbine / 2000.0, rtol=1e-12)
+    assert_allclose(
+        points.engine_rpm, np.full(5, 2000.0), rtol=1e-8
+    )  # 28 bisection steps: ~1e-5 rpm
+    assert_allclose(points.speed_ratio, turbine / 2000.0, rtol=1e-8)
     expected_tr = 2.0 - (turbine / 2000.0) / 0.8
-    assert_allclose(points.output_torque_nm, 400.0 * expected_tr, rtol=1e-12)
+    assert_allclose(points.output_torque_nm, 400.0 * expected_tr, rtol=1e-8)
     assert not points.locked.any()
 
 
@@ -111,10 +113,10 @@ def test_operating_points_agree_with_a_per_point_brentq_solution() -> None:
         return float(humped_torque(rpm)[0] - (n / converter.k_factor_at(n_t / rpm)[0]) ** 2)
 
     expected = [brentq(surplus, max(n_t, RPM_MIN), RPM_MAX, args=(n_t,)) for n_t in turbine]
-    assert_allclose(points.engine_rpm, expected, rtol=1e-10)
+    assert_allclose(points.engine_rpm, expected, rtol=1e-8)
     assert_allclose(points.input_torque_nm, humped_torque(points.engine_rpm), rtol=1e-12)
     absorbed = (points.engine_rpm / converter.k_factor_at(points.speed_ratio)) ** 2
-    assert_allclose(points.input_torque_nm, absorbed, rtol=1e-9)
+    assert_allclose(points.input_torque_nm, absorbed, rtol=1e-7)  # 28 bisection steps
 
 
 def test_stall_point_of_the_solver_matches_stall_speed_and_multiplies_torque() -> None:
@@ -123,7 +125,7 @@ def test_stall_point_of_the_solver_matches_stall_speed_and_multiplies_torque() -
         converter, [0.0], humped_torque, rpm_min=RPM_MIN, rpm_max=RPM_MAX
     )
     stall = stall_speed_rpm(converter, humped_torque, rpm_min=RPM_MIN, rpm_max=RPM_MAX)
-    assert_allclose(points.engine_rpm, [stall], rtol=1e-10)
+    assert_allclose(points.engine_rpm, [stall], rtol=1e-8)
     assert_allclose(points.output_torque_nm, 2.2 * points.input_torque_nm, rtol=1e-14)
     assert_allclose(points.efficiency, [0.0], atol=1e-15)
 
