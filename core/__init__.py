@@ -70,11 +70,14 @@ from core.milestones import (
 )
 from core.performance import (
     OptimalShifts,
+    ShiftCriterion,
     TopSpeed,
+    acceleration_shift_points,
     acceleration_shifts,
     cruise_rpm,
     gradeability_by_gear,
     optimal_shift_rpm,
+    planned_shift_rpm,
     top_speed,
 )
 from core.plan import (
@@ -88,6 +91,12 @@ from core.roadload import (
     RoadLoad,
     RoadLoadForm,
     gradeability_percent,
+)
+from core.runreport import (
+    RunReport,
+    SampledTrace,
+    run_report,
+    sample_trace,
 )
 from core.shifting import (
     ScalarDiff,
@@ -175,10 +184,13 @@ __all__ = [
     "RoadLoad",
     "RoadLoadForm",
     "RotatingInertia",
+    "RunReport",
     "RunResult",
     "RunShift",
+    "SampledTrace",
     "ScalarDiff",
     "ShiftChoice",
+    "ShiftCriterion",
     "ShiftLandings",
     "ShiftPlan",
     "ShiftPoint",
@@ -199,6 +211,7 @@ __all__ = [
     "VectorEfforts",
     "Vehicle",
     "VehicleError",
+    "acceleration_shift_points",
     "acceleration_shifts",
     "air_density_kg_m3",
     "air_state",
@@ -221,11 +234,14 @@ __all__ = [
     "odometer_readings",
     "optimal_shift_rpm",
     "pchip_coefficients",
+    "planned_shift_rpm",
     "progressive_gear_set",
     "resolve_rev_limit",
     "road_speed_m_s",
     "rotating_mass_kg",
     "rpm_grid",
+    "run_report",
+    "sample_trace",
     "saturation_vapour_pressure_pa",
     "shift_landings",
     "shift_plan",

@@ -3,6 +3,7 @@ cruise rpm, gradeability, and shift rpms that minimise the time of a run."""
 
 from __future__ import annotations
 
+import enum
 import math
 from dataclasses import dataclass
 
@@ -11,17 +12,21 @@ from numpy.typing import NDArray
 from scipy.optimize import minimize
 
 from core.milestones import time_at_distance, time_at_speed
+from core.plan import ShiftPoint, shift_plan
 from core.roadload import gradeability_percent
 from core.shifting import ShiftChoice, best_shifts
-from core.simulate import DriveModel, simulate_run
+from core.simulate import DriveModel, RunResult, simulate_run
 
 __all__ = [
     "OptimalShifts",
+    "ShiftCriterion",
     "TopSpeed",
+    "acceleration_shift_points",
     "acceleration_shifts",
     "cruise_rpm",
     "gradeability_by_gear",
     "optimal_shift_rpm",
+    "planned_shift_rpm",
     "top_speed",
 ]
 
@@ -213,11 +218,11 @@ def optimal_shift_rpm(
     )
     cover = (finish_distance_m or 0.0) + rollout_m
     evaluations = 0
+    x0 = np.clip(np.asarray(initial_rpm, dtype=np.float64), lower, limit)
 
-    def run_time(x: FloatArray) -> float:
+    def timed(rpm: FloatArray) -> tuple[float, RunResult]:
         nonlocal evaluations
         evaluations += 1
-        rpm = np.clip(x, lower, limit)
         run = simulate_run(
             model,
             rpm,
@@ -231,21 +236,85 @@ def optimal_shift_rpm(
         else:
             t_end = time_at_speed(run, float(finish_speed_m_s or 0.0))
             t_start = 0.0
-        return 1e6 if t_end is None else t_end - t_start
+        return (1e6 if t_end is None else t_end - t_start), run
 
-    x0 = np.clip(np.asarray(initial_rpm, dtype=np.float64), lower, limit)
-    baseline = run_time(x0)
-    if x0.size == 0:
+    baseline, first = timed(x0)
+    # only the shifts made before the finish can change its time
+    finish_at = baseline + (time_at_distance(first, rollout_m) or 0.0)
+    active = np.array(
+        [k for k, s in enumerate(first.shifts) if s.time_s < finish_at], dtype=np.int64
+    )
+    if active.size == 0:
         return OptimalShifts(x0, baseline, baseline, evaluations)
+
+    def run_time(x: FloatArray) -> float:
+        rpm = x0.copy()
+        rpm[active] = np.clip(x, lower[active], limit)
+        return timed(rpm)[0]
+
     res = minimize(
         run_time,
-        x0,
+        x0[active],
         method="Powell",
-        bounds=list(zip(lower.tolist(), [limit] * x0.size, strict=True)),
+        bounds=list(zip(lower[active].tolist(), [limit] * active.size, strict=True)),
         options={"maxfev": max_evaluations, "xtol": 1e-3, "ftol": 1e-6},
     )
-    best = np.clip(np.asarray(res.x, dtype=np.float64), lower, limit)
+    best = x0.copy()
+    best[active] = np.clip(np.asarray(res.x, dtype=np.float64), lower[active], limit)
     best_time = float(res.fun)
     if best_time > baseline:
         best, best_time = x0, baseline
     return OptimalShifts(best, best_time, baseline, evaluations)
+
+
+class ShiftCriterion(enum.Enum):
+    """What a shift plan maximises: wheel force, or net acceleration of the described car."""
+
+    TRACTIVE_FORCE = "tractive_force"
+    NET_ACCELERATION = "net_acceleration"
+
+
+def planned_shift_rpm(model: DriveModel, criterion: ShiftCriterion) -> FloatArray:
+    """Shift rpm per gear change by the chosen criterion [rpm], shape (g - 1,)."""
+    if criterion is ShiftCriterion.NET_ACCELERATION:
+        return np.array([c.shift_rpm for c in acceleration_shifts(model)])
+    plan = shift_plan(model.curve, model.drivetrain, model.tire, rev_limit_rpm=model.rev_limit_rpm)
+    return np.array([s.shift_rpm for s in plan.shifts])
+
+
+def acceleration_shift_points(model: DriveModel) -> tuple[ShiftPoint, ...]:
+    """The net-acceleration shifts as shift points, forces at the shift included.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car.
+
+    Returns
+    -------
+    tuple of ShiftPoint, length g - 1
+    """
+    ratios = model.drivetrain.overall_ratios
+    out = []
+    for i, choice in enumerate(acceleration_shifts(model)):
+        n_s = choice.shift_rpm
+        q = float(ratios[i + 1] / ratios[i])
+        v = model.speed_at_rpm(i, n_s)
+        before, _ = model.drive(i, np.array([v]))
+        after, _ = model.drive(i + 1, np.array([v]))
+        out.append(
+            ShiftPoint(
+                from_gear=i + 1,
+                to_gear=i + 2,
+                shift_rpm=n_s,
+                shift_speed_m_s=v,
+                rpm_after=n_s * q,
+                rpm_drop=n_s * (1.0 - q),
+                reason=choice.reason,
+                force_before_n=float(before[0]),
+                force_after_n=float(after[0]),
+                crossings=choice.crossings,
+                coincident_rpm=choice.coincident_rpm,
+            )
+        )
+    return tuple(out)

@@ -71,6 +71,9 @@ class DriveModel:
         Driveline efficiency applied per gear (ones for a chassis curve).
     effective_mass_kg : ndarray, shape (g,)
         Mass plus rotating equivalent per gear [kg].
+    decoupled_mass_kg : float
+        Mass plus the parts turning with the wheels, used while the clutch or converter
+        slips and the engine does not follow the wheels [kg].
     traction_limit_n : float
         Traction-limited tractive force [N].
     launch_rpm : float
@@ -87,6 +90,7 @@ class DriveModel:
     rev_limit_rpm: float
     efficiency: FloatArray
     effective_mass_kg: FloatArray
+    decoupled_mass_kg: float
     traction_limit_n: float
     launch_rpm: float
     notices: tuple[Notice, ...]
@@ -167,7 +171,10 @@ class DriveModel:
         limited = force > self.traction_limit_n
         usable = np.minimum(force, self.traction_limit_n)
         resist = self.vehicle.road_load.force_n(np.maximum(speed_m_s, 0.0))
-        return (usable - resist) / float(self.effective_mass_kg[gear]), engine, limited
+        # the engine's inertia rides with the car only while it follows the wheels
+        slipping = engine > self.coupled_rpm(gear, speed_m_s) * (1.0 + 1e-6) + 1e-6
+        mass = np.where(slipping, self.decoupled_mass_kg, float(self.effective_mass_kg[gear]))
+        return (usable - resist) / mass, engine, limited
 
 
 def drive_model(
@@ -229,6 +236,7 @@ def drive_model(
         rev_limit_rpm=limit,
         efficiency=efficiency,
         effective_mass_kg=vehicle.effective_mass_kg(drivetrain, tire),
+        decoupled_mass_kg=vehicle.decoupled_mass_kg(drivetrain, tire),
         traction_limit_n=vehicle.traction_limit_n(),
         launch_rpm=launch_rpm,
         notices=tuple(notes),

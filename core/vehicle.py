@@ -99,6 +99,19 @@ class Vehicle:
             front_torque_share=self.front_torque_share,
         )
 
+    def decoupled_mass_kg(self, drivetrain: Drivetrain, tire: Tire) -> float:
+        """Mass plus the rotating parts that turn with the wheels while the engine slips
+        (clutch slipping, converter below coupling) [kg]: the mass factor's fixed 0.04,
+        or the driveshaft and wheel inertias."""
+        if self.inertia is None:
+            return self.mass_kg * 1.04
+        final = drivetrain.final_drive_ratio * drivetrain.extra_reduction
+        r = tire.rolling_radius_m
+        return (
+            self.mass_kg
+            + (self.inertia.driveshaft_kg_m2 * final**2 + self.inertia.wheels_kg_m2) / r**2
+        )
+
     def effective_mass_kg(self, drivetrain: Drivetrain, tire: Tire) -> FloatArray:
         """Mass plus the equivalent mass of the rotating parts in each gear [kg], shape (g,)."""
         ratios = drivetrain.overall_ratios

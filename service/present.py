@@ -8,12 +8,28 @@ from typing import Any
 import numpy as np
 from numpy.typing import NDArray
 
-from core import Drivetrain, Notice, ShiftPlan, Tire, TorqueCurve
+from core import (
+    DriveModel,
+    Drivetrain,
+    Notice,
+    ShiftPlan,
+    Tire,
+    TorqueCurve,
+    cruise_rpm,
+    gradeability_by_gear,
+    top_speed,
+)
 from service.builders import request_field
 from service.cautions import CAUTIONS
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
-__all__ = ["notices_out", "rounded", "shift_plan_document", "tire_document"]
+__all__ = [
+    "notices_out",
+    "performance_document",
+    "rounded",
+    "shift_plan_document",
+    "tire_document",
+]
 
 FloatArray = NDArray[np.float64]
 
@@ -125,4 +141,28 @@ def shift_plan_document(
         "shifts": shifts,
         "warnings": notices_out(plan.notices, fields),
         "cautions": list(CAUTIONS),
+    }
+
+
+def performance_document(
+    model: DriveModel, plan: ShiftPlan, cruise_speeds_m_s: list[float], units: UnitSystem
+) -> dict[str, Any]:
+    """Top speed, gradeability, cruise rpm and grip of a described car."""
+    top = top_speed(model)
+    return {
+        "top_speed": {
+            "speed": round(from_si(top.speed_m_s, Quantity.SPEED, units), 2),
+            "gear": top.gear,
+            "limited_by": top.limited_by,
+        },
+        "gradeability": rounded(gradeability_by_gear(model), 2),
+        "cruise": [
+            {
+                "speed": round(from_si(v, Quantity.SPEED, units), 2),
+                "rpm": rounded(cruise_rpm(model, v), 0),
+            }
+            for v in cruise_speeds_m_s
+        ],
+        "traction_limit": round(from_si(model.traction_limit_n, Quantity.FORCE, units), 1),
+        "force_crossover_rpm": [round(s.shift_rpm, 1) for s in plan.shifts],
     }

@@ -1,7 +1,9 @@
 """Unit systems of the API and the one place where quantities are converted to and from SI.
 
-``metric``: N*m, kW, km/h, N, mm, kg.  ``us``: lbf*ft, hp (550 ft*lbf/s), mph, lbf, in, lb.
-Engine speed is rpm in both. Factors are exact by definition (scipy.constants agrees).
+``metric``: N*m, kW, km/h, N, mm, kg, m (distance), m^2, kPa, degC.
+``us``: lbf*ft, hp (550 ft*lbf/s), mph, lbf, in, lb, ft (distance), ft^2, inHg, degF.
+Engine speed is rpm in both. Factors are exact by definition (scipy.constants agrees);
+temperature converts with its offset (to kelvin).
 """
 
 from __future__ import annotations
@@ -34,6 +36,10 @@ class Quantity(enum.StrEnum):
     FORCE = "force"
     LENGTH = "length"
     MASS = "mass"
+    DISTANCE = "distance"
+    AREA = "area"
+    PRESSURE = "pressure"
+    TEMPERATURE = "temperature"
 
 
 @dataclass(frozen=True)
@@ -52,6 +58,10 @@ _TABLE: dict[UnitSystem, dict[Quantity, _Unit]] = {
         Quantity.FORCE: _Unit("N", 1.0),
         Quantity.LENGTH: _Unit("mm", 0.001),
         Quantity.MASS: _Unit("kg", 1.0),
+        Quantity.DISTANCE: _Unit("m", 1.0),
+        Quantity.AREA: _Unit("m^2", 1.0),
+        Quantity.PRESSURE: _Unit("kPa", 1000.0),
+        Quantity.TEMPERATURE: _Unit("degC", 1.0),
     },
     UnitSystem.US: {
         Quantity.TORQUE: _Unit("lbf*ft", _LBF_N * _FOOT_M),
@@ -60,6 +70,11 @@ _TABLE: dict[UnitSystem, dict[Quantity, _Unit]] = {
         Quantity.FORCE: _Unit("lbf", _LBF_N),
         Quantity.LENGTH: _Unit("in", 0.0254),
         Quantity.MASS: _Unit("lb", 0.45359237),
+        Quantity.DISTANCE: _Unit("ft", _FOOT_M),
+        Quantity.AREA: _Unit("ft^2", _FOOT_M**2),
+        # inch of mercury at 32 degF (NIST SP 811): 3386.389 Pa
+        Quantity.PRESSURE: _Unit("inHg", 3386.389),
+        Quantity.TEMPERATURE: _Unit("degF", 5.0 / 9.0),
     },
 }
 
@@ -69,8 +84,11 @@ def to_si(value: float, quantity: Quantity, system: UnitSystem) -> float: ...
 @overload
 def to_si(value: FloatArray, quantity: Quantity, system: UnitSystem) -> FloatArray: ...
 def to_si(value: float | FloatArray, quantity: Quantity, system: UnitSystem) -> float | FloatArray:
-    """Convert a caller's value to SI (N*m, W, m/s, N, m, kg)."""
-    return value * _TABLE[system][quantity].si_per_unit
+    """Convert a caller's value to SI (N*m, W, m/s, N, m, kg, m^2, Pa, K)."""
+    si = value * _TABLE[system][quantity].si_per_unit
+    if quantity is Quantity.TEMPERATURE:
+        return si + (273.15 if system is UnitSystem.METRIC else 273.15 - 32.0 * 5.0 / 9.0)
+    return si
 
 
 @overload
@@ -81,6 +99,8 @@ def from_si(
     value: float | FloatArray, quantity: Quantity, system: UnitSystem
 ) -> float | FloatArray:
     """Convert an SI value to the caller's unit."""
+    if quantity is Quantity.TEMPERATURE:
+        value = value - (273.15 if system is UnitSystem.METRIC else 273.15 - 32.0 * 5.0 / 9.0)
     return value / _TABLE[system][quantity].si_per_unit
 
 

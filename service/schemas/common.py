@@ -57,6 +57,10 @@ class UnitLabels(ApiModel):
     force: str = Field(description="Unit of forces.", examples=["N"])
     length: str = Field(description="Unit of lengths.", examples=["mm"])
     mass: str = Field(description="Unit of masses.", examples=["kg"])
+    distance: str = Field(description="Unit of distances run.", examples=["m"])
+    area: str = Field(description="Unit of areas.", examples=["m^2"])
+    pressure: str = Field(description="Unit of pressures.", examples=["kPa"])
+    temperature: str = Field(description="Unit of temperatures.", examples=["degC"])
 
 
 class NoticeOut(ApiModel):

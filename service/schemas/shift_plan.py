@@ -2,18 +2,22 @@
 
 from __future__ import annotations
 
-from typing import Literal
+from typing import Literal, Self
 
-from pydantic import Field
+from pydantic import Field, model_validator
 
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
+    "CruiseOut",
     "CurveTableOut",
     "EngineOut",
     "GearOut",
     "GearTableOut",
+    "PerformanceOut",
+    "PlanTopSpeedOut",
     "ShiftOut",
     "ShiftPlanRequest",
     "ShiftPlanResponse",
@@ -42,6 +46,32 @@ class ShiftPlanRequest(ApiModel):
     engine: EngineIn
     drivetrain: DrivetrainIn
     table: TableOptions = Field(default_factory=TableOptions)
+    vehicle: VehicleIn | None = Field(
+        None,
+        description="Describe the car for net-acceleration shifts, top speed, "
+        "gradeability and cruise rpm.",
+    )
+    launch: LaunchIn | None = Field(None, description="Clutch or converter (with `vehicle`).")
+    shift_criterion: Literal["tractive_force", "net_acceleration"] = Field(
+        "tractive_force",
+        description="`tractive_force`: the wheel-force crossover; `net_acceleration` (needs "
+        "`vehicle`): road load and rotating inertia counted, which moves shifts earlier.",
+    )
+    cruise_speeds: list[float] = Field(
+        default_factory=list,
+        max_length=10,
+        description="Road speeds [km/h | mph] at which to report the rpm in every gear.",
+    )
+
+    @model_validator(mode="after")
+    def _needs_vehicle(self) -> Self:
+        if self.vehicle is None and (
+            self.shift_criterion == "net_acceleration" or self.launch is not None
+        ):
+            raise ValueError("`net_acceleration` and `launch` need `vehicle`")
+        if any(not 0 < v <= 500 for v in self.cruise_speeds):
+            raise ValueError("`cruise_speeds` must each lie in (0, 500]")
+        return self
 
 
 class GearTableOut(ApiModel):
@@ -124,6 +154,33 @@ class TireOut(ApiModel):
     revs_per_km: float
 
 
+class CruiseOut(ApiModel):
+    """Engine speed in every gear at one road speed."""
+
+    speed: float = Field(description="[km/h | mph]")
+    rpm: list[float] = Field(description="Engine speed in each gear [rpm] (no slip).")
+
+
+class PlanTopSpeedOut(ApiModel):
+    """Top speed, its gear and what limits it."""
+
+    speed: float = Field(description="[km/h | mph]")
+    gear: int
+    limited_by: Literal["drag", "rev_limit"]
+
+
+class PerformanceOut(ApiModel):
+    """What the described car does: top speed, gradeability, cruise rpm, grip."""
+
+    top_speed: PlanTopSpeedOut
+    gradeability: list[float] = Field(description="Steepest steady climb per gear [%].")
+    cruise: list[CruiseOut]
+    traction_limit: float = Field(description="Traction-limited tractive force [N | lbf].")
+    force_crossover_rpm: list[float] = Field(
+        description="Wheel-force crossover shift rpm per gear change, for comparison."
+    )
+
+
 class ShiftPlanResponse(ApiModel):
     """Gear tables, shifts, warnings, cautions and a printable summary."""
 
@@ -133,6 +190,8 @@ class ShiftPlanResponse(ApiModel):
     tire: TireOut
     gears: list[GearOut]
     shifts: list[ShiftOut]
+    shift_criterion: Literal["tractive_force", "net_acceleration"]
+    performance: PerformanceOut | None = Field(description="Present when `vehicle` is given.")
     warnings: list[NoticeOut]
     cautions: list[str] = Field(description="Safety cautions that go with the advice.")
     summary: str = Field(description="Plain-text summary, at most 80 columns, printable.")

@@ -1,0 +1,156 @@
+"""Acceleration-run results to response documents and a printable summary."""
+
+from __future__ import annotations
+
+import textwrap
+from collections.abc import Mapping
+from typing import Any
+
+import numpy as np
+
+from core import OptimalShifts, RunReport, TimedDistance, TimedSpeed, sample_trace
+from core.simulate import DriveModel
+from service.cautions import CAUTIONS, SHORT_CAUTION
+from service.present import notices_out, rounded
+from service.units import Quantity, UnitSystem, from_si, unit_labels
+
+__all__ = ["run_document", "run_summary"]
+
+G = 9.80665
+
+
+def _speed(v: float | None, units: UnitSystem) -> float | None:
+    return None if v is None else round(from_si(v, Quantity.SPEED, units), 2)
+
+
+def _distance(d: TimedDistance, units: UnitSystem) -> dict[str, Any]:
+    return {
+        "name": d.name,
+        "distance": round(from_si(d.distance_m, Quantity.DISTANCE, units), 3),
+        "elapsed": None if d.elapsed_s is None else round(d.elapsed_s, 3),
+        "speed": _speed(d.speed_m_s, units),
+        "trap_speed": _speed(d.trap_speed_m_s, units),
+    }
+
+
+def _interval(s: TimedSpeed, units: UnitSystem) -> dict[str, Any]:
+    return {
+        "name": s.name,
+        "start": _speed(s.from_m_s, units),
+        "end": _speed(s.to_m_s, units),
+        "elapsed": None if s.elapsed_s is None else round(s.elapsed_s, 3),
+        "less_rollout": None if s.less_rollout_s is None else round(s.less_rollout_s, 3),
+    }
+
+
+def run_document(
+    report: RunReport,
+    model: DriveModel,
+    optimal: OptimalShifts | None,
+    criterion: str,
+    units: UnitSystem,
+    trace_points: int,
+    fields: Mapping[str, str],
+) -> dict[str, Any]:
+    """The body of an acceleration-run response, without reference and summary."""
+    run = report.run
+    trace = sample_trace(run, trace_points, report.finish_time_s)
+    finish = (
+        _distance(report.finish, units)
+        if isinstance(report.finish, TimedDistance)
+        else _interval(report.finish, units)
+    )
+    return {
+        "units": unit_labels(units),
+        "shift_criterion": criterion,
+        "shift_rpm": rounded(run.shift_rpm, 1),
+        "finish": finish,
+        "distances": [_distance(d, units) for d in report.distances],
+        "speeds": [_interval(s, units) for s in report.speeds],
+        "shifts": [
+            {
+                "from_gear": s.from_gear,
+                "to_gear": s.to_gear,
+                "time": round(s.time_s, 3),
+                "speed": _speed(s.speed_m_s, units),
+                "distance": round(from_si(s.distance_m, Quantity.DISTANCE, units), 2),
+                "rpm_before": round(s.rpm_before, 1),
+                "rpm_after": round(s.rpm_after, 1),
+            }
+            for s in run.shifts
+        ],
+        "top_speed": {
+            "speed": _speed(report.top.speed_m_s, units),
+            "gear": report.top.gear,
+            "limited_by": report.top.limited_by,
+        },
+        "traction_limit": round(from_si(model.traction_limit_n, Quantity.FORCE, units), 1),
+        "traction_limited_to": _speed(report.traction_limited_to_m_s, units),
+        "trace": {
+            "time": rounded(trace.time_s, 3),
+            "speed": rounded(from_si(trace.speed_m_s, Quantity.SPEED, units), 2),
+            "distance": rounded(from_si(trace.distance_m, Quantity.DISTANCE, units), 2),
+            "gear": trace.gear,
+            "rpm": rounded(trace.engine_rpm, 0),
+            "acceleration": rounded(trace.acceleration_m_s2 / G, 4),
+        },
+        "optimal_shifts": None
+        if optimal is None
+        else {
+            "shift_rpm": rounded(optimal.shift_rpm, 1),
+            "elapsed": round(optimal.time_s, 3),
+            "plan_elapsed": round(optimal.baseline_time_s, 3),
+            "gain": round(optimal.baseline_time_s - optimal.time_s, 3),
+            "evaluations": optimal.evaluations,
+        },
+        "warnings": notices_out(run.notices, fields),
+        "cautions": list(CAUTIONS),
+    }
+
+
+def run_summary(
+    report: RunReport, optimal: OptimalShifts | None, units: UnitSystem, reference: str | None
+) -> str:
+    """The run as a printable sheet of at most 80 columns."""
+    spd = unit_labels(units)["speed"]
+    head = "GEARWORK ACCELERATION RUN"
+    ref = f"ref: {reference}" if reference else ""
+    lines = [head + ref.rjust(80 - len(head)), ""]
+    lines.append(f"{'Distance':<10} {'Elapsed s':>9} {'Speed':>9} {'Trap':>9}  ({spd})")
+    for d in report.distances:
+        if d.elapsed_s is None:
+            continue
+        trap = "" if d.trap_speed_m_s is None else f"{_speed(d.trap_speed_m_s, units):9.1f}"
+        lines.append(
+            f"{d.name:<10} {d.elapsed_s:>9.2f} {_speed(d.speed_m_s, units) or 0.0:>9.1f} {trap:>9}"
+        )
+    lines.append("")
+    for s in report.speeds:
+        if s.elapsed_s is not None:
+            extra = "" if s.less_rollout_s is None else f" ({s.less_rollout_s:.2f} s less rollout)"
+            lines.append(f"{s.name:<14} {s.elapsed_s:6.2f} s{extra}")
+    lines.append("")
+    for sh in report.run.shifts:
+        lines.append(
+            f"Shift {sh.from_gear}-{sh.to_gear} at {sh.rpm_before:5.0f} rpm, "
+            f"{_speed(sh.speed_m_s, units):6.1f} {spd}, {sh.time_s:5.2f} s; "
+            f"lands at {sh.rpm_after:5.0f} rpm"
+        )
+    top = report.top
+    lines.append(
+        f"Top speed {_speed(top.speed_m_s, units):.1f} {spd} in gear {top.gear} "
+        f"({'drag' if top.limited_by == 'drag' else 'rev limit'})."
+    )
+    if optimal is not None:
+        rpm = ", ".join(f"{n:.0f}" for n in np.asarray(optimal.shift_rpm).tolist())
+        lines += textwrap.wrap(
+            f"Quickest shifts found: {rpm} rpm, {optimal.time_s:.3f} s against "
+            f"{optimal.baseline_time_s:.3f} s with the plan.",
+            80,
+            subsequent_indent="  ",
+        )
+    for n in report.run.notices:
+        lines += textwrap.wrap(n.message, 80, initial_indent="- ", subsequent_indent="  ")
+    lines.append("")
+    lines += textwrap.wrap("Caution: " + SHORT_CAUTION, 80, subsequent_indent="  ")
+    return "\n".join(line.encode("ascii", "replace").decode()[:80].rstrip() for line in lines)

@@ -1,0 +1,204 @@
+"""Request and response of POST /v1/acceleration-run."""
+
+from __future__ import annotations
+
+from typing import Literal, Self
+
+from pydantic import Field, model_validator
+
+from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.vehicle import LaunchIn, VehicleIn
+
+__all__ = [
+    "AccelerationRunRequest",
+    "AccelerationRunResponse",
+    "DistanceOut",
+    "OptimalShiftsOut",
+    "RunOptions",
+    "RunShiftOut",
+    "ShiftChoiceIn",
+    "SpeedIntervalIn",
+    "SpeedOut",
+    "TopSpeedOut",
+    "TraceOut",
+]
+
+
+class SpeedIntervalIn(ApiModel):
+    """An extra speed interval to time, e.g. 50-70 mph passing."""
+
+    start: float = Field(ge=0, le=500, description="From speed [km/h | mph].")
+    end: float = Field(gt=0, le=500, description="To speed [km/h | mph].")
+
+    @model_validator(mode="after")
+    def _ordered(self) -> Self:
+        if self.end <= self.start:
+            raise ValueError("`end` must be above `start`")
+        return self
+
+
+class RunOptions(ApiModel):
+    """Start, finish and what to report."""
+
+    start_speed: float = Field(
+        0.0, ge=0, le=400, description="0 for a standing start, else a rolling start [km/h | mph]."
+    )
+    rollout: float | None = Field(
+        None,
+        ge=0,
+        le=2000,
+        description="Standing start: distance rolled before the clock starts [mm | in]; "
+        "default one foot (304.8 mm, 12 in), about what a tire rolls before the beam clears "
+        "(common practice).",
+    )
+    finish_distance: float | None = Field(
+        None,
+        gt=0,
+        le=5000,
+        description="Finish distance from the clock start [m | ft]; default 1/4 mile.",
+    )
+    finish_speed: float | None = Field(
+        None, gt=0, le=500, description="Finish at this speed instead [km/h | mph]."
+    )
+    extra_distances: list[float] = Field(
+        default_factory=list,
+        max_length=10,
+        description="More distances to time [m | ft], each at most 5000.",
+    )
+    extra_speed_intervals: list[SpeedIntervalIn] = Field(default_factory=list, max_length=10)
+    trace_points: int = Field(200, ge=10, le=2000, description="Points in the sampled trace.")
+
+    @model_validator(mode="after")
+    def _finish(self) -> Self:
+        if self.finish_distance is not None and self.finish_speed is not None:
+            raise ValueError("give `finish_distance` or `finish_speed`, not both")
+        if any(not 0 < d <= 5000 for d in self.extra_distances):
+            raise ValueError("`extra_distances` must each lie in (0, 5000]")
+        return self
+
+
+class ShiftChoiceIn(ApiModel):
+    """Where to shift during the run."""
+
+    criterion: Literal["net_acceleration", "tractive_force", "custom"] = Field(
+        "net_acceleration",
+        description="`net_acceleration`: the plan with road load and rotating inertia "
+        "counted; `tractive_force`: the wheel-force crossover plan; `custom`: `rpm`.",
+    )
+    rpm: list[float] | None = Field(
+        None,
+        min_length=1,
+        max_length=11,
+        description="Custom: engine rpm at which to leave each gear, first gear first.",
+    )
+    optimise: bool = Field(
+        False,
+        description="Also search the shift rpms that minimise the time to the finish "
+        "(bounded compute budget) and report them beside the plan's.",
+    )
+
+    @model_validator(mode="after")
+    def _custom(self) -> Self:
+        if (self.criterion == "custom") != (self.rpm is not None):
+            raise ValueError("`rpm` is given with, and only with, `criterion: custom`")
+        if self.rpm is not None and any(not 0 < n <= 30000 for n in self.rpm):
+            raise ValueError("`rpm` values must lie in (0, 30000]")
+        return self
+
+
+class AccelerationRunRequest(ApiModel):
+    """A curve, a drivetrain, a vehicle and a launch."""
+
+    units: UnitsField
+    reference: Reference
+    engine: EngineIn
+    drivetrain: DrivetrainIn
+    vehicle: VehicleIn
+    launch: LaunchIn = Field(default_factory=LaunchIn)
+    shifts: ShiftChoiceIn = Field(default_factory=ShiftChoiceIn)
+    run: RunOptions = Field(default_factory=RunOptions)
+
+
+class DistanceOut(ApiModel):
+    """Elapsed time over a distance from the clock start."""
+
+    name: str
+    distance: float = Field(description="Distance [m | ft].")
+    elapsed: float | None = Field(description="Elapsed time [s]; null if not reached.")
+    speed: float | None = Field(description="Speed at the line [km/h | mph].")
+    trap_speed: float | None = Field(description="Average over the last 66 ft [km/h | mph].")
+
+
+class SpeedOut(ApiModel):
+    """Elapsed time between two speeds."""
+
+    name: str
+    start: float = Field(description="From speed [km/h | mph].")
+    end: float = Field(description="To speed [km/h | mph].")
+    elapsed: float | None = Field(description="From first motion (or `start`) [s].")
+    less_rollout: float | None = Field(description="Standing start, less the rollout time [s].")
+
+
+class RunShiftOut(ApiModel):
+    """One upshift in the run."""
+
+    from_gear: int
+    to_gear: int
+    time: float = Field(description="Since first motion [s].")
+    speed: float = Field(description="As the shift begins [km/h | mph].")
+    distance: float = Field(description="From the start [m | ft].")
+    rpm_before: float
+    rpm_after: float
+
+
+class TopSpeedOut(ApiModel):
+    """Top speed, its gear and what limits it."""
+
+    speed: float = Field(description="[km/h | mph].")
+    gear: int
+    limited_by: Literal["drag", "rev_limit"]
+
+
+class TraceOut(ApiModel):
+    """The run sampled evenly in time."""
+
+    time: list[float] = Field(description="[s]")
+    speed: list[float] = Field(description="[km/h | mph]")
+    distance: list[float] = Field(description="[m | ft]")
+    gear: list[int]
+    rpm: list[float] = Field(description="Engine speed [rpm].")
+    acceleration: list[float] = Field(description="Net acceleration [g].")
+
+
+class OptimalShiftsOut(ApiModel):
+    """Shift rpms that minimise the time to the finish, beside the plan's."""
+
+    shift_rpm: list[float]
+    elapsed: float = Field(description="Finish time with them [s].")
+    plan_elapsed: float = Field(description="Finish time with the plan's shifts [s].")
+    gain: float = Field(description="plan_elapsed - elapsed [s].")
+    evaluations: int = Field(description="Simulated runs spent in the search.")
+
+
+class AccelerationRunResponse(ApiModel):
+    """Timed distances and speeds, shifts, top speed, the trace, warnings and cautions."""
+
+    reference: str | None
+    units: UnitLabels
+    shift_criterion: Literal["net_acceleration", "tractive_force", "custom"]
+    shift_rpm: list[float] = Field(description="Shift rpm used for each gear change.")
+    finish: DistanceOut | SpeedOut
+    distances: list[DistanceOut]
+    speeds: list[SpeedOut]
+    shifts: list[RunShiftOut]
+    top_speed: TopSpeedOut
+    traction_limit: float = Field(description="Traction-limited tractive force [N | lbf].")
+    traction_limited_to: float | None = Field(
+        description="Highest speed at which the tires limited the drive [km/h | mph]."
+    )
+    trace: TraceOut
+    optimal_shifts: OptimalShiftsOut | None
+    warnings: list[NoticeOut]
+    cautions: list[str]
+    summary: str
