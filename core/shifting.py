@@ -53,6 +53,9 @@ class ShiftReason(enum.Enum):
 
     CROSSOVER = "crossover"
     REV_LIMIT = "rev_limit"
+    DRAG_LIMIT = "drag_limit"
+    """Net-acceleration plans only: the gear stops accelerating (road load) before its rev
+    limit and before the next gear overtakes it, so the shift comes where it tops out."""
 
 
 @dataclass(frozen=True)
@@ -158,9 +161,22 @@ def best_shifts(
             choices.append(ShiftChoice(float(hi[k]), ShiftReason.REV_LIMIT, 0, None, False))
             continue
         g, d = grid[k], diff[k]
+        top = float(hi[k])
+        stalled = np.flatnonzero(e_cur[k] <= 0.0)
+        if stalled.size:  # the car cannot reach these speeds in the current gear
+            j = int(stalled[0])
+            if j == 0:
+                choices.append(ShiftChoice(float(lo[k]), ShiftReason.DRAG_LIMIT, 0, None, False))
+                continue
+            e0, e1 = float(e_cur[k][j - 1]), float(e_cur[k][j])
+            top = float(g[j - 1] + e0 / (e0 - e1) * (g[j] - g[j - 1]))
+            keep = g <= top
+            g, d = np.append(g[keep], top), np.append(d[keep], d[keep][-1])
         band = _coincident_band(g, d, float(scale[k]))
         roots = []
-        for j in np.flatnonzero(falling[k]).tolist():
+        for j in np.flatnonzero(falling[k][: g.size - 1]).tolist():
+            if g[j + 1] > top:
+                break
             if d[j + 1] == 0.0:
                 root = float(g[j + 1])
             elif diff_scalar is None:
@@ -169,17 +185,17 @@ def best_shifts(
                 root = float(brentq(lambda x, k=k: diff_scalar(k, x), g[j], g[j + 1], xtol=1e-7))
             if band is None or not band[0] <= root <= band[1]:
                 roots.append(root)
-        candidates = [float(lo[k]), float(hi[k]), *roots]
+        candidates = [float(lo[k]), top, *roots]
         if band is not None:
             candidates.append(band[1])
-        at = np.interp(candidates, g, cost[k])
+        at = np.interp(candidates, grid[k], cost[k])
         best = candidates[int(np.argmin(at))]
         if band is not None and band[0] <= best <= band[1]:
             best = band[1]
         below = best == float(lo[k]) and bool(d[0] < 0.0)
-        at_limit = best >= float(hi[k]) and not any(
-            abs(r - float(hi[k])) <= 1e-9 * float(hi[k]) for r in roots
-        )
-        reason = ShiftReason.REV_LIMIT if at_limit else ShiftReason.CROSSOVER
+        at_end = best >= top and not any(abs(r - top) <= 1e-9 * top for r in roots)
+        reason = ShiftReason.CROSSOVER
+        if at_end:
+            reason = ShiftReason.REV_LIMIT if top >= float(hi[k]) else ShiftReason.DRAG_LIMIT
         choices.append(ShiftChoice(best, reason, len(roots), band, below))
     return tuple(choices)

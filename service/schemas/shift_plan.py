@@ -102,9 +102,10 @@ class ShiftOut(ApiModel):
     to_gear: int
     shift_rpm: float = Field(description="Engine speed at the shift [rpm].")
     shift_speed: float = Field(description="Road speed at the shift [km/h | mph].")
-    reason: Literal["crossover", "rev_limit"] = Field(
-        description="`crossover`: the next gear's tractive force overtakes this gear's; "
-        "`rev_limit`: it never does before the rev limit."
+    reason: Literal["crossover", "rev_limit", "drag_limit"] = Field(
+        description="`crossover`: the next gear's tractive force (or net acceleration) "
+        "overtakes this gear's; `rev_limit`: it never does before the rev limit; "
+        "`drag_limit` (net-acceleration plans): this gear stops accelerating first."
     )
     rpm_after: float = Field(description="Engine speed right after the shift [rpm].")
     rpm_drop: float = Field(description="shift_rpm - rpm_after [rpm].")
