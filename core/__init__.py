@@ -4,6 +4,9 @@ No web framework, no I/O, no module state. Functions take floats, NumPy arrays o
 dataclasses and return frozen dataclasses.
 """
 
+from core.altimeter import (
+    station_pressure_from_altimeter_pa,
+)
 from core.atmosphere import (
     AirState,
     air_density_kg_m3,
@@ -20,6 +23,16 @@ from core.converter_matching import (
     converter_operating_points,
     stall_speed_rpm,
 )
+from core.correction import (
+    Correction,
+    CorrectionStandard,
+    PressureBasis,
+    ReferenceConditions,
+    apply_correction,
+    correction_factor,
+    correction_factors,
+    reference_conditions,
+)
 from core.curves import (
     CurveSource,
     Interpolation,
@@ -31,6 +44,10 @@ from core.curves import (
 from core.drivetrain import (
     Drivetrain,
     make_drivetrain,
+)
+from core.dynofile import (
+    DynoRun,
+    read_dyno_text,
 )
 from core.errors import (
     CorrectionError,
@@ -160,7 +177,9 @@ __all__ = [
     "AxleGeometry",
     "AxleLoads",
     "ConverterOperatingPoints",
+    "Correction",
     "CorrectionError",
+    "CorrectionStandard",
     "Coupling",
     "CurveError",
     "CurveSource",
@@ -171,6 +190,7 @@ __all__ = [
     "Drivetrain",
     "DrivetrainError",
     "DynoFileError",
+    "DynoRun",
     "EngineTorqueFn",
     "GearSet",
     "GearTable",
@@ -181,6 +201,8 @@ __all__ = [
     "Launch",
     "Notice",
     "OptimalShifts",
+    "PressureBasis",
+    "ReferenceConditions",
     "RoadLoad",
     "RoadLoadForm",
     "RotatingInertia",
@@ -215,9 +237,12 @@ __all__ = [
     "acceleration_shifts",
     "air_density_kg_m3",
     "air_state",
+    "apply_correction",
     "axle_loads",
     "best_shifts",
     "converter_operating_points",
+    "correction_factor",
+    "correction_factors",
     "cruise_rpm",
     "drive_model",
     "driven_gear_change",
@@ -236,6 +261,8 @@ __all__ = [
     "pchip_coefficients",
     "planned_shift_rpm",
     "progressive_gear_set",
+    "read_dyno_text",
+    "reference_conditions",
     "resolve_rev_limit",
     "road_speed_m_s",
     "rotating_mass_kg",
@@ -252,6 +279,7 @@ __all__ = [
     "speedometer_setup",
     "stall_speed_rpm",
     "standard_pressure_pa",
+    "station_pressure_from_altimeter_pa",
     "time_at_distance",
     "time_at_speed",
     "timed_distance",
