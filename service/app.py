@@ -8,7 +8,7 @@ from service.cache import ResultCache
 from service.limits import BodySizeLimit
 from service.openapi import build_openapi
 from service.problems import install_problem_handlers
-from service.routes import acceleration, health, shift_plan
+from service.routes import acceleration, dyno, health, shift_plan
 from service.settings import get_settings
 
 __all__ = ["app", "create_app"]
@@ -35,12 +35,14 @@ def create_app() -> FastAPI:
         openapi_tags=[
             {"name": "shift plan", "description": "Per-gear force and shift points."},
             {"name": "acceleration run", "description": "Timed runs of a described car."},
+            {"name": "dyno", "description": "Correction to standard air; dyno-file import."},
             {"name": "health", "description": "Liveness."},
         ],
     )
     app.include_router(health.router)
     app.include_router(shift_plan.router)
     app.include_router(acceleration.router)
+    app.include_router(dyno.router)
     install_problem_handlers(app)
     # outermost last: the size limit runs before the cache reads the body
     app.add_middleware(

@@ -1,0 +1,89 @@
+"""Request and response of the dyno endpoints: correction to standard air, file import."""
+
+from __future__ import annotations
+
+from typing import Literal, Self
+
+from pydantic import Field, model_validator
+
+from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.inputs import CurveIn
+
+__all__ = [
+    "AmbientIn",
+    "CorrectionOut",
+    "DynoCorrectionRequest",
+    "DynoCorrectionResponse",
+    "ImportedCurveResponse",
+]
+
+Standard = Literal["sae_j1349_1990", "sae_j1349_2004", "sae_j607", "din_70020", "iso_1585"]
+
+
+class AmbientIn(ApiModel):
+    """Air in the dyno cell during the run."""
+
+    temperature: float = Field(ge=-40, le=140, description="Intake air temperature [degC | degF].")
+    relative_humidity: float = Field(ge=0, le=100, description="Relative humidity [%].")
+    station_pressure: float | None = Field(
+        None, gt=50, le=120, description="Absolute barometric pressure [kPa | inHg]."
+    )
+    altimeter_setting: float | None = Field(
+        None, gt=50, le=120, description="Altimeter setting (sea-level reduced) [kPa | inHg]."
+    )
+    elevation: float | None = Field(
+        None, ge=-500, le=30000, description="Elevation, with `altimeter_setting` [m | ft]."
+    )
+
+    @model_validator(mode="after")
+    def _pressure(self) -> Self:
+        if (self.station_pressure is None) == (self.altimeter_setting is None):
+            raise ValueError("give exactly one of `station_pressure` or `altimeter_setting`")
+        if (self.altimeter_setting is None) != (self.elevation is None):
+            raise ValueError("`elevation` goes with, and only with, `altimeter_setting`")
+        return self
+
+
+class DynoCorrectionRequest(ApiModel):
+    """Ambient conditions, and optionally the curve to correct."""
+
+    units: UnitsField
+    reference: Reference
+    ambient: AmbientIn
+    standard: Standard = Field(
+        "sae_j1349_2004", description="The standard whose factor is applied to `curve`."
+    )
+    curve: CurveIn | None = Field(None, description="A measured curve to correct.")
+
+
+class CorrectionOut(ApiModel):
+    """One standard's correction factor."""
+
+    standard: Standard
+    factor: float = Field(description="Multiply measured torque and power by this.")
+    within_validity: bool = Field(description="Inside the range the standard states.")
+    dry_pressure: float = Field(description="Dry-air partial pressure [kPa | inHg].")
+    vapour_pressure: float = Field(description="Water-vapour pressure [kPa | inHg].")
+
+
+class DynoCorrectionResponse(ApiModel):
+    """Factors under every standard, and the corrected curve when one was sent."""
+
+    reference: str | None
+    units: UnitLabels
+    station_pressure: float = Field(description="Station pressure used [kPa | inHg].")
+    corrections: list[CorrectionOut]
+    applied: Standard
+    corrected_curve: CurveIn | None
+    warnings: list[NoticeOut]
+
+
+class ImportedCurveResponse(ApiModel):
+    """A dyno file read into a curve every other endpoint accepts."""
+
+    units: UnitLabels
+    curve: CurveIn = Field(description="rpm and torque in the caller's units.")
+    columns: dict[str, str | None] = Field(description="Columns used, as headed in the file.")
+    delimiter: str
+    rows: int = Field(description="Data rows read.")
+    warnings: list[NoticeOut]
