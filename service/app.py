@@ -8,7 +8,19 @@ from service.cache import ResultCache
 from service.limits import BodySizeLimit
 from service.openapi import build_openapi
 from service.problems import install_problem_handlers
-from service.routes import acceleration, dyno, health, shift_plan
+from service.routes import (
+    acceleration,
+    charts,
+    comparison,
+    demo,
+    design,
+    dyno,
+    health,
+    log_analysis,
+    reports,
+    shift_plan,
+    sweep,
+)
 from service.settings import get_settings
 
 __all__ = ["app", "create_app"]
@@ -43,6 +55,8 @@ def create_app() -> FastAPI:
     app.include_router(shift_plan.router)
     app.include_router(acceleration.router)
     app.include_router(dyno.router)
+    for module in (comparison, sweep, design, reports, charts, log_analysis, demo):
+        app.include_router(module.router)
     install_problem_handlers(app)
     # outermost last: the size limit runs before the cache reads the body
     app.add_middleware(

@@ -1,0 +1,9 @@
+"""Charts of tractive force."""
+
+from __future__ import annotations
+
+from fastapi import APIRouter
+
+__all__ = ["router"]
+
+router = APIRouter(prefix="/v1", tags=["charts"])

@@ -1,0 +1,9 @@
+"""Compare setups side by side."""
+
+from __future__ import annotations
+
+from fastapi import APIRouter
+
+__all__ = ["router"]
+
+router = APIRouter(prefix="/v1", tags=["comparison"])

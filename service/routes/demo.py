@@ -1,0 +1,9 @@
+"""Reference web page."""
+
+from __future__ import annotations
+
+from fastapi import APIRouter
+
+__all__ = ["router"]
+
+router = APIRouter(tags=["demo"])

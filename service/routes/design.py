@@ -1,0 +1,9 @@
+"""Gear-set spacing and speedometer correction."""
+
+from __future__ import annotations
+
+from fastapi import APIRouter
+
+__all__ = ["router"]
+
+router = APIRouter(prefix="/v1", tags=["gear design"])

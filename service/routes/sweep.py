@@ -1,0 +1,9 @@
+"""Rank final-drive ratios."""
+
+from __future__ import annotations
+
+from fastapi import APIRouter
+
+__all__ = ["router"]
+
+router = APIRouter(prefix="/v1", tags=["final drive sweep"])
