@@ -10,6 +10,7 @@ from service.openapi import build_openapi
 from service.problems import install_problem_handlers
 from service.routes import (
     acceleration,
+    chassis,
     charts,
     comparison,
     demo,
@@ -55,7 +56,7 @@ def create_app() -> FastAPI:
     app.include_router(shift_plan.router)
     app.include_router(acceleration.router)
     app.include_router(dyno.router)
-    for module in (comparison, sweep, design, reports, charts, log_analysis, demo):
+    for module in (comparison, sweep, design, reports, charts, log_analysis, chassis, demo):
         app.include_router(module.router)
     install_problem_handlers(app)
     # outermost last: the size limit runs before the cache reads the body
