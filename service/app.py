@@ -10,8 +10,8 @@ from service.openapi import build_openapi
 from service.problems import install_problem_handlers
 from service.routes import (
     acceleration,
-    chassis,
     charts,
+    chassis,
     comparison,
     demo,
     design,
