@@ -112,13 +112,15 @@ def top_speed(model: DriveModel) -> TopSpeed:
         force, _ = model.drive(g, v)
         spare = np.minimum(force, model.traction_limit_n) - model.vehicle.road_load.force_n(v)
         spare[-1] = min(spare[-1], spare[-2])  # the limiter cuts drive just past the limit
-        if spare[0] <= 0.0:
-            continue
-        neg = np.flatnonzero(spare <= 0.0)
+        strong = np.flatnonzero(spare > 0.0)
+        if strong.size == 0:
+            continue  # the gear cannot hold any speed in its range
+        first = int(strong[0])  # the car reaches this gear's range above here
+        neg = np.flatnonzero(spare[first:] <= 0.0)
         if neg.size == 0:
             by_gear[g] = hi
             continue
-        k = int(neg[0])
+        k = first + int(neg[0])
         frac = spare[k - 1] / (spare[k - 1] - spare[k])
         by_gear[g] = v[k - 1] + frac * (v[k] - v[k - 1])
         limits[g] = "drag"

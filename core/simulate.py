@@ -382,9 +382,42 @@ def simulate_run(
     held_by: str | None = None
     target_v = min(max(cover_speed_m_s, 0.0), _MAX_SPEED)
 
+    def shift(g: int, v_out: float, rpm_before: float) -> float:
+        """No drive for shift_time_s, slowing at the road-load deceleration."""
+        nonlocal t0, x0
+        ts = model.launch.shift_time_s
+        decel = float(model.vehicle.road_load.force_n(np.array([v_out]))[0])
+        decel /= model.vehicle.mass_kg
+        v_after = max(v_out - decel * ts, 0.0)
+        n_after = float(model.coupled_rpm(g + 1, np.array([v_after]))[0])
+        events.append(RunShift(g + 1, g + 2, t0, v_out, x0, rpm_before, max(n_after, 0.0)))
+        if ts > 0.0:
+            parts["t"].append(np.array([t0 + ts]))
+            parts["v"].append(np.array([v_after]))
+            parts["x"].append(np.array([x0 + 0.5 * (v_out + v_after) * ts]))
+            parts["n"].append(np.array([n_after]))
+            parts["a"].append(np.array([-decel]))
+            gear_parts.append(np.array([g + 2], dtype=np.int64))
+            limited_parts.append(np.array([False]))
+            t0, x0 = t0 + ts, x0 + 0.5 * (v_out + v_after) * ts
+        return v_after
+
     while True:
         v_top = float(shift_speed[g])
         v_end = min(v_top, _MAX_SPEED)
+        if g < gears - 1 and v_in >= v_end:
+            # entered above its own shift speed: the gear is left at once
+            notes.append(
+                Notice(
+                    "gear_left_at_once",
+                    f"Gear {g + 1} lands above its shift rpm ({shifts_in[g]:.0f}); it is "
+                    "left as soon as it is entered.",
+                    f"shift_rpm[{g}]",
+                )
+            )
+            rpm_in = float(model.coupled_rpm(g, np.array([v_in]))[0])
+            g, v_in, launching = g + 1, shift(g, v_in, rpm_in), False
+            continue
         grid = np.linspace(v_in, v_end, _POINTS_PER_GEAR)
         if launching and model.launch.coupling is Coupling.CLUTCH:
             v_lock = model.speed_at_rpm(g, model.launch_rpm)
@@ -442,23 +475,7 @@ def simulate_run(
             break
         if x0 >= cover_distance_m and v_out >= target_v:
             break
-        # the shift: no drive for shift_time_s, slowing at the road-load deceleration
-        ts = model.launch.shift_time_s
-        decel = float(model.vehicle.road_load.force_n(np.array([v_out]))[0])
-        decel /= model.vehicle.mass_kg
-        v_after = max(v_out - decel * ts, 0.0)
-        n_after = float(model.coupled_rpm(g + 1, np.array([v_after]))[0])
-        events.append(RunShift(g + 1, g + 2, t0, v_out, x0, float(rpm[-1]), max(n_after, 0.0)))
-        if ts > 0.0:
-            parts["t"].append(np.array([t0 + ts]))
-            parts["v"].append(np.array([v_after]))
-            parts["x"].append(np.array([x0 + 0.5 * (v_out + v_after) * ts]))
-            parts["n"].append(np.array([n_after]))
-            parts["a"].append(np.array([-decel]))
-            gear_parts.append(np.array([g + 2], dtype=np.int64))
-            limited_parts.append(np.array([False]))
-            t0, x0 = t0 + ts, x0 + 0.5 * (v_out + v_after) * ts
-        g, v_in, launching = g + 1, v_after, False
+        g, v_in, launching = g + 1, shift(g, v_out, float(rpm[-1])), False
 
     time = np.concatenate(parts["t"])
     speed = np.concatenate(parts["v"])

@@ -105,7 +105,7 @@ class Vehicle:
         or the driveshaft and wheel inertias."""
         if self.inertia is None:
             return self.mass_kg * 1.04
-        final = drivetrain.final_drive_ratio * drivetrain.extra_reduction
+        final = drivetrain.final_drive_ratio  # a transfer case or drop gear sits ahead of it
         r = tire.rolling_radius_m
         return (
             self.mass_kg
@@ -119,7 +119,7 @@ class Vehicle:
             return self.mass_kg * mass_factor(ratios)
         extra = rotating_mass_kg(
             ratios,
-            drivetrain.final_drive_ratio * drivetrain.extra_reduction,
+            drivetrain.final_drive_ratio,  # the driveshaft turns at the final drive ratio
             tire.rolling_radius_m,
             engine_inertia_kg_m2=self.inertia.engine_kg_m2,
             driveshaft_inertia_kg_m2=self.inertia.driveshaft_kg_m2,
