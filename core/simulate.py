@@ -371,6 +371,26 @@ def simulate_run(
         [model.speed_at_rpm(g, float(n)) for g, n in enumerate(shifts_in.tolist())]
         + [model.speed_at_rpm(gears - 1, model.rev_limit_rpm)]
     )
+    if start_speed_m_s >= shift_speed[-1]:
+        raise SimulationError(
+            f"`start_speed_m_s` ({start_speed_m_s:.1f} m/s) must be below the top gear's "
+            f"rev-limit speed ({shift_speed[-1]:.1f} m/s)",
+            parameter="start_speed_m_s",
+        )
+    if (
+        start_speed_m_s == 0.0
+        and model.launch.coupling is Coupling.CLUTCH
+        and gears > 1
+        and model.launch_rpm >= shifts_in[0]
+    ):
+        notes.append(
+            Notice(
+                "launch_above_shift",
+                f"The launch rpm ({model.launch_rpm:.0f}) is at or above the first shift rpm "
+                f"({shifts_in[0]:.0f}): first gear is left while the clutch still slips.",
+                "launch_rpm",
+            )
+        )
     g = _start_gear(model, start_speed_m_s, shift_speed)
     launching = start_speed_m_s == 0.0
     v_in, t0, x0 = start_speed_m_s, 0.0, 0.0
