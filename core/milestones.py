@@ -53,18 +53,35 @@ STANDARD_SPEEDS: tuple[tuple[str, float, float], ...] = (
 """Name, start and end speed [m/s]."""
 
 
+def _passing(run: RunResult, distance_m: float) -> tuple[float, float] | None:
+    """Time [s] and speed [m/s] as the run passes ``distance_m``, taking the acceleration
+    as constant between trace points (exact for constant acceleration)."""
+    x = run.distance_m
+    if distance_m > x[-1] * (1 + 1e-12) or distance_m < 0.0:
+        return None
+    i = int(np.clip(np.searchsorted(x, distance_m, side="right") - 1, 0, x.size - 2))
+    t0, t1 = float(run.time_s[i]), float(run.time_s[i + 1])
+    v0, v1 = float(run.speed_m_s[i]), float(run.speed_m_s[i + 1])
+    dx = distance_m - float(x[i])
+    if t1 <= t0 or dx <= 0.0:
+        return t0, v0
+    a = (v1 - v0) / (t1 - t0)
+    root = max(v0 * v0 + 2.0 * a * dx, 0.0) ** 0.5
+    tau = 2.0 * dx / (v0 + root) if v0 + root > 0.0 else 0.0
+    tau = min(tau, t1 - t0)
+    return t0 + tau, v0 + a * tau
+
+
 def time_at_distance(run: RunResult, distance_m: float) -> float | None:
     """Time [s] from the start of motion at which the run reaches ``distance_m`` [m]."""
-    if distance_m > run.distance_m[-1] * (1 + 1e-12) or distance_m < 0.0:
-        return None
-    return float(np.interp(distance_m, run.distance_m, run.time_s))
+    passing = _passing(run, distance_m)
+    return None if passing is None else passing[0]
 
 
 def speed_at_distance(run: RunResult, distance_m: float) -> float | None:
     """Road speed [m/s] as the run passes ``distance_m`` [m]."""
-    if distance_m > run.distance_m[-1] * (1 + 1e-12) or distance_m < 0.0:
-        return None
-    return float(np.interp(distance_m, run.distance_m, run.speed_m_s))
+    passing = _passing(run, distance_m)
+    return None if passing is None else passing[1]
 
 
 def time_at_speed(run: RunResult, speed_m_s: float) -> float | None:

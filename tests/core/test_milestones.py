@@ -37,11 +37,9 @@ MPH = constants.mile / constants.hour  # 0.44704 m/s
 ROLLOUT_M = 0.29  # about 11.5 in (common practice: roughly a foot, tire-dependent)
 QUARTER_MILE_M = 1320.0 * FOOT_M
 ACCEL = 5.0  # [m/s^2]
-# The clock interpolates time linearly in distance between trace points. Under uniform
-# acceleration x grows as t^2, so that places the rollout instant about 1.3 ms early at
-# this trace's spacing; 1e-3 covers it over 60 ft (2.4 s) and is far tighter than the
-# 0.2 % asked of the integration.
-TIMING_RTOL = 1e-3
+# The clock takes the acceleration as constant between trace points, which is exact here
+# (closed form: uniform acceleration), so only rounding is left.
+TIMING_RTOL = 1e-9
 
 
 def reached(value: float | None) -> float:
@@ -126,7 +124,7 @@ def test_elapsed_time_after_rollout_matches_uniform_acceleration(
     assert timed.name == name
     assert timed.elapsed_s is not None
     assert_allclose(timed.elapsed_s, t_uniform(d + ROLLOUT_M) - t_uniform(ROLLOUT_M), TIMING_RTOL)
-    assert_allclose(reached(timed.speed_m_s), math.sqrt(2.0 * ACCEL * (d + ROLLOUT_M)), rtol=1e-4)
+    assert_allclose(reached(timed.speed_m_s), math.sqrt(2.0 * ACCEL * (d + ROLLOUT_M)), rtol=1e-9)
     assert timed.trap_speed_m_s is None  # not asked for
 
 
@@ -181,8 +179,8 @@ def test_speed_to_speed_time_is_the_speed_gain_over_the_acceleration(run: RunRes
 def test_time_and_speed_at_a_distance_follow_uniform_acceleration(run: RunResult) -> None:
     # closed form: t = sqrt(2x/a), v = sqrt(2ax), timed from the first motion
     for x in (10.0, 100.0, 400.0):
-        assert_allclose(reached(time_at_distance(run, x)), t_uniform(x), rtol=1e-4)
-        assert_allclose(reached(speed_at_distance(run, x)), math.sqrt(2.0 * ACCEL * x), rtol=1e-4)
+        assert_allclose(reached(time_at_distance(run, x)), t_uniform(x), rtol=1e-9)
+        assert_allclose(reached(speed_at_distance(run, x)), math.sqrt(2.0 * ACCEL * x), rtol=1e-9)
 
 
 def test_distances_and_speeds_the_run_never_reaches_give_none(run: RunResult) -> None:
