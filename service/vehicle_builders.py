@@ -67,8 +67,13 @@ def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
     with core_fields(VEHICLE_FIELDS):
         mass = to_si(body.mass, Quantity.MASS, units)
         air = body.air
+        temperature_k = (
+            288.15
+            if air.temperature is None
+            else to_si(air.temperature, Quantity.TEMPERATURE, units)
+        )
         state = air_state(
-            to_si(air.temperature, Quantity.TEMPERATURE, units),
+            temperature_k,
             air.relative_humidity / 100.0,
             pressure_pa=None
             if air.pressure is None

@@ -1,9 +1,61 @@
-"""Charts of tractive force."""
+"""POST /v1/charts/tractive-force: tractive force by gear as SVG or PNG, by Accept."""
 
 from __future__ import annotations
 
-from fastapi import APIRouter
+from typing import Any
+
+from fastapi import APIRouter, Request
+from starlette.concurrency import run_in_threadpool
+from starlette.responses import Response
+
+from service.chart_data import tractive_force_chart
+from service.charts import ChartFormat, render_chart
+from service.computations import compute_shift_plan
+from service.deps import JsonBody
+from service.negotiation import inline_disposition, require_media_type
+from service.openapi import PROBLEM_RESPONSES
+from service.schemas.common import Problem
+from service.schemas.shift_plan import ShiftPlanRequest
 
 __all__ = ["router"]
 
 router = APIRouter(prefix="/v1", tags=["charts"])
+
+OFFERED = (ChartFormat.SVG.value, ChartFormat.PNG.value)  # SVG is the default
+_EXTENSIONS = {ChartFormat.SVG: "svg", ChartFormat.PNG: "png"}
+RESPONSES: dict[int | str, dict[str, Any]] = {
+    200: {
+        "description": "The chart: SVG (default) or PNG.",
+        "content": {
+            ChartFormat.SVG.value: {"schema": {"type": "string"}},
+            ChartFormat.PNG.value: {"schema": {"type": "string", "format": "binary"}},
+        },
+    },
+    406: {"model": Problem, "description": "The Accept header allows neither image type."},
+    **PROBLEM_RESPONSES,
+}
+
+
+@router.post(
+    "/charts/tractive-force",
+    operation_id="create_tractive_force_chart",
+    summary="Chart of tractive force by gear against road speed",
+    response_class=Response,
+    responses=RESPONSES,
+)
+async def create_tractive_force_chart(
+    body: ShiftPlanRequest, request: Request, _json: JsonBody
+) -> Response:
+    """Tractive force in every gear against road speed with the shift points marked, and
+    with `vehicle` the road load and the traction limit; made to read in greyscale print.
+    The Accept header picks `image/svg+xml` (default) or `image/png`."""
+    fmt = ChartFormat(require_media_type(request.headers.get("accept"), OFFERED))
+    chart = tractive_force_chart(compute_shift_plan(body))
+    image = await run_in_threadpool(render_chart, chart, fmt)
+    headers = {
+        "Vary": "Accept",
+        "Content-Disposition": inline_disposition(
+            "tractive-force", body.reference, _EXTENSIONS[fmt]
+        ),
+    }
+    return Response(image, media_type=fmt.value, headers=headers)

@@ -4,9 +4,10 @@ from __future__ import annotations
 
 from typing import Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
@@ -109,6 +110,8 @@ class ShiftChoiceIn(ApiModel):
 
 class AccelerationRunRequest(ApiModel):
     """A curve, a drivetrain, a vehicle and a launch."""
+
+    model_config = ConfigDict(json_schema_extra={"examples": [ACCELERATION_RUN_EXAMPLE]})
 
     units: UnitsField
     reference: Reference

@@ -4,9 +4,10 @@ from __future__ import annotations
 
 from typing import Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.examples import SHIFT_PLAN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
@@ -40,6 +41,8 @@ class TableOptions(ApiModel):
 
 class ShiftPlanRequest(ApiModel):
     """A torque curve and a drivetrain."""
+
+    model_config = ConfigDict(json_schema_extra={"examples": [SHIFT_PLAN_EXAMPLE]})
 
     units: UnitsField
     reference: Reference

@@ -14,7 +14,12 @@ __all__ = ["AirIn", "ConverterIn", "InertiaIn", "LaunchIn", "RoadLoadIn", "Vehic
 class AirIn(ApiModel):
     """Ambient air, for the density in aerodynamic drag. Default: ISO standard sea level."""
 
-    temperature: float = Field(15.0, ge=-60, le=140, description="Air temperature [degC | degF].")
+    temperature: float | None = Field(
+        None,
+        ge=-60,
+        le=140,
+        description="Air temperature [degC | degF]; default 15 degC (ISO 2533 sea level).",
+    )
     pressure: float | None = Field(
         None, gt=0, le=120, description="Station (absolute) pressure [kPa | inHg]."
     )

@@ -1,0 +1,92 @@
+"""Chart and report rendering benchmark: matplotlib import, first render, steady renders.
+
+Run with ``python -m bench.charts``. Figures are printed, never asserted: the machine is
+shared, so each line gives the median and the 99th percentile of repeated renders.
+"""
+
+from __future__ import annotations
+
+import functools
+import json
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+from bench.common import time_call
+
+DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
+RUNS = 40
+
+
+def _import_cost(modules: str) -> float:
+    """Seconds to import ``modules`` in a fresh interpreter."""
+    code = (
+        f"import time; t = time.perf_counter(); import {modules}; print(time.perf_counter() - t)"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True
+    ).stdout
+    return float(out.strip().splitlines()[-1])
+
+
+def main() -> None:
+    mpl = "matplotlib.figure, matplotlib.backends.backend_agg, matplotlib.backends.backend_pdf"
+    print(f"import matplotlib (figure, Agg, PDF), fresh process: {_import_cost(mpl):.3f} s")
+    print(
+        f"import service.charts and what it needs, fresh process: "
+        f"{_import_cost('service.charts'):.3f} s"
+    )
+
+    from service.chart_data import run_chart, tractive_force_chart
+    from service.charts import ChartFormat, render_chart, svg_markup
+    from service.computations import compute_acceleration_run, compute_shift_plan
+    from service.report_html import render_html
+    from service.report_pdf import render_pdf
+    from service.report_run import acceleration_run_report
+    from service.report_text import render_text
+    from service.reports import shift_plan_report
+    from service.schemas.acceleration import AccelerationRunRequest
+    from service.schemas.shift_plan import ShiftPlanRequest
+
+    coupe = ShiftPlanRequest.model_validate(json.loads((DATA / "demo_coupe_us.json").read_text()))
+    sedan = AccelerationRunRequest.model_validate(
+        json.loads((DATA / "demo_sedan_run_metric.json").read_text())
+    )
+    plan = compute_shift_plan(coupe)
+    force = tractive_force_chart(plan)
+    t0 = time.perf_counter()
+    render_chart(force, ChartFormat.SVG)
+    print(f"first SVG render in the process (fonts loaded): {time.perf_counter() - t0:.3f} s")
+
+    print(f"tractive-force chart, demo coupe (6 gears), {RUNS} renders each")
+    print("   chart data    ", time_call(lambda: tractive_force_chart(plan), runs=RUNS, warmup=3))
+    for fmt in ChartFormat:
+        timing = time_call(functools.partial(render_chart, force, fmt), runs=RUNS, warmup=3)
+        size = len(render_chart(force, fmt))
+        print(f"   {fmt.name:<14}", timing, f"  {size / 1024:.0f} KiB")
+
+    run = compute_acceleration_run(sedan)
+    speed = run_chart(run)
+    print("run chart, demo sedan")
+    for fmt in ChartFormat:
+        timing = time_call(functools.partial(render_chart, speed, fmt), runs=RUNS, warmup=3)
+        print(f"   {fmt.name:<14}", timing)
+
+    report = shift_plan_report(plan)
+    run_report = acceleration_run_report(run)
+    print("shift-plan report, demo coupe (after the computation)")
+    print("   text          ", time_call(lambda: render_text(report), runs=RUNS, warmup=3))
+    print(
+        "   html (+svg)   ",
+        time_call(lambda: render_html(report, svg_markup(force)), runs=RUNS, warmup=3),
+    )
+    print("   pdf           ", time_call(lambda: render_pdf(report, force), runs=RUNS, warmup=3))
+    print("acceleration-run report, demo sedan (after the computation)")
+    print(
+        "   pdf           ", time_call(lambda: render_pdf(run_report, speed), runs=RUNS, warmup=3)
+    )
+
+
+if __name__ == "__main__":
+    main()

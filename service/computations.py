@@ -1,0 +1,187 @@
+"""The shift-plan and acceleration-run computations of a request, kept whole for reports.
+
+The JSON endpoints (``service.routes.shift_plan`` and ``service.routes.acceleration``) answer
+with a document; printable reports and charts need the same document plus the core objects
+behind it (curve, drivetrain, tire, plan, drive model, run). These functions make the same
+calls as those handlers, in the same order, so a report says exactly what the JSON says.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass
+from typing import Any
+
+from core import (
+    DriveModel,
+    Drivetrain,
+    OptimalShifts,
+    RunReport,
+    ShiftCriterion,
+    ShiftPlan,
+    Tire,
+    TorqueCurve,
+    acceleration_shift_points,
+    drive_model,
+    optimal_shift_rpm,
+    planned_shift_rpm,
+    run_report,
+    shift_plan,
+)
+from core.runreport import QUARTER_MILE_M
+from service.builders import build_curve, build_drivetrain, build_tire, core_fields
+from service.present import performance_document, shift_plan_document
+from service.present_run import run_document
+from service.routes.acceleration import FIELDS as RUN_FIELDS
+from service.routes.acceleration import SEARCH_BUDGET
+from service.routes.shift_plan import FIELDS as PLAN_FIELDS
+from service.schemas.acceleration import AccelerationRunRequest
+from service.schemas.shift_plan import ShiftPlanRequest
+from service.schemas.vehicle import LaunchIn
+from service.units import Quantity, to_si
+from service.vehicle_builders import build_launch, build_vehicle
+
+__all__ = ["PlanOutcome", "RunOutcome", "compute_acceleration_run", "compute_shift_plan"]
+
+
+@dataclass(frozen=True)
+class PlanOutcome:
+    """A computed shift plan with everything behind it.
+
+    Attributes
+    ----------
+    body : ShiftPlanRequest
+        The request.
+    curve, drivetrain, tire
+        Core inputs, in SI.
+    plan : ShiftPlan
+        The plan (its shifts by net acceleration when the request asked for that).
+    model : DriveModel or None
+        The car, when the request described one.
+    document : dict
+        The JSON endpoint's response body without its summary, in the caller's units.
+    """
+
+    body: ShiftPlanRequest
+    curve: TorqueCurve
+    drivetrain: Drivetrain
+    tire: Tire
+    plan: ShiftPlan
+    model: DriveModel | None
+    document: dict[str, Any]
+
+
+@dataclass(frozen=True)
+class RunOutcome:
+    """A simulated acceleration run with everything behind it.
+
+    Attributes
+    ----------
+    body : AccelerationRunRequest
+        The request.
+    model : DriveModel
+        The car (curve, drivetrain, tire, vehicle, launch).
+    report : RunReport
+        The timed run.
+    optimal : OptimalShifts or None
+        The shift search, when asked for.
+    document : dict
+        The JSON endpoint's response body without its summary, in the caller's units.
+    """
+
+    body: AccelerationRunRequest
+    model: DriveModel
+    report: RunReport
+    optimal: OptimalShifts | None
+    document: dict[str, Any]
+
+
+def compute_shift_plan(body: ShiftPlanRequest) -> PlanOutcome:
+    """What POST /v1/shift-plan computes, kept whole (core errors become 422 problems)."""
+    units = body.units
+    curve = build_curve(body.engine.curve, units)
+    drivetrain = build_drivetrain(body.drivetrain)
+    tire = build_tire(body.drivetrain.tire, units)
+    with core_fields(PLAN_FIELDS):
+        plan = shift_plan(
+            curve,
+            drivetrain,
+            tire,
+            rev_limit_rpm=body.engine.rev_limit_rpm,
+            rpm_step=body.table.rpm_step,
+        )
+    performance = None
+    model = None
+    if body.vehicle is not None:
+        vehicle = build_vehicle(body.vehicle, units)
+        launch = build_launch(body.launch or LaunchIn(), curve, units)
+        with core_fields(PLAN_FIELDS):
+            model = drive_model(
+                curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
+            )
+            speeds = [to_si(v, Quantity.SPEED, units) for v in body.cruise_speeds]
+            performance = performance_document(model, plan, speeds, units)
+            if body.shift_criterion == "net_acceleration":
+                plan = dataclasses.replace(plan, shifts=acceleration_shift_points(model))
+    doc = shift_plan_document(plan, curve, drivetrain, tire, units, PLAN_FIELDS)
+    document = {
+        "reference": body.reference,
+        **doc,
+        "shift_criterion": body.shift_criterion,
+        "performance": performance,
+    }
+    return PlanOutcome(body, curve, drivetrain, tire, plan, model, document)
+
+
+def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
+    """What POST /v1/acceleration-run computes, kept whole (core errors become 422s)."""
+    u, run = body.units, body.run
+    curve = build_curve(body.engine.curve, u)
+    drivetrain, tire = build_drivetrain(body.drivetrain), build_tire(body.drivetrain.tire, u)
+    vehicle, launch = build_vehicle(body.vehicle, u), build_launch(body.launch, curve, u)
+    speed = Quantity.SPEED
+    rollout = 0.3048 if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
+    start = to_si(run.start_speed, speed, u)
+    with core_fields(RUN_FIELDS):
+        model = drive_model(
+            curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
+        )
+        crit = body.shifts.criterion
+        rpm = (
+            body.shifts.rpm if crit == "custom" else planned_shift_rpm(model, ShiftCriterion(crit))
+        )
+        finish_d = (
+            None
+            if run.finish_distance is None
+            else to_si(run.finish_distance, Quantity.DISTANCE, u)
+        )
+        finish_v = None if run.finish_speed is None else to_si(run.finish_speed, speed, u)
+        if finish_d is None and finish_v is None:
+            finish_d = QUARTER_MILE_M
+        report = run_report(
+            model,
+            [] if rpm is None else rpm,
+            start_speed_m_s=start,
+            rollout_m=rollout,
+            finish_distance_m=finish_d,
+            finish_speed_m_s=finish_v,
+            extra_distances_m=[to_si(d, Quantity.DISTANCE, u) for d in run.extra_distances],
+            extra_speeds_m_s=[
+                (to_si(i.start, speed, u), to_si(i.end, speed, u))
+                for i in run.extra_speed_intervals
+            ],
+        )
+        optimal = None
+        if body.shifts.optimise:
+            optimal = optimal_shift_rpm(
+                model,
+                report.run.shift_rpm,
+                start_speed_m_s=start,
+                rollout_m=rollout,
+                finish_distance_m=finish_d if finish_v is None else None,
+                finish_speed_m_s=finish_v,
+                max_evaluations=SEARCH_BUDGET[launch.coupling],
+            )
+    doc = run_document(report, model, optimal, crit, u, run.trace_points, RUN_FIELDS)
+    document = {"reference": body.reference, **doc}
+    return RunOutcome(body, model, report, optimal, document)

@@ -1,0 +1,91 @@
+"""A report as plain text for work orders: at most 80 columns, printable ASCII only."""
+
+from __future__ import annotations
+
+import textwrap
+
+from service.report_model import Report, Section, Table
+
+__all__ = ["WIDTH", "render_text", "report_body_lines", "table_lines", "wrap_text"]
+
+WIDTH = 80
+_LABEL = 16  # column where a fact's value starts
+
+
+def _ascii(text: str) -> str:
+    return text.encode("ascii", "replace").decode("ascii")
+
+
+def wrap_text(text: str, first: str = "", rest: str = "  ") -> list[str]:
+    return textwrap.wrap(
+        text, WIDTH, initial_indent=first, subsequent_indent=rest, break_on_hyphens=False
+    ) or [first.rstrip()]
+
+
+def table_lines(table: Table) -> list[str]:
+    """A table: title, column names, units in brackets, a rule, the rows, the note."""
+    names = [c.name for c in table.columns]
+    units = [f"[{c.unit}]" if c.unit else "" for c in table.columns]
+    widths = [
+        max(len(names[i]), len(units[i]), *(len(row[i]) for row in table.rows))
+        for i in range(len(table.columns))
+    ]
+
+    def line(cells: list[str] | tuple[str, ...]) -> str:
+        return "  ".join(
+            cell.ljust(w) if col.text else cell.rjust(w)
+            for cell, w, col in zip(cells, widths, table.columns, strict=True)
+        ).rstrip()
+
+    out = [table.title, line(names)]
+    if any(units):
+        out.append(line(units))
+    out.append("  ".join("-" * w for w in widths))
+    out += [line(row) for row in table.rows] or ["(none)"]
+    if table.note:
+        out += wrap_text(table.note)
+    return out
+
+
+def _section_lines(section: Section) -> list[str]:
+    out = [section.heading.upper(), "-" * len(section.heading)]
+    for label, value in section.facts:
+        if len(label) < _LABEL - 1:
+            out += wrap_text(value, label.ljust(_LABEL), " " * _LABEL)
+        else:
+            out += wrap_text(f"{label}: {value}")
+    for table in section.tables:
+        out.append("")
+        out += table_lines(table)
+    if section.notes:
+        out.append("")
+        for note in section.notes:
+            out += wrap_text(note, "- ")
+    return out
+
+
+def report_body_lines(report: Report) -> list[str]:
+    """Everything below the head: the sections, then the cautions in full."""
+    lines: list[str] = []
+    for section in report.sections:
+        lines += _section_lines(section)
+        lines.append("")
+    lines += ["CAUTIONS", "--------"]
+    for caution in report.cautions:
+        lines += wrap_text(caution, "- ")
+    return [_ascii(line)[:WIDTH].rstrip() for line in lines]
+
+
+def render_text(report: Report) -> str:
+    """The whole report as text lines of at most 80 columns, ending with a newline."""
+    head = f"GEARWORK {report.kind.upper()}"
+    ref = f"ref: {report.reference}" if report.reference else ""
+    if len(head) + 2 + len(ref) <= WIDTH:
+        lines = [head + ref.rjust(WIDTH - len(head))] if ref else [head]
+    else:
+        lines = [head, ref]
+    lines += wrap_text("Units: " + report.units)
+    lines += wrap_text("Caution: " + report.short_caution)
+    lines.append("")
+    lines += report_body_lines(report)
+    return "\n".join(_ascii(line)[:WIDTH].rstrip() for line in lines) + "\n"
