@@ -31,6 +31,8 @@ fuzz: $(STAMP)  ## long schemathesis run over every endpoint
 bench: $(STAMP)  ## benchmarks: core timings and served throughput against /healthz
 	command -v wrk >/dev/null || (apt-get update -qq && apt-get install -y -qq wrk)
 	$(BIN)/python -m bench.acceleration_run
+	$(BIN)/python -m bench.final_drive_sweep
+	$(BIN)/python -m bench.charts
 	$(BIN)/python -m bench.shift_plan
 
 openapi: $(STAMP)  ## rewrite openapi/openapi.json from the app

@@ -35,7 +35,9 @@ from core.tires import Tire
 from core.vehicle import Coupling, Launch, Vehicle
 
 __all__ = [
+    "MAX_SPEED_M_S",
     "MIN_ACCELERATION",
+    "POINTS_PER_GEAR",
     "DriveModel",
     "RunResult",
     "RunShift",
@@ -45,8 +47,8 @@ __all__ = [
 
 FloatArray = NDArray[np.float64]
 MIN_ACCELERATION = 0.05  # [m/s^2]; below this the car is taken to hold speed
-_POINTS_PER_GEAR = 241
-_MAX_SPEED = 150.0  # [m/s], no run integrates beyond this
+POINTS_PER_GEAR = 241
+MAX_SPEED_M_S = 150.0  # [m/s], no run integrates beyond this
 
 
 @dataclass(frozen=True)
@@ -361,9 +363,9 @@ def simulate_run(
                 f"({model.rev_limit_rpm:g}), got {n:g}",
                 parameter=f"shift_rpm[{i}]",
             )
-    if not 0.0 <= start_speed_m_s < _MAX_SPEED:
+    if not 0.0 <= start_speed_m_s < MAX_SPEED_M_S:
         raise SimulationError(
-            f"`start_speed_m_s` must lie in [0, {_MAX_SPEED:g}), got {start_speed_m_s}",
+            f"`start_speed_m_s` must lie in [0, {MAX_SPEED_M_S:g}), got {start_speed_m_s}",
             parameter="start_speed_m_s",
         )
     notes: list[Notice] = []
@@ -400,7 +402,7 @@ def simulate_run(
     events: list[RunShift] = []
     held: float | None = None
     held_by: str | None = None
-    target_v = min(max(cover_speed_m_s, 0.0), _MAX_SPEED)
+    target_v = min(max(cover_speed_m_s, 0.0), MAX_SPEED_M_S)
 
     def shift(g: int, v_out: float, rpm_before: float) -> float:
         """No drive for shift_time_s, slowing at the road-load deceleration."""
@@ -424,7 +426,7 @@ def simulate_run(
 
     while True:
         v_top = float(shift_speed[g])
-        v_end = min(v_top, _MAX_SPEED)
+        v_end = min(v_top, MAX_SPEED_M_S)
         if g < gears - 1 and v_in >= v_end:
             # entered above its own shift speed: the gear is left at once
             notes.append(
@@ -438,7 +440,7 @@ def simulate_run(
             rpm_in = float(model.coupled_rpm(g, np.array([v_in]))[0])
             g, v_in, launching = g + 1, shift(g, v_in, rpm_in), False
             continue
-        grid = np.linspace(v_in, v_end, _POINTS_PER_GEAR)
+        grid = np.linspace(v_in, v_end, POINTS_PER_GEAR)
         if launching and model.launch.coupling is Coupling.CLUTCH:
             v_lock = model.speed_at_rpm(g, model.launch_rpm)
             if v_in < v_lock < v_end:
@@ -490,7 +492,7 @@ def simulate_run(
             held = v_out
             held_by = "rev_limit" if v_out >= v_top * (1 - 1e-6) else "drag"
             break
-        if g == gears - 1 or v_out >= _MAX_SPEED:
+        if g == gears - 1 or v_out >= MAX_SPEED_M_S:
             held, held_by = v_out, "rev_limit"
             break
         if x0 >= cover_distance_m and v_out >= target_v:

@@ -15,7 +15,7 @@ MAX_GEARS = 12
 
 Rpm = Annotated[float, Field(gt=0, le=30000, description="Engine speed [rpm].")]
 CurveValue = Annotated[float, Field(ge=0, le=100000)]
-Ratio = Annotated[float, Field(gt=0, le=50)]
+Ratio = Annotated[float, Field(ge=0.01, le=50)]
 Efficiency = Annotated[float, Field(gt=0, le=1)]
 
 
