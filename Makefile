@@ -33,6 +33,7 @@ bench: $(STAMP)  ## benchmarks: core timings and served throughput against /heal
 	$(BIN)/python -m bench.acceleration_run
 	$(BIN)/python -m bench.final_drive_sweep
 	$(BIN)/python -m bench.charts
+	$(BIN)/python -m bench.log_analysis
 	$(BIN)/python -m bench.shift_plan
 
 openapi: $(STAMP)  ## rewrite openapi/openapi.json from the app

@@ -21,7 +21,7 @@ __all__ = [
 MAX_POINTS = 2000
 MAX_GEARS = 12
 
-Rpm = Annotated[float, Field(gt=0, le=30000)]
+Rpm = Annotated[float, Field(ge=1, le=30000)]
 CurveValue = Annotated[float, Field(ge=0, le=100000)]
 GearEfficiency = Annotated[float, Field(ge=0.4, le=1)]
 
