@@ -153,7 +153,6 @@ def best_shifts(
     floor = 1e-9 * scale[:, None]
     slowness = 1.0 / np.maximum(e_cur, floor) - 1.0 / np.maximum(e_next, floor)
     cost = cumulative_trapezoid(slowness, grid, axis=1, initial=0.0)
-    falling = (diff[:, :-1] > 0.0) & (diff[:, 1:] <= 0.0)
 
     choices = []
     for k in range(lo.size):
@@ -169,14 +168,14 @@ def best_shifts(
                 choices.append(ShiftChoice(float(lo[k]), ShiftReason.DRAG_LIMIT, 0, None, False))
                 continue
             e0, e1 = float(e_cur[k][j - 1]), float(e_cur[k][j])
-            top = float(g[j - 1] + e0 / (e0 - e1) * (g[j] - g[j - 1]))
-            keep = g <= top
-            g, d = np.append(g[keep], top), np.append(d[keep], d[keep][-1])
+            frac = e0 / (e0 - e1)
+            top = float(g[j - 1] + frac * (g[j] - g[j - 1]))
+            d_top = float(d[j - 1] + frac * (d[j] - d[j - 1]))
+            g, d = np.append(g[:j], top), np.append(d[:j], d_top)
         band = _coincident_band(g, d, float(scale[k]))
         roots = []
-        for j in np.flatnonzero(falling[k][: g.size - 1]).tolist():
-            if g[j + 1] > top:
-                break
+        falls = np.flatnonzero((d[:-1] > 0.0) & (d[1:] <= 0.0))
+        for j in falls.tolist():
             if d[j + 1] == 0.0:
                 root = float(g[j + 1])
             elif diff_scalar is None:

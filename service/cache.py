@@ -6,18 +6,22 @@ between; a shop's job system re-sends a work order. The middleware keys each POS
 ``/v1/`` by SHA-256 of (path, content type, accept, body), keeps successful answers in a
 bounded LRU (entry count and total bytes), and sends every 200 with an ``ETag`` of that
 digest, so a caller holding the tag can send ``If-None-Match`` and get 304 with no body.
-Set ``GEARWORK_CACHE_ENTRIES=0`` to turn the store off (the ETag stays).
+The tag is weak (``W/"..."``): it names the result, which is the same whether it is sent
+plain or gzipped. ``If-None-Match`` is compared weakly (RFC 9110, 13.1.2): a list of
+tags, strong or weak, and ``*`` all work. Set ``GEARWORK_CACHE_ENTRIES=0`` to turn the
+store off (the ETag stays).
 """
 
 from __future__ import annotations
 
 import hashlib
 from collections import OrderedDict
+from collections.abc import Callable
 from dataclasses import dataclass
 
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
-__all__ = ["ResultCache"]
+__all__ = ["ResultCache", "etag_matches"]
 
 _VERSION = b"gearwork/0.1.0"
 
@@ -27,6 +31,20 @@ class _Entry:
     status: int
     headers: list[tuple[bytes, bytes]]
     body: bytes
+
+
+def etag_matches(if_none_match: bytes, etag: bytes) -> bool:
+    """Whether an ``If-None-Match`` value matches ``etag`` by weak comparison.
+
+    >>> etag_matches(b'"a", W/"b"', b'"b"'), etag_matches(b'"a"', b'"b"')
+    (True, False)
+    """
+    opaque = etag.removeprefix(b"W/")
+    for part in if_none_match.split(b","):
+        tag = part.strip()
+        if tag == b"*" or tag.removeprefix(b"W/") == opaque:
+            return True
+    return False
 
 
 class ResultCache:
@@ -42,13 +60,23 @@ class ResultCache:
         Most response bytes kept in all.
     prefix : str
         Only POSTs under this path prefix are considered.
+    on_outcome : callable, optional
+        Called with ``"hit"``, ``"miss"`` or ``"not_modified"`` for every lookup (metrics).
     """
 
-    def __init__(self, app: ASGIApp, max_entries: int, max_bytes: int, prefix: str = "/v1/"):
+    def __init__(
+        self,
+        app: ASGIApp,
+        max_entries: int,
+        max_bytes: int,
+        prefix: str = "/v1/",
+        on_outcome: Callable[[str], None] | None = None,
+    ):
         self.app = app
         self.max_entries = max_entries
         self.max_bytes = max_bytes
         self.prefix = prefix
+        self.on_outcome = on_outcome
         self._store: OrderedDict[bytes, _Entry] = OrderedDict()
         self._bytes = 0
 
@@ -80,8 +108,10 @@ class ResultCache:
             digest.update(len(part).to_bytes(8, "little"))
             digest.update(part)
         key = digest.digest()
-        etag = b'"' + digest.hexdigest()[:32].encode() + b'"'
-        if headers.get(b"if-none-match") == etag:
+        etag = b'W/"' + digest.hexdigest()[:32].encode() + b'"'
+        if_none_match = headers.get(b"if-none-match")
+        if if_none_match is not None and etag_matches(if_none_match, etag):
+            self._count("not_modified")
             await send(
                 {"type": "http.response.start", "status": 304, "headers": [(b"etag", etag)]}
             )
@@ -89,10 +119,16 @@ class ResultCache:
             return
         entry = self._store.get(key)
         if entry is not None:
+            self._count("hit")
             self._store.move_to_end(key)
             await self._send(send, entry)
             return
+        self._count("miss")
         await self._compute(scope, body, send, key, etag)
+
+    def _count(self, outcome: str) -> None:
+        if self.on_outcome is not None:
+            self.on_outcome(outcome)
 
     async def _compute(
         self, scope: Scope, body: bytes, send: Send, key: bytes, etag: bytes
@@ -117,7 +153,8 @@ class ResultCache:
                 out_headers = list(message.get("headers", []))
                 if status == 200:
                     out_headers.append((b"etag", etag))
-                    message = {**message, "headers": out_headers}
+                # a copy goes on: outer middleware (gzip) edits header lists in place
+                message = {**message, "headers": list(out_headers)}
             elif message["type"] == "http.response.body":
                 parts.append(message.get("body", b""))
             await send(message)
@@ -134,6 +171,6 @@ class ResultCache:
     @staticmethod
     async def _send(send: Send, entry: _Entry) -> None:
         await send(
-            {"type": "http.response.start", "status": entry.status, "headers": entry.headers}
+            {"type": "http.response.start", "status": entry.status, "headers": list(entry.headers)}
         )
         await send({"type": "http.response.body", "body": entry.body})

@@ -16,6 +16,10 @@ PROBLEM_RESPONSES: dict[int | str, dict[str, Any]] = {
     413: {"model": Problem, "description": "The body exceeds the size limit."},
     415: {"model": Problem, "description": "The body is not declared as JSON."},
     422: {"model": Problem, "description": "A field is invalid; `field` names it."},
+    503: {
+        "model": Problem,
+        "description": "The worker is busy; retry after `Retry-After` seconds.",
+    },
 }
 
 

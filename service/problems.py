@@ -34,22 +34,26 @@ _log = logging.getLogger("gearwork.errors")
 
 _TITLES = {
     400: "Malformed request body",
+    403: "Forbidden",
     404: "Not found",
     405: "Method not allowed",
     406: "Not acceptable",
     413: "Request body too large",
     415: "Unsupported media type",
     422: "Invalid input",
+    503: "Service unavailable",
     500: "Internal error",
 }
 _SLUGS = {
     400: "malformed-body",
+    403: "forbidden",
     404: "not-found",
     405: "method-not-allowed",
     406: "not-acceptable",
     413: "body-too-large",
     415: "unsupported-media-type",
     422: "invalid-input",
+    503: "unavailable",
     500: "internal-error",
 }
 

@@ -1,13 +1,22 @@
-"""Service settings from the environment (prefix ``GEARWORK_``), built on first use."""
+"""Service settings from the environment (prefix ``GEARWORK_``), built on first use.
+
+Every knob is bounded; a value out of bounds stops the process at start with a message
+naming the variable, rather than serving with a setting nobody asked for.
+"""
 
 from __future__ import annotations
 
+import re
 from functools import lru_cache
+from typing import Annotated
 
-from pydantic import Field
-from pydantic_settings import BaseSettings, SettingsConfigDict
+from pydantic import Field, field_validator
+from pydantic_settings import BaseSettings, NoDecode, SettingsConfigDict
 
 __all__ = ["Settings", "get_settings"]
+
+# scheme://host[:port], no path: what a browser sends in an Origin header
+_ORIGIN = re.compile(r"^https?://[A-Za-z0-9.-]{1,253}(:[0-9]{1,5})?$")
 
 
 class Settings(BaseSettings):
@@ -28,6 +37,55 @@ class Settings(BaseSettings):
     max_body_bytes: int = Field(
         262_144, ge=1024, le=16_777_216, description="Largest accepted request body [bytes]."
     )
+    max_in_flight: int = Field(
+        32,
+        ge=0,
+        le=10_000,
+        description="Requests one worker holds at once (queued or computing); beyond it the "
+        "answer is 503 with Retry-After. 0 turns the limit off.",
+    )
+    retry_after_s: int = Field(2, ge=1, le=600, description="Retry-After sent with a 503 [s].")
+    request_log: bool = Field(True, description="One JSON line per request on stdout.")
+    metrics: bool = Field(True, description="Serve Prometheus metrics at /metrics.")
+    cors_origins: Annotated[list[str], NoDecode] = Field(
+        default_factory=list,
+        max_length=32,
+        description="Comma-separated origins allowed to call from a browser "
+        "(e.g. `https://shop.example`), or `*`; none by default.",
+    )
+    cors_max_age_s: int = Field(
+        600, ge=0, le=86_400, description="How long a browser may keep a preflight [s]."
+    )
+    gzip_level: int = Field(
+        5, ge=0, le=9, description="gzip level for large responses; 0 turns gzip off."
+    )
+    gzip_min_bytes: int = Field(
+        1024, ge=128, le=16_777_216, description="Smallest response body gzipped [bytes]."
+    )
+    result_max_age_s: int = Field(
+        0,
+        ge=0,
+        le=86_400,
+        description="max-age of calculation results [s]; 0 sends `no-cache` (store, but "
+        "revalidate with If-None-Match).",
+    )
+
+    @field_validator("cors_origins", mode="before")
+    @classmethod
+    def _split_origins(cls, value: object) -> object:
+        if isinstance(value, str):
+            return [part.strip() for part in value.split(",") if part.strip()]
+        return value
+
+    @field_validator("cors_origins")
+    @classmethod
+    def _check_origins(cls, value: list[str]) -> list[str]:
+        for origin in value:
+            if origin != "*" and not _ORIGIN.match(origin):
+                raise ValueError(
+                    f"GEARWORK_CORS_ORIGINS: {origin[:80]!r} is not `*` or scheme://host[:port]"
+                )
+        return value
 
 
 @lru_cache(maxsize=1)

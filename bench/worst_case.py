@@ -1,0 +1,106 @@
+"""Worst-case requests: the largest inputs the schemas admit, timed in-process.
+
+    python -m bench.worst_case
+
+No wall-clock guard stops a request: the work of every calculation is bounded by the
+request schema instead (curve points, gears, table rows, trace points, a fixed search
+budget), so the same input always does the same work. This script builds the heaviest
+requests those bounds allow and prints how long each takes through the whole app (every
+middleware included; each run varies the reference so the result cache never answers).
+Figures are printed, never asserted.
+"""
+
+from __future__ import annotations
+
+import copy
+import json
+import time
+from pathlib import Path
+from typing import Any
+
+import anyio
+import httpx
+import numpy as np
+
+from service.app import app
+
+DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
+
+
+def _demo(name: str) -> dict[str, Any]:
+    data: dict[str, Any] = json.loads((DATA / f"{name}.json").read_text())
+    return data
+
+
+def cases() -> list[tuple[str, str, dict[str, Any]]]:
+    """(label, path, body) of the heaviest admissible requests."""
+    coupe, sedan = _demo("demo_coupe_us"), _demo("demo_sedan_run_metric")
+    rpm = np.linspace(500.0, 29000.0, 2000)
+    curve = {
+        "rpm": rpm.round(3).tolist(),
+        "torque": (200.0 + 100.0 * np.sin(rpm / 3000.0)).round(3).tolist(),
+    }
+    gears = [float(g) for g in np.geomspace(5.0, 0.5, 12).round(4)]
+    plan = copy.deepcopy(coupe)
+    plan["engine"] = {"curve": curve}
+    plan["drivetrain"]["gear_ratios"] = gears
+    plan_car = copy.deepcopy(plan)
+    plan_car["vehicle"] = {**sedan["vehicle"], "mass": 3000}
+    plan_car["shift_criterion"] = "net_acceleration"
+    plan_car["cruise_speeds"] = [10.0 * (i + 1) for i in range(10)]
+    run = copy.deepcopy(sedan)
+    run["engine"] = {"curve": curve}
+    run["drivetrain"]["gear_ratios"] = gears
+    run["shifts"] = {"optimise": True}
+    run["run"] = {
+        "finish_distance": 5000,
+        "trace_points": 2000,
+        "extra_distances": [100.0 * (i + 1) for i in range(10)],
+        "extra_speed_intervals": [{"start": 10.0 * i, "end": 10.0 * i + 50} for i in range(10)],
+    }
+    converter = copy.deepcopy(run)
+    converter["launch"] = {
+        "coupling": "converter",
+        "converter": {
+            "speed_ratio": [i / 63 for i in range(64)],
+            "k_factor_table": [150.0 + i for i in range(64)],
+            "torque_ratio_table": [2.0 - i / 63 for i in range(64)],
+        },
+        "lockup_gears": list(range(3, 13)),
+    }
+    return [
+        ("shift plan, demo coupe", "/v1/shift-plan", coupe),
+        ("shift plan, 2000 points x 12 gears", "/v1/shift-plan", plan),
+        ("shift plan, same + vehicle, net accel.", "/v1/shift-plan", plan_car),
+        ("acceleration run, demo sedan", "/v1/acceleration-run", sedan),
+        ("acceleration run, largest, optimised", "/v1/acceleration-run", run),
+        ("same, converter tables + lock-up", "/v1/acceleration-run", converter),
+    ]
+
+
+async def _measure(runs: int) -> None:
+    transport = httpx.ASGITransport(app=app)
+    async with httpx.AsyncClient(transport=transport, base_url="http://bench") as client:
+        print(f"{'request':40s} {'status':>6s} {'best ms':>8s} {'worst ms':>9s} {'KiB':>7s}")
+        for label, path, body in cases():
+            times = []
+            status, size = 0, 0
+            for i in range(runs):
+                varied = {**body, "reference": f"bench-{i}"}
+                t0 = time.perf_counter()
+                r = await client.post(path, json=varied)
+                times.append(time.perf_counter() - t0)
+                status, size = r.status_code, len(r.content)
+            print(
+                f"{label:40s} {status:6d} {min(times) * 1e3:8.1f} {max(times) * 1e3:9.1f} "
+                f"{size / 1024:7.0f}"
+            )
+
+
+def main() -> None:
+    """Time each case a few times and print the figures."""
+    anyio.run(_measure, 5)
+
+
+if __name__ == "__main__":
+    main()
