@@ -18,7 +18,7 @@ RUN python -c "import tomllib; print('\n'.join(tomllib.load(open('pyproject.toml
 FROM python:3.11-slim-bookworm
 ENV PYTHONDONTWRITEBYTECODE=1 PYTHONUNBUFFERED=1 PATH=/opt/venv/bin:$PATH \
     GEARWORK_HOST=0.0.0.0 GEARWORK_PORT=8000 GEARWORK_WORKERS=2 \
-    PROMETHEUS_MULTIPROC_DIR=/tmp/metrics
+    PROMETHEUS_MULTIPROC_DIR=/tmp/metrics MPLBACKEND=Agg MPLCONFIGDIR=/tmp/matplotlib
 RUN groupadd --system --gid 10001 gearwork \
  && useradd --system --uid 10001 --gid 10001 --no-create-home --shell /usr/sbin/nologin gearwork
 COPY --from=deps /opt/venv /opt/venv
