@@ -6,6 +6,7 @@ from typing import Annotated
 
 import numpy as np
 from fastapi import APIRouter, Query, Request
+from starlette.datastructures import UploadFile as StarletteUpload
 from starlette.responses import Response
 
 from core import (
@@ -98,6 +99,20 @@ async def create_dyno_correction(body: DynoCorrectionRequest, _json: JsonBody) -
     )
 
 
+async def _uploaded_file(request: Request) -> bytes:
+    """The one file of a multipart upload (field ``file``, or the only file sent)."""
+    try:
+        form = await request.form(max_files=1, max_fields=4)
+    except Exception as exc:  # the multipart parser raises several kinds on bad input
+        raise ProblemError(422, "The multipart body cannot be read.", field="body") from exc
+    files = [v for v in form.values() if isinstance(v, StarletteUpload)]
+    if not files:
+        raise ProblemError(422, "The multipart body holds no file.", field="file")
+    data = await files[0].read()
+    await form.close()
+    return data
+
+
 @router.post(
     "/torque-curves/import",
     operation_id="import_torque_curve",
@@ -107,7 +122,16 @@ async def create_dyno_correction(body: DynoCorrectionRequest, _json: JsonBody) -
     openapi_extra={
         "requestBody": {
             "required": True,
-            "content": {"text/csv": {"schema": {"type": "string", "maxLength": 262144}}},
+            "content": {
+                "text/csv": {"schema": {"type": "string", "maxLength": 262144}},
+                "multipart/form-data": {
+                    "schema": {
+                        "type": "object",
+                        "properties": {"file": {"type": "string", "format": "binary"}},
+                        "required": ["file"],
+                    }
+                },
+            },
         }
     },
 )
@@ -122,10 +146,16 @@ async def import_torque_curve(
     """Comma, semicolon or tab separated text with a header naming rpm and torque and/or
     power with units (lbf*ft, N*m, hp, kW, PS); errors name the line and column."""
     kind = request.headers.get("content-type", "").split(";")[0].strip().lower()
-    if kind not in {"text/csv", "text/plain", "text/tab-separated-values", ""}:
-        raise ProblemError(415, "Send the dyno file as text/csv (or text/plain).")
+    if kind == "multipart/form-data":
+        raw = await _uploaded_file(request)
+    elif kind in {"text/csv", "text/plain", "text/tab-separated-values", ""}:
+        raw = await request.body()
+    else:
+        raise ProblemError(
+            415, "Send the dyno file as text/csv (or text/plain), or as a multipart upload."
+        )
     try:
-        text = (await request.body()).decode("utf-8")
+        text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:
         raise ProblemError(
             422, f"The file is not UTF-8 text (byte {exc.start + 1}).", field="body"

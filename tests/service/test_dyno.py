@@ -86,3 +86,25 @@ def test_import_rejects_json_body_type(api: ApiClient) -> None:
         "/v1/torque-curves/import", content=b"{}", headers={"content-type": "application/json"}
     )
     assert r.status_code == 415
+
+
+def test_multipart_upload_imports_the_file(api: ApiClient) -> None:
+    # invented export, tab separated, power in PS
+    text = "rpm\tpower (PS)\n2000\t50\n3000\t80\n4000\t100\n"
+    r = api.post(
+        "/v1/torque-curves/import",
+        files={"file": ("run.tsv", text.encode(), "text/tab-separated-values")},
+    )
+    assert r.status_code == 200, r.text
+    assert r.json()["curve"]["rpm"] == [2000.0, 3000.0, 4000.0]
+
+
+def test_multipart_without_file_is_422(api: ApiClient) -> None:
+    body = b'--zz\r\nContent-Disposition: form-data; name="note"\r\n\r\nhi\r\n--zz--\r\n'
+    r = api.post(
+        "/v1/torque-curves/import",
+        content=body,
+        headers={"content-type": "multipart/form-data; boundary=zz"},
+    )
+    assert r.status_code == 422
+    assert r.json()["field"] == "file"
