@@ -1,9 +1,9 @@
 """The shift-plan and acceleration-run computations of a request, kept whole for reports.
 
 The JSON endpoints (``service.routes.shift_plan`` and ``service.routes.acceleration``) answer
-with a document; printable reports and charts need the same document plus the core objects
-behind it (curve, drivetrain, tire, plan, drive model, run). These functions make the same
-calls as those handlers, in the same order, so a report says exactly what the JSON says.
+with the document these functions build; printable reports and charts take the same
+document plus the core objects behind it (curve, drivetrain, tire, plan, drive model, run),
+so a report says exactly what the JSON says.
 """
 
 from __future__ import annotations
@@ -13,6 +13,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from core import (
+    Coupling,
     DriveModel,
     Drivetrain,
     OptimalShifts,
@@ -29,19 +30,50 @@ from core import (
     shift_plan,
 )
 from core.runreport import QUARTER_MILE_M
-from service.builders import build_curve, build_drivetrain, build_tire, core_fields
+from service.builders import (
+    DRIVETRAIN_FIELDS,
+    ENGINE_FIELDS,
+    build_curve,
+    build_drivetrain,
+    build_tire,
+    core_fields,
+)
 from service.present import performance_document, shift_plan_document
 from service.present_run import run_document
-from service.routes.acceleration import FIELDS as RUN_FIELDS
-from service.routes.acceleration import SEARCH_BUDGET
-from service.routes.shift_plan import FIELDS as PLAN_FIELDS
 from service.schemas.acceleration import AccelerationRunRequest
 from service.schemas.shift_plan import ShiftPlanRequest
 from service.schemas.vehicle import LaunchIn
 from service.units import Quantity, to_si
-from service.vehicle_builders import build_launch, build_vehicle
+from service.vehicle_builders import LAUNCH_FIELDS, VEHICLE_FIELDS, build_launch, build_vehicle
 
-__all__ = ["PlanOutcome", "RunOutcome", "compute_acceleration_run", "compute_shift_plan"]
+__all__ = [
+    "PLAN_FIELDS",
+    "RUN_FIELDS",
+    "SEARCH_BUDGET",
+    "PlanOutcome",
+    "RunOutcome",
+    "compute_acceleration_run",
+    "compute_shift_plan",
+]
+
+# core parameter -> request field, for errors and warnings
+PLAN_FIELDS = {
+    **ENGINE_FIELDS,
+    **DRIVETRAIN_FIELDS,
+    **VEHICLE_FIELDS,
+    **LAUNCH_FIELDS,
+    "rpm_step": "table.rpm_step",
+}
+RUN_FIELDS = {
+    **ENGINE_FIELDS,
+    **DRIVETRAIN_FIELDS,
+    **VEHICLE_FIELDS,
+    **LAUNCH_FIELDS,
+    "shift_rpm": "shifts.rpm",
+    "start_speed_m_s": "run.start_speed",
+}
+# simulated runs the shift search may spend: fixed, so the same request gets the same answer
+SEARCH_BUDGET = {Coupling.CLUTCH: 120, Coupling.CONVERTER: 60}
 
 
 @dataclass(frozen=True)
