@@ -3,7 +3,8 @@
 With final drive ``f_c`` the overall ratio in gear g is ``gear_g * f_c * extra``: each
 candidate ratio c puts the same engine, converter, tires and road load behind a different
 gearing, so a gear's force and acceleration for every candidate are arrays of shape (c, n)
-evaluated in one numpy call, as :class:`core.simulate.DriveModel` evaluates them for one car:
+evaluated in one numpy call; engine and converter come from
+:meth:`core.simulate.DriveModel.gearbox_input`, the same code the one-car model uses:
 a clutch slipping at the launch rpm in the launch gear, a converter solved by
 :func:`core.converter_matching.converter_operating_points` on the flattened grid (locked 1:1
 in lock-up gears above the curve's first rpm), the traction cap, the rotating mass of the
@@ -22,12 +23,10 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from core.converter_matching import converter_operating_points
 from core.curves import RPM_TO_RAD_S
 from core.drivetrain import MAX_RATIO
-from core.errors import DrivetrainError, SimulationError
+from core.errors import DrivetrainError
 from core.simulate import DriveModel
-from core.vehicle import Coupling
 
 __all__ = [
     "BatchTopSpeed",
@@ -138,38 +137,6 @@ def _shared_row(n_in: FloatArray) -> FloatArray | None:
     return None
 
 
-def _engine(
-    model: DriveModel, gear: int, n_in: FloatArray, launching: bool
-) -> tuple[FloatArray, FloatArray]:
-    """Gearbox input torque [N*m] and engine speed [rpm] at gearbox input speeds ``n_in``
-    (any shape), as :meth:`DriveModel.drive` before the ratio."""
-    curve, limit = model.curve, model.rev_limit_rpm
-    if model.launch.coupling is Coupling.CLUTCH:
-        floor = model.launch_rpm if launching else curve.rpm_min
-        engine = np.maximum(n_in, floor)
-        return curve.torque_at(np.minimum(engine, limit)), engine
-    converter = model.launch.converter
-    if converter is None:  # Launch.__post_init__ forbids it; kept for the type
-        raise SimulationError("`converter` is missing", parameter="converter")
-    turbine = np.minimum(n_in, limit)
-    engine = turbine.copy()
-    torque = curve.torque_at(turbine)
-    slipping = np.ones(turbine.shape, dtype=np.bool_)
-    if gear + 1 in model.launch.lockup_gears:
-        slipping = turbine < curve.rpm_min
-    if slipping.any():
-        points = converter_operating_points(
-            dataclasses.replace(converter, lockup_speed_ratio=None),
-            turbine[slipping],
-            curve.torque_at,
-            rpm_min=curve.rpm_min,
-            rpm_max=limit,
-        )
-        engine[slipping] = points.engine_rpm
-        torque[slipping] = points.output_torque_nm
-    return torque, engine
-
-
 def batch_drive(
     model: DriveModel, gear: int, speed_m_s: FloatArray, ratio: FloatArray, launching: bool
 ) -> tuple[FloatArray, FloatArray, FloatArray]:
@@ -198,11 +165,11 @@ def batch_drive(
     n_in = speed_m_s * ratio[:, None] / (r * RPM_TO_RAD_S)
     row = _shared_row(n_in)
     if row is not None:
-        t_row, e_row = _engine(model, gear, row, launching)
+        t_row, e_row = model.gearbox_input(gear, row, launching=launching)
         torque = np.broadcast_to(t_row, n_in.shape)
         engine = np.broadcast_to(e_row, n_in.shape)
     else:
-        torque, engine = _engine(model, gear, n_in, launching)
+        torque, engine = model.gearbox_input(gear, n_in, launching=launching)
     force = torque * ratio[:, None] * float(model.efficiency[gear]) / r
     force = np.where(n_in > model.rev_limit_rpm * (1.0 + 1e-9), 0.0, force)
     return force, engine, n_in
@@ -297,7 +264,7 @@ def batch_top_speed(model: DriveModel, final_drive_ratio: ArrayLike) -> BatchTop
         # every scan runs over the same engine speeds, curve start to rev limit: one row of
         # torque serves all candidates (never above the limit, so never cut)
         row = v[0] * ratio[0] / (r * RPM_TO_RAD_S)
-        torque = _engine(model, g, row, False)[0]
+        torque = model.gearbox_input(g, row)[0]
         force = torque[None, :] * (ratio * float(model.efficiency[g]) / r)[:, None]
         spare = np.minimum(force, model.traction_limit_n) - model.vehicle.road_load.force_n(v)
         spare[:, -1] = np.minimum(spare[:, -1], spare[:, -2])  # the limiter cuts drive

@@ -43,7 +43,13 @@ from core.batchtiming import (
 from core.curves import RPM_TO_RAD_S
 from core.errors import SimulationError
 from core.milestones import FOOT_M
-from core.simulate import MAX_SPEED_M_S, MIN_ACCELERATION, POINTS_PER_GEAR, DriveModel
+from core.simulate import (
+    MAX_SPEED_M_S,
+    MIN_ACCELERATION,
+    POINTS_PER_GEAR,
+    DriveModel,
+    checked_shift_rpm,
+)
 from core.vehicle import Coupling
 
 __all__ = ["BatchRuns", "batch_runs"]
@@ -109,26 +115,6 @@ class BatchRuns:
             if s.name == name:
                 return s
         raise KeyError(name)
-
-
-def _checked_shift_rpm(model: DriveModel, shift_rpm: ArrayLike) -> FloatArray:
-    """The checks :func:`core.simulate.simulate_run` makes of the shift rpms."""
-    gears = model.drivetrain.gear_count
-    shifts = np.asarray(shift_rpm, dtype=np.float64)
-    if shifts.shape != (gears - 1,):
-        raise SimulationError(
-            f"`shift_rpm` must give one rpm per gear change ({gears - 1}), got {shifts.size}",
-            parameter="shift_rpm",
-        )
-    for i, n in enumerate(shifts.tolist()):
-        if not math.isfinite(n) or not model.curve.rpm_min < n <= model.rev_limit_rpm + 1e-9:
-            raise SimulationError(
-                f"`shift_rpm[{i}]` must lie above the curve's first point "
-                f"({model.curve.rpm_min:g}) and at most the rev limit "
-                f"({model.rev_limit_rpm:g}), got {n:g}",
-                parameter=f"shift_rpm[{i}]",
-            )
-    return shifts
 
 
 def _cut(arrays: list[FloatArray], at: IntArray, rows: BoolArray, ends: list[FloatArray]) -> None:
@@ -276,7 +262,7 @@ def batch_runs(
         is negative or not finite.
     """
     f = checked_final_drives(final_drive_ratio)
-    shifts = _checked_shift_rpm(model, shift_rpm)
+    shifts = checked_shift_rpm(model, shift_rpm)
     lengths = [rollout_m] + [d for _, d, _ in distances]
     rates = [v for _, a, b in speeds for v in (a, b)]
     for name, values in (("distances", lengths), ("speeds", rates)):

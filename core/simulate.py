@@ -23,7 +23,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.typing import NDArray
+from numpy.typing import ArrayLike, NDArray
 from scipy.integrate import cumulative_trapezoid
 
 from core.converter_matching import converter_operating_points
@@ -41,6 +41,7 @@ __all__ = [
     "DriveModel",
     "RunResult",
     "RunShift",
+    "checked_shift_rpm",
     "drive_model",
     "simulate_run",
 ]
@@ -128,21 +129,38 @@ class DriveModel:
             Force [N] (zero above the rev-limit speed) and engine speed [rpm].
         """
         n_in = self.coupled_rpm(gear, speed_m_s)
+        torque, engine = self.gearbox_input(gear, n_in, launching=launching)
+        ratio = float(self.drivetrain.overall_ratios[gear])
+        force = torque * ratio * float(self.efficiency[gear]) / self.tire.rolling_radius_m
+        force = np.where(n_in > self.rev_limit_rpm * (1.0 + 1e-9), 0.0, force)
+        return force, engine
+
+    def gearbox_input(
+        self, gear: int, n_in: FloatArray, *, launching: bool = False
+    ) -> tuple[FloatArray, FloatArray]:
+        """Torque into the gearbox [N*m] and engine speed [rpm] at gearbox input speeds.
+
+        Parameters
+        ----------
+        gear : int
+            Gear index, 0 for first (a converter may be locked in it).
+        n_in : ndarray, any shape
+            Gearbox input speed [rpm].
+        launching : bool
+            A clutch slips at the launch rpm until the input catches up.
+
+        Returns
+        -------
+        tuple of ndarray, the shape of ``n_in``
+            Torque [N*m] and engine speed [rpm]. A clutch passes the engine's torque; a
+            converter its output torque, locked 1:1 in a lock-up gear wherever the turbine
+            turns at least the curve's first rpm.
+        """
         curve, limit = self.curve, self.rev_limit_rpm
         if self.launch.coupling is Coupling.CLUTCH:
             floor = self.launch_rpm if launching else curve.rpm_min
             engine = np.maximum(n_in, floor)
-            torque = curve.torque_at(np.minimum(engine, limit))
-        else:
-            engine, torque = self._through_converter(gear, n_in)
-        ratio = float(self.drivetrain.overall_ratios[gear])
-        force = torque * ratio * float(self.efficiency[gear]) / self.tire.rolling_radius_m
-        force = np.where(n_in > limit * (1.0 + 1e-9), 0.0, force)
-        return force, engine
-
-    def _through_converter(self, gear: int, n_in: FloatArray) -> tuple[FloatArray, FloatArray]:
-        """Engine speed and converter output torque; a lock-up gear is locked 1:1 wherever
-        the turbine turns at least the curve's first rpm."""
+            return curve.torque_at(np.minimum(engine, limit)), engine
         converter = self.launch.converter
         if converter is None:  # Launch.__post_init__ forbids it; kept for the type
             raise SimulationError("`converter` is missing", parameter="converter")
@@ -163,7 +181,7 @@ class DriveModel:
             )
             engine[slipping] = points.engine_rpm
             torque[slipping] = points.output_torque_nm
-        return engine, torque
+        return torque, engine
 
     def acceleration(
         self, gear: int, speed_m_s: FloatArray, *, launching: bool = False
@@ -308,6 +326,33 @@ class RunResult:
     notices: tuple[Notice, ...]
 
 
+def checked_shift_rpm(model: DriveModel, shift_rpm: ArrayLike) -> FloatArray:
+    """Shift rpms as an array, one per gear change, each above the curve's first point
+    and at most the rev limit [rpm].
+
+    Raises
+    ------
+    SimulationError
+        On a wrong count or an rpm out of range, naming ``shift_rpm[i]``.
+    """
+    gears = model.drivetrain.gear_count
+    shifts = np.asarray(shift_rpm, dtype=np.float64)
+    if shifts.shape != (gears - 1,):
+        raise SimulationError(
+            f"`shift_rpm` must give one rpm per gear change ({gears - 1}), got {shifts.size}",
+            parameter="shift_rpm",
+        )
+    for i, n in enumerate(shifts.tolist()):
+        if not math.isfinite(n) or not model.curve.rpm_min < n <= model.rev_limit_rpm + 1e-9:
+            raise SimulationError(
+                f"`shift_rpm[{i}]` must lie above the curve's first point "
+                f"({model.curve.rpm_min:g}) and at most the rev limit "
+                f"({model.rev_limit_rpm:g}), got {n:g}",
+                parameter=f"shift_rpm[{i}]",
+            )
+    return shifts
+
+
 def _start_gear(model: DriveModel, v0: float, shift_speed: FloatArray) -> int:
     for g in range(shift_speed.size):
         if v0 < shift_speed[g]:
@@ -349,20 +394,7 @@ def simulate_run(
         When the car cannot move off, or the shift rpm list does not fit the gears.
     """
     gears = model.drivetrain.gear_count
-    shifts_in = np.asarray(shift_rpm, dtype=np.float64)
-    if shifts_in.shape != (gears - 1,):
-        raise SimulationError(
-            f"`shift_rpm` must give one rpm per gear change ({gears - 1}), got {shifts_in.size}",
-            parameter="shift_rpm",
-        )
-    for i, n in enumerate(shifts_in.tolist()):
-        if not math.isfinite(n) or not model.curve.rpm_min < n <= model.rev_limit_rpm + 1e-9:
-            raise SimulationError(
-                f"`shift_rpm[{i}]` must lie above the curve's first point "
-                f"({model.curve.rpm_min:g}) and at most the rev limit "
-                f"({model.rev_limit_rpm:g}), got {n:g}",
-                parameter=f"shift_rpm[{i}]",
-            )
+    shifts_in = checked_shift_rpm(model, shift_rpm)
     if not 0.0 <= start_speed_m_s < MAX_SPEED_M_S:
         raise SimulationError(
             f"`start_speed_m_s` must lie in [0, {MAX_SPEED_M_S:g}), got {start_speed_m_s}",
