@@ -8,7 +8,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from core.curves import CurveSource, TorqueCurve
+from core.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
 from core.drivetrain import Drivetrain
 from core.errors import CurveError
 from core.gearing import GearTable, gear_tables, road_speed_m_s, rpm_grid
@@ -94,6 +94,8 @@ class ShiftPlan:
         False for a chassis-dyno curve, which is already net of driveline losses.
     peak_torque_rpm, peak_power_rpm : float
         Where the curve peaks [rpm].
+    peak_torque_nm, peak_power_w : float
+        The peaks themselves [N*m, W].
     notices : tuple of Notice
         Warnings about the inputs or the result.
     """
@@ -104,6 +106,8 @@ class ShiftPlan:
     efficiency_applied: bool
     peak_torque_rpm: float
     peak_power_rpm: float
+    peak_torque_nm: float
+    peak_power_w: float
     notices: tuple[Notice, ...]
 
 
@@ -279,12 +283,15 @@ def shift_plan(
                 coincident_rpm=choice.coincident_rpm,
             )
         )
+    torque_rpm, power_rpm = curve.peak_torque_rpm(), curve.peak_power_rpm()
     return ShiftPlan(
         gears=tables,
         shifts=tuple(shifts),
         rev_limit_rpm=limit,
         efficiency_applied=not chassis,
-        peak_torque_rpm=curve.peak_torque_rpm(),
-        peak_power_rpm=curve.peak_power_rpm(),
+        peak_torque_rpm=torque_rpm,
+        peak_power_rpm=power_rpm,
+        peak_torque_nm=curve.torque_scalar(torque_rpm),
+        peak_power_w=curve.torque_scalar(power_rpm) * power_rpm * RPM_TO_RAD_S,
         notices=tuple(notes),
     )

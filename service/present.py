@@ -117,8 +117,7 @@ def shift_plan_document(
         }
         for s in plan.shifts
     ]
-    t_peak = float(curve.torque_at([plan.peak_torque_rpm])[0])
-    p_peak = float(curve.power_at([plan.peak_power_rpm])[0])
+    t_peak, p_peak = plan.peak_torque_nm, plan.peak_power_w
     return {
         "units": unit_labels(units),
         "engine": {

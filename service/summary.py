@@ -58,8 +58,8 @@ def shift_plan_summary(
     head = "GEARWORK SHIFT PLAN"
     ref = f"ref: {reference}" if reference else ""
     lines = [head + ref.rjust(WIDTH - len(head))]
-    t_peak = from_si(float(curve.torque_at([plan.peak_torque_rpm])[0]), Quantity.TORQUE, units)
-    p_peak = from_si(float(curve.power_at([plan.peak_power_rpm])[0]), Quantity.POWER, units)
+    t_peak = from_si(plan.peak_torque_nm, Quantity.TORQUE, units)
+    p_peak = from_si(plan.peak_power_w, Quantity.POWER, units)
     source = "chassis dyno (net of losses)" if not plan.efficiency_applied else "engine dyno"
     lines += _wrap(
         f"Curve: {source}, {curve.rpm_min:.0f}-{curve.rpm_max:.0f} rpm; peak torque "

@@ -74,3 +74,13 @@ def test_table_ends_at_rev_limit_with_chosen_step() -> None:
     rpm = plan.gears[0].rpm
     assert rpm[0] == 1000.0 and rpm[-1] == 6500.0
     assert_allclose(np.diff(rpm), 250.0, rtol=1e-12)
+
+
+def test_plan_peaks_are_the_curve_at_its_peak_speeds() -> None:
+    # kW = N*m * rpm / 9549.297 (REFERENCES.md: 60000/(2*pi)); PCHIP peaks at a sample
+    curve = torque_curve_from_torque([1000, 3000, 5000, 7000], [300.0, 400.0, 380.0, 300.0])
+    plan = shift_plan(curve, make_drivetrain([3.0, 2.0], 3.5), tire_from_diameter(0.66))
+    assert plan.peak_torque_rpm == 3000.0
+    assert_allclose(plan.peak_torque_nm, 400.0, rtol=1e-12)
+    expected_kw = float(curve.torque_at([plan.peak_power_rpm])[0]) * plan.peak_power_rpm / 9549.297
+    assert_allclose(plan.peak_power_w / 1000.0, expected_kw, rtol=1e-6)
