@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import textwrap
 from collections.abc import Mapping
 from typing import Any
 
@@ -10,11 +9,11 @@ import numpy as np
 
 from core.chassis import ChassisConversion
 from service.present import notices_out, rounded
+from service.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["MODEL_NOTE", "chassis_document", "chassis_summary"]
 
-WIDTH = 80
 SUMMARY_ROWS = 15
 MODEL_NOTE = (
     "Model: wheel = engine x efficiency at the same engine rpm (common practice); in gear "
@@ -72,21 +71,15 @@ def chassis_document(
     }
 
 
-def _wrap(text: str) -> list[str]:
-    return textwrap.wrap(text, WIDTH, subsequent_indent="  ", break_on_hyphens=False)
-
-
 def chassis_summary(c: ChassisConversion, units: UnitSystem, reference: str | None) -> str:
     """The conversion as a short printable sheet: 80 columns, printable ASCII."""
     lab = unit_labels(units)
     pw, tq = lab["power"], lab["torque"]
     p, t = Quantity.POWER, Quantity.TORQUE
-    head = "GEARWORK CHASSIS DYNO CONVERSION"
-    ref = f"ref: {reference}" if reference else ""
-    lines = [head + ref.rjust(WIDTH - len(head))]
+    lines = [title_line("GEARWORK CHASSIS DYNO CONVERSION", reference)]
     where = "the wheels" if c.measured_at.value == "wheels" else "the engine"
     gear = "" if c.measured_gear is None else f" in gear {c.measured_gear}"
-    lines += _wrap(
+    lines += wrap_text(
         f"Measured at {where}{gear}; driveline efficiency {c.efficiency:.3f} "
         f"({100.0 * (1.0 - c.efficiency):.1f} % loss)."
     )
@@ -121,8 +114,8 @@ def chassis_summary(c: ChassisConversion, units: UnitSystem, reference: str | No
             mark = "  (measured)" if j + 1 == c.measured_gear else ""
             lines.append(f"{j + 1:4d}{eta:12.3f}{eta / c.efficiency:10.4f}{peak:15.1f}{mark}")
     lines.append("")
-    lines += _wrap(MODEL_NOTE)
+    lines += wrap_text(MODEL_NOTE)
     for n in c.notices:
         if n.code != "estimate":
-            lines += _wrap(f"Note: {n.message}")
-    return "\n".join(line.rstrip().encode("ascii", "replace").decode("ascii") for line in lines)
+            lines += wrap_text(f"Note: {n.message}")
+    return printable(lines)

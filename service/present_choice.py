@@ -11,9 +11,10 @@ from typing import Any
 
 from core.plan import Notice
 from core.setups import SetupFigures
-from service.cautions import CAUTIONS, SHORT_CAUTION
+from service.cautions import CAUTIONS
 from service.choice_builders import NamedSetup
 from service.present import notices_out, rounded, tire_document
+from service.sheets import WIDTH, summary_sheet, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = [
@@ -22,11 +23,8 @@ __all__ = [
     "comparison_summary",
     "seconds_out",
     "speed_out",
-    "summary_sheet",
-    "wrap_text",
 ]
 
-WIDTH = 80
 Number = float | None
 
 
@@ -194,28 +192,6 @@ def comparison_document(
             }
         )
     return {"units": unit_labels(units), "setups": out, "cautions": list(CAUTIONS)}
-
-
-def wrap_text(text: str, indent: str = "") -> list[str]:
-    """Lines of at most 80 columns, continuation lines indented two spaces."""
-    return textwrap.wrap(
-        text, WIDTH, initial_indent=indent, subsequent_indent="  ", break_on_hyphens=False
-    )
-
-
-def summary_sheet(
-    head: str, reference: str | None, body: list[str], notices: Sequence[Notice]
-) -> str:
-    """A titled sheet: heading and reference, body, warnings and the caution; printable
-    ASCII, at most 80 columns."""
-    ref = f"ref: {reference}" if reference else ""
-    lines = [head + ref.rjust(WIDTH - len(head)), *body]
-    if notices:
-        lines += ["", "Warnings:"]
-        for n in notices:
-            lines += wrap_text(n.message, "- ")
-    lines += ["", *wrap_text("Caution: " + SHORT_CAUTION)]
-    return "\n".join(line.encode("ascii", "replace").decode()[:WIDTH].rstrip() for line in lines)
 
 
 def cell(value: Number, width: int, fmt: str, signed: bool = False) -> str:

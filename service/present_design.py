@@ -9,7 +9,7 @@ from core.plan import Notice
 from service.cautions import CAUTIONS
 from service.design_builders import GearSetStudy, SpeedometerStudy
 from service.present import notices_out, rounded, tire_document
-from service.present_choice import summary_sheet, wrap_text
+from service.sheets import summary_sheet, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["spacing_document", "spacing_summary", "speedometer_document", "speedometer_summary"]

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import textwrap
 from collections.abc import Mapping
 from typing import Any
 
@@ -13,12 +12,12 @@ from core.logtext import LogText
 from service.cautions import CAUTIONS, SHORT_CAUTION
 from service.log_builders import ModelShifts
 from service.present import notices_out
+from service.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["VERDICT_RULE", "log_analysis_document", "log_summary"]
 
 G = 9.80665  # [m/s^2]; accelerations are reported in g, as in the acceleration-run trace
-WIDTH = 80
 VERDICT_RULE = (
     "Verdict: the crossover is where the next gear's logged acceleration, fitted against "
     "speed and extrapolated back, meets this gear's, extrapolated forward; the target is "
@@ -110,10 +109,6 @@ def log_analysis_document(
     }
 
 
-def _wrap(text: str) -> list[str]:
-    return textwrap.wrap(text, WIDTH, subsequent_indent="  ", break_on_hyphens=False)
-
-
 def _verdict_text(s: LoggedShift) -> str:
     word = s.verdict.value.replace("_", " ")
     mark = "*" if s.basis.value == "rev_limit" else ""
@@ -127,11 +122,9 @@ def log_summary(
 ) -> str:
     """The checked pass as a short printable sheet: 80 columns, printable ASCII."""
     spd = unit_labels(units)["speed"]
-    head = "GEARWORK LOG CHECK"
-    ref = f"ref: {reference}" if reference else ""
-    lines = [head + ref.rjust(WIDTH - len(head))]
+    lines = [title_line("GEARWORK LOG CHECK", reference)]
     source = "rpm and speed" if analysis.gears_from.value == "rpm" else "acceleration dips"
-    lines += _wrap(
+    lines += wrap_text(
         f"Log: {log.samples} samples over {log.time_s[-1] - log.time_s[0]:.2f} s "
         f"({', '.join(log.channels)}), analysed at {1.0 / analysis.interval_s:.3g} Hz from "
         f"{analysis.analysed_from_s:.2f} to {analysis.analysed_until_s:.2f} s; gears from "
@@ -161,8 +154,8 @@ def log_summary(
     if any(s.basis.value == "rev_limit" for s in analysis.shifts):
         lines.append("  * against the rev limit, which comes before the crossover")
     lines.append("")
-    lines += _wrap(VERDICT_RULE)
+    lines += wrap_text(VERDICT_RULE)
     for n in analysis.notices:
-        lines += _wrap(f"Warning: {n.message}")
-    lines += _wrap(f"Caution: {SHORT_CAUTION}")
-    return "\n".join(line.rstrip().encode("ascii", "replace").decode("ascii") for line in lines)
+        lines += wrap_text(f"Warning: {n.message}")
+    lines += wrap_text(f"Caution: {SHORT_CAUTION}")
+    return printable(lines)

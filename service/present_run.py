@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import textwrap
 from collections.abc import Mapping
 from typing import Any
 
@@ -12,6 +11,7 @@ from core import OptimalShifts, RunReport, TimedDistance, TimedSpeed, sample_tra
 from core.simulate import DriveModel
 from service.cautions import CAUTIONS, SHORT_CAUTION
 from service.present import notices_out, rounded
+from service.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["run_document", "run_summary"]
@@ -113,9 +113,7 @@ def run_summary(
 ) -> str:
     """The run as a printable sheet of at most 80 columns."""
     spd = unit_labels(units)["speed"]
-    head = "GEARWORK ACCELERATION RUN"
-    ref = f"ref: {reference}" if reference else ""
-    lines = [head + ref.rjust(80 - len(head)), ""]
+    lines = [title_line("GEARWORK ACCELERATION RUN", reference), ""]
     lines.append(f"{'Distance':<10} {'Elapsed s':>9} {'Speed':>9} {'Trap':>9}  ({spd})")
     for d in report.distances:
         if d.elapsed_s is None:
@@ -143,14 +141,12 @@ def run_summary(
     )
     if optimal is not None:
         rpm = ", ".join(f"{n:.0f}" for n in np.asarray(optimal.shift_rpm).tolist())
-        lines += textwrap.wrap(
+        lines += wrap_text(
             f"Quickest shifts found: {rpm} rpm, {optimal.time_s:.3f} s against "
-            f"{optimal.baseline_time_s:.3f} s with the plan.",
-            80,
-            subsequent_indent="  ",
+            f"{optimal.baseline_time_s:.3f} s with the plan."
         )
     for n in report.run.notices:
-        lines += textwrap.wrap(n.message, 80, initial_indent="- ", subsequent_indent="  ")
+        lines += wrap_text(n.message, "- ")
     lines.append("")
-    lines += textwrap.wrap("Caution: " + SHORT_CAUTION, 80, subsequent_indent="  ")
-    return "\n".join(line.encode("ascii", "replace").decode()[:80].rstrip() for line in lines)
+    lines += wrap_text("Caution: " + SHORT_CAUTION)
+    return printable(lines)

@@ -14,7 +14,8 @@ from core.sweep import FinalDriveSweep
 from core.sweepspec import Rejection, SweepConstraints, SweepObjective
 from service.cautions import CAUTIONS
 from service.present import notices_out, rounded
-from service.present_choice import cell, seconds_out, speed_out, summary_sheet, wrap_text
+from service.present_choice import cell, seconds_out, speed_out
+from service.sheets import summary_sheet, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["sweep_document", "sweep_summary"]

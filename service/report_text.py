@@ -5,15 +5,12 @@ from __future__ import annotations
 import textwrap
 
 from service.report_model import Report, Section, Table
+from service.sheets import printable, printable_line
 
 __all__ = ["WIDTH", "render_text", "report_body_lines", "table_lines", "wrap_text"]
 
 WIDTH = 80
 _LABEL = 16  # column where a fact's value starts
-
-
-def _ascii(text: str) -> str:
-    return text.encode("ascii", "replace").decode("ascii")
 
 
 def wrap_text(text: str, first: str = "", rest: str = "  ") -> list[str]:
@@ -73,7 +70,7 @@ def report_body_lines(report: Report) -> list[str]:
     lines += ["CAUTIONS", "--------"]
     for caution in report.cautions:
         lines += wrap_text(caution, "- ")
-    return [_ascii(line)[:WIDTH].rstrip() for line in lines]
+    return [printable_line(line) for line in lines]
 
 
 def render_text(report: Report) -> str:
@@ -88,4 +85,4 @@ def render_text(report: Report) -> str:
     lines += wrap_text("Caution: " + report.short_caution)
     lines.append("")
     lines += report_body_lines(report)
-    return "\n".join(_ascii(line)[:WIDTH].rstrip() for line in lines) + "\n"
+    return printable(lines) + "\n"

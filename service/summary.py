@@ -2,29 +2,14 @@
 
 from __future__ import annotations
 
-import textwrap
-
 from core import Drivetrain, ShiftPlan, Tire, TorqueCurve
 from service.cautions import SHORT_CAUTION
+from service.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["WIDTH", "shift_plan_summary"]
 
 WIDTH = 80
-
-
-def _wrap(text: str, indent: str = "") -> list[str]:
-    return textwrap.wrap(
-        text,
-        WIDTH,
-        initial_indent=indent,
-        subsequent_indent="  ",
-        break_on_hyphens=False,
-    )
-
-
-def _ascii(text: str) -> str:
-    return text.encode("ascii", "replace").decode("ascii")
 
 
 def shift_plan_summary(
@@ -55,13 +40,11 @@ def shift_plan_summary(
     """
     lab = unit_labels(units)
     spd, trq, pwr, lng = lab["speed"], lab["torque"], lab["power"], lab["length"]
-    head = "GEARWORK SHIFT PLAN"
-    ref = f"ref: {reference}" if reference else ""
-    lines = [head + ref.rjust(WIDTH - len(head))]
+    lines = [title_line("GEARWORK SHIFT PLAN", reference)]
     t_peak = from_si(plan.peak_torque_nm, Quantity.TORQUE, units)
     p_peak = from_si(plan.peak_power_w, Quantity.POWER, units)
     source = "chassis dyno (net of losses)" if not plan.efficiency_applied else "engine dyno"
-    lines += _wrap(
+    lines += wrap_text(
         f"Curve: {source}, {curve.rpm_min:.0f}-{curve.rpm_max:.0f} rpm; peak torque "
         f"{t_peak:.0f} {trq} at {plan.peak_torque_rpm:.0f} rpm; peak power {p_peak:.0f} "
         f"{pwr} at {plan.peak_power_rpm:.0f} rpm; rev limit {plan.rev_limit_rpm:.0f} rpm."
@@ -81,7 +64,7 @@ def shift_plan_summary(
         if drivetrain.extra_reduction != 1.0
         else ""
     )
-    lines += _wrap(
+    lines += wrap_text(
         f"Drivetrain: final drive {drivetrain.final_drive_ratio:.3g}{extra}; tire {tire_txt} "
         f"(rolling radius {radius:.1f} {lng}); efficiency {eff_txt}."
     )
@@ -108,7 +91,7 @@ def shift_plan_summary(
         lines.append("")
         lines.append("Warnings:")
         for n in plan.notices:
-            lines += _wrap(n.message, "- ")
+            lines += wrap_text(n.message, "- ")
     lines.append("")
-    lines += _wrap("Caution: " + SHORT_CAUTION)
-    return "\n".join(_ascii(line)[:WIDTH].rstrip() for line in lines)
+    lines += wrap_text("Caution: " + SHORT_CAUTION)
+    return printable(lines)
