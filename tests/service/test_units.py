@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import numpy as np
+import pint
 import pytest
 from numpy.testing import assert_allclose
 from scipy import constants
@@ -57,3 +58,37 @@ def test_conversion_round_trips(system: UnitSystem) -> None:
 
 def test_labels_name_every_quantity() -> None:
     assert set(unit_labels(UnitSystem.US)) == {q.value for q in Quantity} | {"engine_speed"}
+
+
+@pytest.mark.parametrize(
+    ("quantity", "system", "si_per_unit"),
+    [
+        # reference library: scipy.constants
+        pytest.param(Quantity.DISTANCE, UnitSystem.US, constants.foot, id="ft"),
+        pytest.param(Quantity.AREA, UnitSystem.US, constants.foot**2, id="ft^2"),
+        pytest.param(Quantity.DISTANCE, UnitSystem.METRIC, 1.0, id="m"),
+        pytest.param(Quantity.PRESSURE, UnitSystem.METRIC, constants.kilo, id="kPa"),
+    ],
+)
+def test_run_and_air_factors_match_scipy_constants(
+    quantity: Quantity, system: UnitSystem, si_per_unit: float
+) -> None:
+    assert_allclose(to_si(1.0, quantity, system), si_per_unit, rtol=1e-12)
+
+
+def test_inch_of_mercury_matches_pint() -> None:
+    # reference library: pint's inch of mercury (conventional mercury density, 32 degF);
+    # NIST SP 811 lists 3.386389e3 Pa
+    inhg_pa = pint.UnitRegistry().Quantity(1.0, "inHg").to("Pa").magnitude
+    assert_allclose(to_si(1.0, Quantity.PRESSURE, UnitSystem.US), inhg_pa, rtol=1e-6)
+
+
+@pytest.mark.parametrize(
+    ("system", "scale"),
+    [pytest.param(UnitSystem.METRIC, "C", id="degC"), pytest.param(UnitSystem.US, "F", id="degF")],
+)
+def test_temperature_matches_scipy_convert_temperature(system: UnitSystem, scale: str) -> None:
+    # reference library: scipy.constants.convert_temperature
+    values = np.array([-40.0, 0.0, 15.0, 68.0, 100.0])
+    expected = constants.convert_temperature(values, scale, "K")
+    assert_allclose(to_si(values, Quantity.TEMPERATURE, system), expected, rtol=1e-12)
