@@ -187,16 +187,29 @@ def _header_candidates(
             under is not None
             and any(unit_from_text(u) is not None for u in under)
             and not any(_NUMBER_LIKE.fullmatch(u) for u in under)
+            and not _is_named_header(under)
         )
         if under is None or not is_units:
             under = []
         under += [""] * (len(cells) - len(under))
         pairs = zip(cells[: MAX_COLUMNS + 1], under, strict=False)
         read = [read_header_cell(c, u) for c, u in pairs]
-        kinds = {r.quantity for r in read}
-        if any(x in kinds and kinds & ys for x, ys in _CURVE_COLUMNS.items()):
+        if _names_a_curve(read):
             found.append((delimiter, cells, read, is_units))
     return found
+
+
+def _names_a_curve(read: list[HeaderCell]) -> bool:
+    """Whether header cells name an x column and a column a curve may be read from."""
+    kinds = {r.quantity for r in read}
+    return any(x in kinds and kinds & ys for x, ys in _CURVE_COLUMNS.items())
+
+
+def _is_named_header(cells: list[str]) -> bool:
+    """Whether a line is a header in its own right, with names and not only units (so
+    not the units row of the line above, e.g. ``RPM,WHP,Whl Tq (lb-ft)``)."""
+    named = any(c and unit_from_text(c) is None for c in cells)
+    return named and _names_a_curve([read_header_cell(c) for c in cells])
 
 
 def _find_header(significant: list[tuple[int, str]]) -> _Header:

@@ -109,10 +109,10 @@ def _source(table: Table) -> tuple[CurveSource, list[Notice]]:
     """Chassis for wheel figures (or a speed-based run not naming the engine), else engine."""
     x, curve = table.columns[0], table.columns[1]
     if curve.at_wheels:
-        why = f"column {curve.column} ({curve.header!r}) holds figures measured at the wheels"
+        why = f"{curve.column} ({curve.header!r}) holds figures measured at the wheels"
     elif table.speed_based and not names_the_engine(curve):
         why = (
-            f"column {curve.column} ({curve.header!r}) was measured against road speed "
+            f"{curve.column} ({curve.header!r}) was measured against road speed "
             f"({x.header!r}), at the rollers"
         )
     else:
@@ -120,7 +120,7 @@ def _source(table: Table) -> tuple[CurveSource, list[Notice]]:
     return CurveSource.CHASSIS, [
         Notice(
             "chassis_curve",
-            f"The {why}: the curve is a chassis curve (`source` chassis), already net of "
+            f"Column {why}: the curve is a chassis curve (`source` chassis), already net of "
             "driveline losses, so a plan does not take driveline efficiency off again.",
             "text",
         )
