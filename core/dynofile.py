@@ -1,7 +1,8 @@
 """Reading a delimited dyno export given as text.
 
 The text is a table: a header row naming an engine-speed column and a torque and/or power
-column, then one row per sample. The reader finds, in this order:
+column (or a road-speed column and a power or tractive-force column), then one row per
+sample. The reader finds, in this order:
 
 * **Size and content.** At most :data:`MAX_TEXT_CHARS` characters, :data:`MAX_LINES` lines
   and :data:`MAX_COLUMNS` cells a line. NUL, other control characters (except tab and the
@@ -11,9 +12,11 @@ column, then one row per sample. The reader finds, in this order:
 * **Lines to skip.** Blank lines; comment lines, whose first non-blank characters are
   ``#`` or ``//``; and any lines above the header (reported in a notice).
 * **Header and delimiter.** The header is the first line that, split at tab, semicolon or
-  comma, names an engine-speed column and a torque or power column (spellings in
-  :mod:`core.dynocolumns`). When several delimiters qualify, the one that gives the
-  header's cell count on most of the next 20 lines wins (ties: tab, semicolon, comma).
+  comma, names an engine-speed column and a torque or power column, or a road-speed column
+  and a power or force column (spellings in :mod:`core.dynocolumns`). When several
+  delimiters qualify, the one that gives the header's cell count on most of the next 20
+  lines wins (ties: tab, semicolon, comma). A line that is a header in its own right (it
+  has names, not only units) is never taken as the units row of the line above.
   Cells may be quoted with ``"``; a quoted cell may not span lines. Torque or power named
   without a unit may take it from a units row right under the header (``rpm;Nm;kW``).
 * **Decimal mark.** Point or comma, decided over all the cells read
