@@ -23,7 +23,13 @@ from core.curves import RPM_TO_RAD_S
 from core.dynocolumns import ColumnQuantity, DynoColumn
 from core.errors import DynoFileError
 
-__all__ = ["RoadSpeedConversion", "names_the_engine", "road_speed_conversion"]
+__all__ = [
+    "MAX_OVERALL_RATIO",
+    "MAX_ROLLING_RADIUS_M",
+    "RoadSpeedConversion",
+    "names_the_engine",
+    "road_speed_conversion",
+]
 
 FloatArray = NDArray[np.float64]
 

@@ -8,7 +8,7 @@ from collections.abc import Mapping
 from typing import Any
 
 import numpy as np
-from pydantic import Field, ValidationError
+from pydantic import ValidationError
 from starlette.datastructures import UploadFile
 from starlette.requests import Request
 
@@ -49,14 +49,15 @@ _TIRE_ONE_OF = (
 
 
 class GearFields(ApiModel):
-    """The gear a speed-based export was run in (all optional; checked together)."""
+    """The gear a speed-based export was run in, as sent (all optional). The ratio's range
+    is checked by core (``core.dynoroad``), the tire's by the tire schema (``TireIn``)."""
 
-    overall_ratio: float | None = Field(None, gt=0, le=100)
-    tire_size: str | None = Field(None, min_length=4, max_length=40)
-    tire_diameter: float | None = Field(None, gt=0, le=5000)
-    tire_revs_per_mile: float | None = Field(None, gt=0, le=10000)
-    tire_revs_per_km: float | None = Field(None, gt=0, le=10000)
-    tire_rolling_factor: float | None = Field(None, ge=0.85, le=1.0)
+    overall_ratio: float | None = None
+    tire_size: str | None = None
+    tire_diameter: float | None = None
+    tire_revs_per_mile: float | None = None
+    tire_revs_per_km: float | None = None
+    tire_rolling_factor: float | None = None
 
 
 async def uploaded_file(request: Request) -> tuple[bytes, dict[str, str]]:
@@ -117,6 +118,10 @@ def road_speed_gear(
     try:
         tire_in = TireIn.model_validate(tire_given)
     except ValidationError as exc:
+        first = exc.errors()[0]
+        if first["loc"]:
+            name = f"tire_{first['loc'][0]}"
+            raise ProblemError(422, f"`{name}`: {first['msg']}", field=name) from exc
         message = f"give exactly one of {_TIRE_ONE_OF.removeprefix('the tire ')}"
         raise ProblemError(422, message, field="tire") from exc
     with renamed_fields(_TIRE_NAMES):

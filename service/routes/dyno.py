@@ -14,6 +14,7 @@ from core import (
     correction_factors,
     read_dyno_text,
 )
+from core.dynoroad import MAX_OVERALL_RATIO
 from service.builders import ENGINE_FIELDS, build_curve, core_fields
 from service.deps import JsonBody
 from service.dyno_import import (
@@ -45,6 +46,8 @@ _RATIO = (
 )
 _TIRE = "Speed-based export only: the driven tire's size, e.g. `245/40R18`."
 _DIA = "Speed-based export only: the driven tire's overall diameter [mm | in]."
+_REVS = "Speed-based export only: the tire maker's revolutions per mile or per km."
+_ROLLING = "Speed-based export only: rolling radius as a fraction of the free radius."
 AMBIENT_FIELDS = {
     "temperature_k": "ambient.temperature",
     "relative_humidity": "ambient.relative_humidity",
@@ -145,14 +148,14 @@ async def import_torque_curve(
     ] = UnitSystem.METRIC,
     rpm_step: Annotated[float | None, Query(ge=1, le=5000)] = None,
     smoothing_rpm: Annotated[float | None, Query(ge=10, le=5000)] = None,
-    overall_ratio: Annotated[float | None, Query(gt=0, le=100, description=_RATIO)] = None,
-    tire_size: Annotated[str | None, Query(min_length=4, max_length=40, description=_TIRE)] = (
-        None
-    ),
-    tire_diameter: Annotated[float | None, Query(gt=0, le=5000, description=_DIA)] = None,
-    tire_revs_per_mile: Annotated[float | None, Query(gt=0, le=10000)] = None,
-    tire_revs_per_km: Annotated[float | None, Query(gt=0, le=10000)] = None,
-    tire_rolling_factor: Annotated[float | None, Query(ge=0.85, le=1.0)] = None,
+    overall_ratio: Annotated[
+        float | None, Query(gt=0, le=MAX_OVERALL_RATIO, description=_RATIO)
+    ] = None,
+    tire_size: Annotated[str | None, Query(description=_TIRE)] = None,
+    tire_diameter: Annotated[float | None, Query(description=_DIA)] = None,
+    tire_revs_per_mile: Annotated[float | None, Query(description=_REVS)] = None,
+    tire_revs_per_km: Annotated[float | None, Query(description=_REVS)] = None,
+    tire_rolling_factor: Annotated[float | None, Query(description=_ROLLING)] = None,
 ) -> Response:
     """Comma, semicolon or tab separated text (UTF-8 or UTF-16, with or without a byte-order
     mark) with a header naming rpm and torque and/or power with units (lbf*ft, N*m, hp, kW,

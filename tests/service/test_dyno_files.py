@@ -122,6 +122,11 @@ def test_speed_based_export_without_the_gear_is_a_422_naming_the_parameters(
         ),
         pytest.param("", {"overall_ratio": "lots"}, "overall_ratio", id="not-a-number"),
         pytest.param("?tire_diameter=640", {}, "overall_ratio", id="tire-alone"),
+        pytest.param("?overall_ratio=4&tire_diameter=99999", {}, "tire_diameter", id="huge"),
+        pytest.param(
+            "", {"overall_ratio": "0", "tire_size": "245/40R18"}, "overall_ratio", id="zero"
+        ),
+        pytest.param("?overall_ratio=4&tire_size=ab", {}, "tire_size", id="short-size"),
     ],
 )
 def test_bad_gear_for_a_speed_based_export_names_the_field(
