@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from core.curves import RPM_TO_RAD_S, CurveSource
+from core.curves import MAX_TORQUE_NM, RPM_TO_RAD_S, CurveSource
 from core.dynocolumns import ColumnQuantity
 from core.dynonumbers import NumberFormat, number_format_of_texts, parse_column
 from core.dynoparse import Table
@@ -199,20 +199,43 @@ def run_values(table: Table, conversion: RoadSpeedConversion | None) -> RunValue
         if col.quantity is not cols[0].quantity:
             _first_bad(v < 0.0, texts, at, column, ">= 0")
         values.append(v)
-    rpm = _engine_rpm(values[0], table, conversion)
-    curve = cols[1]
-    si = values[1] * curve.unit.si_factor
-    if curve.quantity is ColumnQuantity.TORQUE:
-        torque = si
-    elif table.speed_based and conversion is not None:
-        torque = conversion.engine_torque_nm(si, curve.quantity, rpm)
-    else:
-        torque = si / (rpm * RPM_TO_RAD_S)
-    source, notices = _source(table)
-    numbers = np.asarray(lines, dtype=np.int_)
-    if len(cols) == 3:
-        mask = filled[2]
-        from_power = values[2] * cols[2].unit.si_factor / (rpm[mask] * RPM_TO_RAD_S)
-        note = _mismatch(torque[mask], from_power, rpm[mask], numbers[mask], curve.at_wheels)
-        notices = ([note] if note is not None else []) + notices
+    with np.errstate(over="ignore", invalid="ignore"):  # overflowing cells are refused below
+        rpm = _engine_rpm(values[0], table, conversion)
+        curve = cols[1]
+        si = values[1] * curve.unit.si_factor
+        if curve.quantity is ColumnQuantity.TORQUE:
+            torque = si
+        elif table.speed_based and conversion is not None:
+            torque = conversion.engine_torque_nm(si, curve.quantity, rpm)
+        else:
+            torque = si / (rpm * RPM_TO_RAD_S)
+        _check_torque(torque, rpm, table, conversion)
+        source, notices = _source(table)
+        numbers = np.asarray(lines, dtype=np.int_)
+        if len(cols) == 3:
+            mask = filled[2]
+            from_power = values[2] * cols[2].unit.si_factor / (rpm[mask] * RPM_TO_RAD_S)
+            note = _mismatch(torque[mask], from_power, rpm[mask], numbers[mask], curve.at_wheels)
+            notices = ([note] if note is not None else []) + notices
     return RunValues(rpm, torque, numbers, number_format, source, tuple(notices))
+
+
+def _check_torque(
+    torque: FloatArray, rpm: FloatArray, table: Table, conversion: RoadSpeedConversion | None
+) -> None:
+    """Refuse the first row whose torque (converted, or implied by power or force) exceeds
+    the curve's bound, naming the cell and the most it may hold there."""
+    bad = ~(torque <= MAX_TORQUE_NM)
+    if not bad.any():
+        return
+    k, col = int(np.argmax(bad)), table.columns[1]
+    if col.quantity is ColumnQuantity.TORQUE:
+        rule = f"at most {MAX_TORQUE_NM / col.unit.si_factor:g} {col.unit.value}"
+    else:
+        one = np.array([col.unit.si_factor])  # torque [N*m] of one unit of the column at k
+        if conversion is not None:
+            per_unit = conversion.engine_torque_nm(one, col.quantity, rpm[k : k + 1])[0]
+        else:
+            per_unit = one[0] / (rpm[k] * RPM_TO_RAD_S)
+        rule = f"at most {MAX_TORQUE_NM / per_unit:.6g} {col.unit.value} at {rpm[k]:.6g} rpm"
+    _first_bad(bad, table.cells[1], table.lines, col.column, rule)

@@ -234,3 +234,10 @@ def test_undecodable_bytes_are_reported_with_their_position() -> None:
         decode_export(b"RPM;\xff\xfe\xfd")
     with pytest.raises(DynoFileError, match="UTF-16"):
         decode_export(codecs.BOM_UTF16_LE + b"R\x00P")
+
+
+def test_force_implying_an_impossible_engine_torque_is_refused_with_its_cell() -> None:
+    text = "Speed (km/h);Tractive force (kN)\n40;3\n60;1e305\n80;3\n"
+    with pytest.raises(DynoFileError, match=r"at most .* kN at") as info:
+        read_dyno_text(text, overall_ratio=4.0, rolling_radius_m=0.3)
+    assert (info.value.line, info.value.column) == (3, 2)
