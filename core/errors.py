@@ -14,6 +14,7 @@ applies, e.g. ``"gear_ratios[2]"``), which the service maps onto the caller's fi
           ├── VehicleError        mass, geometry, road load, converter, launch
           ├── SimulationError     a run that cannot proceed (car cannot move, no finish)
           ├── CorrectionError     dyno correction: ambient conditions, correction factor
+          ├── FitError            a fit to measured data that cannot be made (too few points)
           └── DynoFileError       a dyno export that cannot be read (``line``, ``column``)
 """
 
@@ -24,6 +25,7 @@ __all__ = [
     "CurveError",
     "DrivetrainError",
     "DynoFileError",
+    "FitError",
     "GearworkError",
     "SimulationError",
     "TireSizeError",
@@ -100,3 +102,7 @@ class DynoFileError(GearworkError):
         super().__init__(message, parameter=parameter)
         self.line = line
         self.column = column
+
+
+class FitError(GearworkError):
+    """Measured data cannot be fitted: too few points, times not increasing, no motion."""

@@ -15,6 +15,7 @@ from service.routes import (
     acceleration,
     charts,
     chassis,
+    coastdown,
     comparison,
     demo,
     design,
@@ -63,6 +64,7 @@ def create_app() -> FastAPI:
             {"name": "comparison", "description": "Setups side by side."},
             {"name": "final drive sweep", "description": "Rank final-drive ratios."},
             {"name": "gear design", "description": "Gear spacing; speedometer correction."},
+            {"name": "road load", "description": "Road load fitted to coast-downs."},
             {"name": "reports", "description": "Printable reports."},
             {"name": "charts", "description": "Charts of tractive force."},
             {"name": "health", "description": "Liveness and readiness."},
@@ -73,6 +75,8 @@ def create_app() -> FastAPI:
     app.include_router(acceleration.router)
     app.include_router(dyno.router)
     for module in (comparison, sweep, design, reports, charts, log_analysis, chassis, demo):
+        app.include_router(module.router)
+    for module in (coastdown,):
         app.include_router(module.router)
     install_problem_handlers(app)
     app.state.metrics = metrics
