@@ -24,6 +24,7 @@ from service.routes import (
     log_analysis,
     reports,
     shift_plan,
+    shift_window,
     sweep,
 )
 from service.settings import get_settings
@@ -65,6 +66,7 @@ def create_app() -> FastAPI:
             {"name": "final drive sweep", "description": "Rank final-drive ratios."},
             {"name": "gear design", "description": "Gear spacing; speedometer correction."},
             {"name": "road load", "description": "Road load fitted to coast-downs."},
+            {"name": "shift window", "description": "What each shift rpm costs."},
             {"name": "reports", "description": "Printable reports."},
             {"name": "charts", "description": "Charts of tractive force."},
             {"name": "health", "description": "Liveness and readiness."},
@@ -76,7 +78,7 @@ def create_app() -> FastAPI:
     app.include_router(dyno.router)
     for module in (comparison, sweep, design, reports, charts, log_analysis, chassis, demo):
         app.include_router(module.router)
-    for module in (coastdown,):
+    for module in (coastdown, shift_window):
         app.include_router(module.router)
     install_problem_handlers(app)
     app.state.metrics = metrics
