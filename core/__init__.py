@@ -219,6 +219,11 @@ from core.shiftsearch import (
     SEARCH_WON,
     search_shift_rpm,
 )
+from core.shiftwindow import (
+    ShiftWindow,
+    ShiftWindows,
+    shift_windows,
+)
 from core.simulate import (
     DriveModel,
     RunResult,
@@ -287,6 +292,14 @@ from core.vehicle import (
     Launch,
     RotatingInertia,
     Vehicle,
+)
+from core.weather import (
+    SlipPrediction,
+    Weather,
+    WeatherAir,
+    density_altitude_m,
+    predict_slip,
+    weather_air,
 )
 
 __all__ = [
@@ -367,7 +380,10 @@ __all__ = [
     "ShiftReason",
     "ShiftSignals",
     "ShiftVerdict",
+    "ShiftWindow",
+    "ShiftWindows",
     "SimulationError",
+    "SlipPrediction",
     "Spacing",
     "SpeedReadings",
     "SpeedUnit",
@@ -392,6 +408,8 @@ __all__ = [
     "Vehicle",
     "VehicleError",
     "VerdictBasis",
+    "Weather",
+    "WeatherAir",
     "acceleration_fit",
     "acceleration_shift_points",
     "acceleration_shifts",
@@ -418,6 +436,7 @@ __all__ = [
     "correction_factors",
     "crossover",
     "cruise_rpm",
+    "density_altitude_m",
     "drive_model",
     "driven_gear_change",
     "efficiency_from_loss",
@@ -446,6 +465,7 @@ __all__ = [
     "pass_log",
     "pchip_coefficients",
     "planned_shift_rpm",
+    "predict_slip",
     "probe_distances",
     "probe_speeds",
     "progressive_gear_set",
@@ -463,6 +483,7 @@ __all__ = [
     "setup_figures",
     "shift_landings",
     "shift_plan",
+    "shift_windows",
     "simulate_run",
     "speed_at_distance",
     "speed_readings",
@@ -491,5 +512,6 @@ __all__ = [
     "traction_limit_n",
     "uniform_samples",
     "verdict",
+    "weather_air",
     "wheel_from_engine",
 ]

@@ -26,6 +26,7 @@ from service.routes import (
     shift_plan,
     shift_window,
     sweep,
+    weather,
 )
 from service.settings import get_settings
 
@@ -67,6 +68,7 @@ def create_app() -> FastAPI:
             {"name": "gear design", "description": "Gear spacing; speedometer correction."},
             {"name": "road load", "description": "Road load fitted to coast-downs."},
             {"name": "shift window", "description": "What each shift rpm costs."},
+            {"name": "weather", "description": "Density altitude; slips between weathers."},
             {"name": "reports", "description": "Printable reports."},
             {"name": "charts", "description": "Charts of tractive force."},
             {"name": "health", "description": "Liveness and readiness."},
@@ -78,7 +80,7 @@ def create_app() -> FastAPI:
     app.include_router(dyno.router)
     for module in (comparison, sweep, design, reports, charts, log_analysis, chassis, demo):
         app.include_router(module.router)
-    for module in (coastdown, shift_window):
+    for module in (coastdown, shift_window, weather):
         app.include_router(module.router)
     install_problem_handlers(app)
     app.state.metrics = metrics
