@@ -184,10 +184,12 @@
     let text = raw
       .replace(/^`[\w.[\]]+`:\s*/, "")
       .replace(/^Value error,\s*/i, "")
-      .replace(/`([\w.[\]]+)`/g, (_, p) => fieldOf(p).label.toLowerCase());
+      .replace(/`([\w.[\]]+)`/g, (_, p) => fieldOf(p).label.toLowerCase())
+      .replace(/(?:lie )?(?:in )?\(([-\d.]+), ([-\d.]+)\]/g, "be above $1 and at most $2")
+      .replace(/(?:lie )?(?:in )?\[([-\d.]+), ([-\d.]+)\]/g, "be from $1 to $2");
     const label = labelWithIndex(path);
-    if (/^(Input|Value) should/i.test(text)) {
-      text = text.replace(/^(Input|Value) should/i, `${label} should`);
+    if (/^(Input|Value|String|List) should/i.test(text)) {
+      text = text.replace(/^(Input|Value|String|List) should/i, `${label} should`);
     } else if (/^Field required/i.test(text)) {
       text = `${label} is needed.`;
     } else if (!text.toLowerCase().startsWith(field.label.toLowerCase())) {

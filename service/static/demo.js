@@ -272,7 +272,6 @@
       reference: "demo page",
       engine: {
         curve: { rpm: curve.rpm, torque: curve.torque },
-        rev_limit_rpm: readNumber("rev-limit"),
       },
       drivetrain: {
         gear_ratios: gears,
@@ -281,6 +280,7 @@
         tire: readTire(),
       },
     };
+    if (input("rev-limit").value.trim() !== "") base.engine.rev_limit_rpm = readNumber("rev-limit");
     const vehicle = {
       mass: readNumber("mass"),
       front_weight_share: share / 100,
@@ -339,13 +339,23 @@
     document.querySelectorAll(".invalid").forEach((e) => {
       e.classList.remove("invalid");
       e.removeAttribute("aria-invalid");
+      e.removeAttribute("aria-describedby");
     });
+    document.querySelectorAll(".field-error").forEach((e) => e.remove());
   }
-  function markInput(key) {
+  // mark the input and say what is wrong right under it (the status says it too)
+  function markInput(key, text) {
     const el = input(INPUT_IDS[key] || key);
     if (!el) return;
     el.classList.add("invalid");
     el.setAttribute("aria-invalid", "true");
+    if (!text || document.getElementById(`${el.id}-error`)) return;
+    const note = document.createElement("p");
+    note.className = "field-error";
+    note.id = `${el.id}-error`;
+    note.textContent = text;
+    el.setAttribute("aria-describedby", note.id);
+    (el.closest(".slider-row") || el).after(note);
   }
 
   function schedule() {
@@ -356,6 +366,7 @@
   async function update() {
     clearMarks();
     keepUrl();
+    $("curve-print").textContent = els.curve.value;
     let requests;
     try {
       requests = buildRequests();
@@ -363,7 +374,7 @@
       if (!(err instanceof F.InputError)) throw err;
       if (inFlight) inFlight.abort();
       sequence += 1;
-      markInput(err.input);
+      markInput(err.input, err.message);
       finish("error", [{ text: err.message, field: err.input }]);
       return;
     }
@@ -392,10 +403,12 @@
     answers.forEach((a) => {
       if (a.ok) return;
       a.problems.forEach((p) => {
-        if (seen.has(p.text)) return;
-        seen.add(p.text);
+        // one sentence per field: a second about the same input only repeats the first
+        const key = p.input || p.text;
+        if (seen.has(key)) return;
+        seen.add(key);
         problems.push(p);
-        if (p.input) markInput(p.input);
+        if (p.input) markInput(p.input, p.text);
       });
     });
     document.querySelectorAll(".results .card, .tiles").forEach((e) => e.classList.remove("stale"));
@@ -581,7 +594,8 @@
       head = "The speedometer still reads true.";
     } else {
       head = `Reads ${fmt(pct, 1)} % ${s.reads}` + (first
-        ? `: showing ${fmt(first.indicated, 0)} ${u}, the car does ${fmt(first.true, 1)} ${u}.`
+        ? `: showing ${fmt(first.indicated, Number.isInteger(first.indicated) ? 0 : 1)} ${u}, ` +
+          `the car does ${fmt(first.true, 1)} ${u}.`
         : ".");
     }
     els.speedoHead.textContent = head;
@@ -589,7 +603,7 @@
     els.speedoBody.replaceChildren();
     s.speeds.forEach((r) => {
       const tr = document.createElement("tr");
-      cell(tr, `${fmt(r.indicated, 0)} ${u}`);
+      cell(tr, `${fmt(r.indicated, Number.isInteger(r.indicated) ? 0 : 1)} ${u}`);
       cell(tr, `${fmt(r.true, 1)} ${u}`);
       cell(tr, `${r.error >= 0 ? "+" : "−"}${fmt(Math.abs(r.error), 1)} ${u}`);
       els.speedoBody.appendChild(tr);
@@ -730,11 +744,10 @@
     const problem = convertForm(from, to);
     if (problem) {
       // the curve could not be read, so it could not be converted: say so, keep the text
-      markInput("curve");
-      finish("error", [{
-        text: `${problem.message} Its torque was not converted to ${F.UNIT_TEXT[to].torque}.`,
-        field: "curve",
-      }]);
+      const text = `${problem.message} Its torque was not converted to ${F.UNIT_TEXT[to].torque}.`;
+      clearMarks();
+      markInput("curve", text);
+      finish("error", [{ text, field: "curve" }]);
       keepUrl();
       return;
     }
@@ -785,7 +798,10 @@
       els.shareLink.select();
       if (navigator.clipboard && window.isSecureContext) {
         navigator.clipboard.writeText(els.shareLink.value).then(
-          () => { $("share").textContent = "Link copied"; },
+          () => {
+            $("share").textContent = "Link copied";
+            setTimeout(() => { $("share").textContent = "Copy link to this set-up"; }, 2500);
+          },
           () => {},
         );
       }

@@ -230,9 +230,7 @@ def test_a_demo_car_loads_in_the_units_chosen(page: Page) -> None:
     assert_allclose(float(page.input_value("#mass")), 3550 * constants.pound, atol=0.05)
 
 
-def test_shared_link_restores_the_whole_form_and_the_result(
-    page: Page, browser: Browser
-) -> None:
+def test_shared_link_restores_the_whole_form_and_the_result(page: Page, browser: Browser) -> None:
     _switch_units(page, "metric")
     for selector, value in (("#axle", "4.10"), ("#tire-size", "265/35R18"), ("#mass", "1655")):
         before = _updates(page)
@@ -267,6 +265,7 @@ def test_rejected_gear_ratios_show_a_sentence_naming_the_field(page: Page) -> No
     assert "`" not in text and "drivetrain." not in text
     assert page.get_attribute("#status p", "data-field") == "drivetrain.gear_ratios[2]"
     assert "invalid" in (page.get_attribute("#gears", "class") or "")
+    assert (page.text_content("#gears-error") or "").strip() == text  # said beside the field too
     before = _updates(page)
     page.fill("#gears", "3.10, 2.05, 1.48")
     _wait_for_update(page, before, "ready")
