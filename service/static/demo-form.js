@@ -52,13 +52,16 @@
   const RPM_HEADER = /rpm|u\/min|1\/min|engine ?speed|revs/i;
   const TORQUE_HEADER = /torque|\btq\b|n[·*. ]?m|lb[·*. -]?ft|ft[·*. -]?lb/i;
 
-  // one line's cells: tab, then semicolon, then blanks, then commas separate columns
+  // one line's cells: tabs, else semicolons, else blanks between numbers, else commas
   function cells(line) {
     if (line.includes("\t")) return { cells: line.split("\t"), byComma: false };
     if (line.includes(";")) return { cells: line.split(";"), byComma: false };
     const words = line.split(/\s+/).map((w) => w.replace(/^,+|,+$/g, "")).filter(Boolean);
-    if (words.length > 1) return { cells: words, byComma: false };
-    return { cells: line.split(","), byComma: true };
+    if (words.length > 1 && words.every((w) => /^[-+]?[\d.,]+$/.test(w))) {
+      return { cells: words, byComma: false };
+    }
+    if (line.includes(",")) return { cells: line.split(","), byComma: true };
+    return { cells: words, byComma: false };
   }
 
   // "200,5" (decimal comma) and "200.5" are both 200.5; anything else non-numeric is NaN
@@ -68,6 +71,13 @@
     return c === "" ? NaN : Number(c);
   }
 
+  // the unit system a torque column's header names, if it names one
+  function headerSystem(cell) {
+    if (/lbf|lb[·*. -]?ft|ft[·*. -]?lb/i.test(cell)) return "us";
+    if (/n[·*. ]?m\b|newton/i.test(cell)) return "metric";
+    return null;
+  }
+
   function columns(header) {
     const rpm = header.findIndex((h) => RPM_HEADER.test(h));
     const torque = header.findIndex((h, i) => i !== rpm && TORQUE_HEADER.test(h));
@@ -75,10 +85,11 @@
   }
 
   /**
-   * Read a pasted curve: header lines before the data are skipped (and name the rpm and
-   * torque columns when they can), then one row per line.
+   * Read a pasted curve into the form's unit system: header lines before the data are
+   * skipped (and name the rpm and torque columns when they can; a torque header naming the
+   * other system's unit converts the column), then one row per line.
    */
-  function parseCurve(text) {
+  function parseCurve(text, system) {
     const rpm = [];
     const torque = [];
     let cols = [0, 1];
@@ -106,8 +117,9 @@
       }
       if (row.byComma && values.length !== width) {
         throw new InputError(
-          `Torque curve line ${i + 1} reads as ${values.length} numbers: with decimal commas, ` +
-            "put a semicolon or a tab between the columns.",
+          `Torque curve line ${i + 1} reads as ${values.length} numbers: if they hold decimal ` +
+            "commas, put a semicolon or a tab between the columns; else add a header line " +
+            "naming the rpm and torque columns.",
           "curve",
         );
       }
@@ -120,7 +132,17 @@
     if (rpm.length === 0) {
       throw new InputError("Torque curve is empty: give one rpm and torque pair a line.", "curve");
     }
-    return { rpm, torque, header: header !== null };
+    const given = header === null ? null : headerSystem(header[cols[1]] || "");
+    if (given && system && given !== system) {
+      const metric = torque.map((t) => toMetric("torque", t, given));
+      return {
+        rpm,
+        torque: metric.map((t) => fromMetric("torque", t, system)),
+        note: `${rpm.length} points; torque converted from ${UNIT_TEXT[given].torque}, as ` +
+          "its header says.",
+      };
+    }
+    return { rpm, torque, note: `${rpm.length} points${header === null ? "" : ", header skipped"}.` };
   }
 
   function curveText(rpm, torque) {

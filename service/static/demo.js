@@ -152,7 +152,7 @@
     const el = els.curve;
     let curve;
     try {
-      curve = F.parseCurve(el.value);
+      curve = F.parseCurve(el.value, from);
     } catch (err) {
       return err;
     }
@@ -259,7 +259,8 @@
   }
 
   function buildRequests() {
-    const curve = F.parseCurve(els.curve.value);
+    const curve = F.parseCurve(els.curve.value, units());
+    $("curve-note").textContent = curve.note;
     const gears = readList("gears", "Gear ratios");
     if (gears.length === 0) throw new F.InputError("Gear ratios are empty: give first gear first.", "gears");
     const share = readNumber("front-share");

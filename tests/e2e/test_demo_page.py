@@ -308,6 +308,65 @@ def test_pasted_curve_with_a_header_and_decimal_commas_gives_the_same_pull(page:
     assert_allclose(_most_pull(page), force, rtol=1e-9)
 
 
+@pytest.mark.parametrize(
+    ("text", "system", "rpm", "torque"),
+    [
+        pytest.param(
+            "Engine Speed (rpm);Torque [N*m]\n2000;200,5\n3000;240,0\n4000;250,0",
+            "metric",
+            [2000, 3000, 4000],
+            [200.5, 240.0, 250.0],
+            id="semicolons-decimal-commas",
+        ),
+        pytest.param(
+            "Engine Speed (rpm);Torque [N*m]\n2000;200,5\n3000;240,0\n4000;250,0",
+            "us",
+            [2000, 3000, 4000],
+            # the header's N*m converted for a US form: scipy.constants lbf * foot
+            [v / LBF_FT_NM for v in (200.5, 240.0, 250.0)],
+            id="header-unit-converted",
+        ),
+        pytest.param(
+            "RPM,Power (hp),Torque (lb-ft)\r\n2000,76.2,200\r\n3000,125.7,220\r\n",
+            "us",
+            [2000, 3000],
+            [200.0, 220.0],
+            id="csv-torque-third-column",
+        ),
+        pytest.param(
+            "\ufeffrpm\ttorque\n2000\t200,5\n3000\t240\n",
+            "metric",
+            [2000, 3000],
+            [200.5, 240.0],
+            id="tabs-with-bom",
+        ),
+        pytest.param(
+            "2000 200,5\n3000 240\n# comment\n4000, 250.5",
+            "metric",
+            [2000, 3000, 4000],
+            [200.5, 240.0, 250.5],
+            id="blanks-and-commas",
+        ),
+    ],
+)
+def test_pasted_curves_are_read_as_spreadsheets_write_them(
+    page: Page, text: str, system: str, rpm: list[float], torque: list[float]
+) -> None:
+    curve: dict[str, Any] = page.evaluate(
+        "([t, s]) => window.GearworkForm.parseCurve(t, s)", [text, system]
+    )
+    assert curve["rpm"] == rpm
+    assert_allclose(curve["torque"], torque, rtol=1e-12)
+
+
+def test_decimal_commas_between_commas_are_refused_with_a_way_out(page: Page) -> None:
+    before = _updates(page)
+    page.fill("#curve", "2000,200,5\n3000,240,0\n4000,250,0")
+    _wait_for_update(page, before, "error")
+    assert "semicolon or a tab" in _status(page)
+    assert "invalid" in (page.get_attribute("#curve", "class") or "")
+
+
 def test_a_typed_tire_size_moves_the_diameter(page: Page) -> None:
     before = _updates(page)
     page.fill("#tire-size", "275/40R18")
