@@ -5,7 +5,7 @@
 
 (function () {
   const F = window.GearworkForm;
-  // each preset in its own units; loading one into the other system converts it
+  // each preset in its own units; loading one into the other system converts its figures
   const PRESETS = {
     coupe: {
       units: "us",
@@ -18,6 +18,7 @@
         cd: 0.34, "frontal-area": 23.5, "launch-rpm": 3500, "shift-time": 0.25,
         cruise: "55, 65, 75", "stock-tire": "245/40R18", "stock-axle": 3.55,
       },
+      cruise: { us: "55, 65, 75", metric: "90, 110, 130" },
     },
     sedan: {
       units: "metric",
@@ -30,6 +31,7 @@
         cd: 0.3, "frontal-area": 2.25, "launch-rpm": 2800, "shift-time": 0.3,
         cruise: "90, 110, 130", "stock-tire": "205/60R16", "stock-axle": 3.94,
       },
+      cruise: { us: "55, 65, 75", metric: "90, 110, 130" },
     },
   };
   // one colour per gear, first gear first
@@ -197,6 +199,9 @@
     setDiameter(p.values["tire-diameter"]);
     setTireMode("size");
     convertForm(p.units, system);
+    // highway speeds are a choice, not a measurement: round figures in either system
+    input("cruise").value = p.cruise[system];
+    delete input("cruise").dataset.shown;
   }
 
   function readState() {
