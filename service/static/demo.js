@@ -366,7 +366,7 @@
 
   function schedule() {
     clearTimeout(timer);
-    timer = setTimeout(update, 150);
+    timer = setTimeout(update, 120);
   }
 
   async function update() {
@@ -389,12 +389,22 @@
     inFlight = controller;
     const mine = ++sequence;
     document.body.dataset.state = "busy";
+    // each answer is drawn as it arrives (the plan is quickest), the status when all are in
+    const shown = (request, draw, cards) => request.then((a) => {
+      if (mine !== sequence) return a;
+      cards.forEach((sel) => document.querySelector(sel).closest(".card").classList.toggle("stale", !a.ok));
+      if (a.ok) draw(a.body);
+      return a;
+    });
     let answers;
     try {
       answers = await Promise.all([
-        ask("/v1/shift-plan", requests.plan, controller.signal),
-        ask("/v1/acceleration-run", requests.run, controller.signal),
-        ask("/v1/speedometer-correction", requests.speedo, controller.signal),
+        shown(ask("/v1/shift-plan", requests.plan, controller.signal), renderPlan,
+          ["#shift-table", "#gear-table", "#cruise-table", "#chart"]),
+        shown(ask("/v1/acceleration-run", requests.run, controller.signal), renderRun,
+          ["#run-table"]),
+        shown(ask("/v1/speedometer-correction", requests.speedo, controller.signal), renderSpeedo,
+          ["#speedo-table"]),
       ]);
     } catch (err) {
       if (err.name === "AbortError") return;
@@ -417,10 +427,6 @@
         if (p.input) markInput(p.input, p.text);
       });
     });
-    document.querySelectorAll(".results .card, .tiles").forEach((e) => e.classList.remove("stale"));
-    if (plan.ok) renderPlan(plan.body); else markStale(["#shift-table", "#gear-table", "#cruise-table", "#chart"]);
-    if (run.ok) renderRun(run.body); else markStale(["#run-table"]);
-    if (speedo.ok) renderSpeedo(speedo.body); else markStale(["#speedo-table"]);
     renderNotes([plan, run, speedo].filter((a) => a.ok).map((a) => a.body));
     if (problems.length) {
       finish("error", problems);
@@ -431,13 +437,6 @@
       text: `${plan.body.gears.length} gears, ${plan.body.shifts.length} shifts; in top gear ` +
         `the rev limit comes at ${fmt(top.max_speed, 1)} ${plan.body.units.speed}.`,
     }]);
-  }
-
-  function markStale(selectors) {
-    selectors.forEach((s) => {
-      const card = document.querySelector(s).closest(".card");
-      if (card) card.classList.add("stale");
-    });
   }
 
   function finish(state, messages) {
@@ -740,6 +739,7 @@
       ctx.beginPath(); ctx.arc(sx, bottom, 3.5, 0, 2 * Math.PI); ctx.fill(); ctx.stroke();
     });
     canvas.dataset.series = String(plan.gears.length);
+    canvas.dataset.drawn = String(Number(canvas.dataset.drawn || 0) + 1);
     canvas.dataset.shifts = String(plan.shifts.length);
   }
 
