@@ -179,6 +179,7 @@
     [/^launch\.launch_rpm/, "launchRpm", "Launch rpm"],
     [/^launch\.shift_time/, "shiftTime", "Time per shift"],
     [/^(cruise_speeds|indicated_speeds)/, "cruise", "Highway speeds"],
+    [/^drive$/, "speedoDrive", "Speedometer signal"],
   ];
 
   function fieldOf(path) {

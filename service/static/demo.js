@@ -17,6 +17,7 @@
         drive: "rear", "front-share": 53, grip: 1.0, wheelbase: 107, "cg-height": 19,
         cd: 0.34, "frontal-area": 23.5, "launch-rpm": 3500, "shift-time": 0.25,
         cruise: "55, 65, 75", "stock-tire": "245/40R18", "stock-axle": 3.55,
+        "speedo-drive": "transmission_output",
       },
       cruise: { us: "55, 65, 75", metric: "90, 110, 130" },
     },
@@ -30,6 +31,7 @@
         drive: "front", "front-share": 60, grip: 0.95, wheelbase: 2720, "cg-height": 540,
         cd: 0.3, "frontal-area": 2.25, "launch-rpm": 2800, "shift-time": 0.3,
         cruise: "90, 110, 130", "stock-tire": "205/60R16", "stock-axle": 3.94,
+        "speedo-drive": "wheel",
       },
       cruise: { us: "55, 65, 75", metric: "90, 110, 130" },
     },
@@ -50,7 +52,7 @@
   const STATE_FIELDS = [
     "curve", "rev-limit", "gears", "axle", "efficiency", "tire-size", "tire-diameter", "mass",
     "drive", "front-share", "grip", "wheelbase", "cg-height", "cd", "frontal-area",
-    "launch-rpm", "shift-time", "cruise", "stock-tire", "stock-axle",
+    "launch-rpm", "shift-time", "cruise", "stock-tire", "stock-axle", "speedo-drive",
   ];
   const NAMES = {
     "rev-limit": "Rev limit", axle: "Axle ratio", efficiency: "Driveline efficiency",
@@ -83,7 +85,7 @@
     stockTire: "stock-tire", stockAxle: "stock-axle", mass: "mass", frontShare: "front-share",
     wheelbase: "wheelbase", cgHeight: "cg-height", grip: "grip", drive: "drive", cd: "cd",
     frontalArea: "frontal-area", launchRpm: "launch-rpm", shiftTime: "shift-time",
-    cruise: "cruise",
+    cruise: "cruise", speedoDrive: "speedo-drive",
   };
 
   let lastPlan = null;
@@ -212,7 +214,8 @@
 
   function applyState(state) {
     const system = state.u === "metric" ? "metric" : "us";
-    if (PRESETS[state.p]) loadPreset(state.p, system);
+    // a demo car first, so a link from an older page missing a field still gives a full form
+    loadPreset(PRESETS[state.p] ? state.p : "coupe", system);
     showUnits(system);
     els.preset.value = PRESETS[state.p] || state.p === "own" ? state.p : "own";
     STATE_FIELDS.forEach((id) => {
@@ -311,7 +314,7 @@
       speedo: {
         units: base.units,
         reference: "demo page",
-        drive: "transmission_output",
+        drive: input("speedo-drive").value,
         original: { tire: { size: stockTire }, final_drive_ratio: readNumber("stock-axle") },
         new: { tire: base.drivetrain.tire, final_drive_ratio: base.drivetrain.final_drive_ratio },
         indicated_speeds: cruise.length ? cruise : undefined,

@@ -42,7 +42,7 @@ AXLE_BEFORE, AXLE_AFTER = 3.55, 4.10
 FORM_FIELDS = [
     "curve", "rev-limit", "gears", "axle", "efficiency", "tire-size", "tire-diameter", "mass",
     "drive", "front-share", "grip", "wheelbase", "cg-height", "cd", "frontal-area",
-    "launch-rpm", "shift-time", "cruise", "stock-tire", "stock-axle",
+    "launch-rpm", "shift-time", "cruise", "stock-tire", "stock-axle", "speedo-drive",
 ]  # fmt: skip
 # scipy.constants: lbf in N, foot and inch in m
 LBF_FT_NM = constants.lbf * constants.foot
@@ -393,6 +393,29 @@ def test_highway_rpm_and_speedometer_error_match_the_closed_forms(page: Page) ->
     error = float(page.get_attribute("#speedo-headline", "data-error-percent") or "nan")
     assert_allclose(error, (stock_in / diameter_in - 1) * 100, atol=2e-3)
     assert "low" in (page.text_content("#speedo-headline") or "")
+
+
+def test_a_wheel_sensor_speedometer_ignores_the_axle_ratio(page: Page) -> None:
+    diameter_in = 18 + 2 * 255 * 0.40 / 25.4  # 255/40R18 on the demo coupe
+    stock_in = 18 + 2 * 245 * 0.40 / 25.4  # calibrated for 245/40R18
+    for selector, value in (("#speedo-drive", "wheel"), ("#axle", f"{AXLE_AFTER:.2f}")):
+        before = _updates(page)
+        if selector.endswith("drive"):
+            page.select_option(selector, value)
+        else:
+            page.fill(selector, value)
+        _wait_for_update(page, before, "ready")
+        error = float(page.get_attribute("#speedo-headline", "data-error-percent") or "nan")
+        # closed form: a sensor at the wheel sees only the tire, D_old / D_new of the truth
+        assert_allclose(error, (stock_in / diameter_in - 1) * 100, atol=2e-3)
+    before = _updates(page)
+    page.select_option("#speedo-drive", "transmission_output")
+    _wait_for_update(page, before, "ready")
+    # at the gearbox output the axle counts too: shown / true = (D_old / D_new) * (f_new / f_old)
+    error = float(page.get_attribute("#speedo-headline", "data-error-percent") or "nan")
+    expected = (stock_in / diameter_in * AXLE_AFTER / AXLE_BEFORE - 1) * 100
+    assert_allclose(error, expected, atol=2e-3)
+    assert "high" in (page.text_content("#speedo-headline") or "")
 
 
 def test_print_button_prints_a_sheet_without_the_controls(page: Page) -> None:
