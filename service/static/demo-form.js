@@ -208,6 +208,8 @@
       .replace(/^`[\w.[\]]+`:\s*/, "")
       .replace(/^Value error,\s*/i, "")
       .replace(/`([\w.[\]]+)`/g, (_, p) => fieldOf(p).label.toLowerCase())
+      .replace(/\b(?:engine|drivetrain|vehicle|launch|original|new)\.[\w.]+(?:\[\d+\])?/g,
+        (p) => fieldOf(p).label.toLowerCase())
       .replace(/(?:lie )?(?:in )?\(([-\d.]+), ([-\d.]+)\]/g, "be above $1 and at most $2")
       .replace(/(?:lie )?(?:in )?\[([-\d.]+), ([-\d.]+)\]/g, "be from $1 to $2");
     const label = labelWithIndex(path);

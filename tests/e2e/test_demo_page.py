@@ -274,6 +274,58 @@ def test_rejected_gear_ratios_show_a_sentence_naming_the_field(page: Page) -> No
 
 
 @pytest.mark.parametrize(
+    ("field", "message", "sentence"),
+    [
+        pytest.param(
+            "drivetrain.gear_ratios[2]",
+            "`drivetrain.gear_ratios` must be strictly descending: gear 3 (2.4) is not below "
+            "gear 2 (2.05)",
+            "Gear ratios must be strictly descending: gear 3 (2.4) is not below gear 2 (2.05).",
+            id="core-message",
+        ),
+        pytest.param(
+            "vehicle.mass",
+            "Input should be greater than 0",
+            "Mass should be greater than 0.",
+            id="schema-message",
+        ),
+        pytest.param(
+            "drivetrain.gear_ratios[1]",
+            "Input should be greater than 0",
+            "Gear ratios, value 2, should be greater than 0.",
+            id="list-index",
+        ),
+        pytest.param(
+            "",
+            "`cruise_speeds` must each lie in (0, 500]",
+            "Highway speeds must each be above 0 and at most 500.",
+            id="no-field-interval",
+        ),
+        pytest.param(
+            "drivetrain.efficiency",
+            "drivetrain.efficiency must be at most 1, got 1.5",
+            "Driveline efficiency must be at most 1, got 1.5.",
+            id="bare-path",
+        ),
+        pytest.param(
+            "original.tire.size",
+            "String should have at least 4 characters",
+            "Calibrated tire size should have at least 4 characters.",
+            id="speedometer-field",
+        ),
+    ],
+)
+def test_problem_details_become_sentences_in_the_forms_words(
+    page: Page, field: str, message: str, sentence: str
+) -> None:
+    # RFC 9457 problem details: each item of `errors` has the field path and a message
+    out: dict[str, Any] = page.evaluate(
+        "([f, m]) => window.GearworkForm.sentence({field: f, message: m})", [field, message]
+    )
+    assert out["text"] == sentence
+
+
+@pytest.mark.parametrize(
     ("selector", "value", "name"),
     [
         pytest.param("#mass", "-5", "Mass", id="car-mass"),
