@@ -203,6 +203,10 @@
   function sentence(item) {
     const raw = String(item.message || item.detail || "The request was refused.");
     const path = item.field || (/`([\w.[\]]+)`/.exec(raw) || [])[1] || "";
+    if (!path) {
+      const plain = raw.replace(/\s+$/, "");
+      return { text: /[.!?]$/.test(plain) ? plain : `${plain}.`, input: null, field: "" };
+    }
     const field = fieldOf(path);
     let text = raw
       .replace(/^`[\w.[\]]+`:\s*/, "")

@@ -93,6 +93,9 @@
   let sequence = 0;
   let inFlight = null;
   let timer = 0;
+  let retries = 0;
+  const MAX_RETRIES = 3;
+  const MAX_RETRY_S = 10;
 
   const units = () => document.querySelector('input[name="units"]:checked').value;
   const tireMode = () => document.querySelector('input[name="tire-mode"]:checked').value;
@@ -335,13 +338,17 @@
     } catch (err) {
       answer = null;
     }
-    if (response.ok) return { ok: true, body: answer };
-    const retry = response.headers.get("Retry-After");
-    const items = answer && Array.isArray(answer.errors) && answer.errors.length
-      ? answer.errors : [{ field: answer && answer.field, message: answer && answer.detail }];
-    const problems = items.map(F.sentence);
-    if (retry) problems.push({ text: `The service is busy; it asks to retry in ${retry} s.`, input: null });
-    return { ok: false, problems };
+    if (response.ok) return { ok: true, body: answer, retry: 0 };
+    const retry = Number(response.headers.get("Retry-After")) || 0;
+    if (response.status >= 500 || response.status === 429 || !answer) {
+      const text = retry
+        ? `The service is busy; the page asks again in ${Math.min(retry, MAX_RETRY_S)} s.`
+        : `The service could not answer (status ${response.status}); try again.`;
+      return { ok: false, problems: [{ text, input: null }], retry };
+    }
+    const items = Array.isArray(answer.errors) && answer.errors.length
+      ? answer.errors : [{ field: answer.field, message: answer.detail }];
+    return { ok: false, problems: items.map(F.sentence), retry: 0 };
   }
 
   function clearMarks() {
@@ -368,6 +375,7 @@
   }
 
   function schedule() {
+    retries = 0;
     clearTimeout(timer);
     timer = setTimeout(update, 120);
   }
@@ -433,6 +441,13 @@
     renderNotes([plan, run, speedo].filter((a) => a.ok).map((a) => a.body));
     if (problems.length) {
       finish("error", problems);
+      // a busy service names its wait (Retry-After): ask again by itself, a few times
+      const retry = Math.max(...answers.map((a) => a.retry));
+      if (retry > 0 && retries < MAX_RETRIES) {
+        retries += 1;
+        clearTimeout(timer);
+        timer = setTimeout(update, Math.min(retry, MAX_RETRY_S) * 1000);
+      }
       return;
     }
     const top = plan.body.gears[plan.body.gears.length - 1];

@@ -11,7 +11,9 @@ demo-metric.png).
 from __future__ import annotations
 
 import contextlib
+import json
 import math
+import re
 import subprocess
 from collections.abc import Iterator
 from pathlib import Path
@@ -20,7 +22,7 @@ from typing import Any
 import numpy as np
 import pytest
 from numpy.testing import assert_allclose
-from playwright.sync_api import Browser, Page, sync_playwright
+from playwright.sync_api import Browser, Page, Route, sync_playwright
 from scipy import constants
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -81,12 +83,12 @@ def _open(browser: Browser, url: str, errors: list[str]) -> Page:
     context = browser.new_context(viewport={"width": 1360, "height": 1000})
     pg = context.new_page()
     pg.on("pageerror", lambda exc: errors.append(str(exc)))
-    # the browser logs every failed fetch; a 422 is the page's own error test at work
+    # the browser logs every failed fetch; a 422 or 503 is the page's own error test at work
     pg.on(
         "console",
         lambda msg: (
             errors.append(msg.text)
-            if msg.type == "error" and "status of 422" not in msg.text
+            if msg.type == "error" and not re.search(r"status of (422|503)", msg.text)
             else None
         ),
     )
@@ -477,3 +479,30 @@ def test_print_button_prints_a_sheet_without_the_controls(page: Page) -> None:
     page.emulate_media(media="print")
     assert not page.is_visible("#print") and not page.is_visible("#share")
     assert page.is_visible("#chart") and page.is_visible("#run-table")
+
+
+def test_a_busy_service_is_asked_again_after_its_retry_after(page: Page) -> None:
+    calls: list[int] = []
+
+    def busy_once(route: Route) -> None:
+        calls.append(1)
+        if len(calls) > 1:
+            route.continue_()
+            return
+        # RFC 9457 problem details with Retry-After (RFC 9110, 10.2.3), as an admission
+        # limit answers
+        problem = {"type": "about:blank", "title": "Busy", "status": 503, "detail": "Busy."}
+        route.fulfill(
+            status=503,
+            headers={"Retry-After": "1", "Content-Type": "application/problem+json"},
+            body=json.dumps(problem),
+        )
+
+    page.route("**/v1/acceleration-run", busy_once)
+    before = _updates(page)
+    page.fill("#axle", f"{AXLE_AFTER:.2f}")
+    _wait_for_update(page, before, "error")
+    assert "busy" in _status(page) and "1 s" in _status(page)
+    before = _updates(page)
+    _wait_for_update(page, before, "ready")  # asked again by itself, nothing typed
+    assert len(calls) == 2
