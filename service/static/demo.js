@@ -140,13 +140,13 @@
   }
 
   // a figure's value in metric: exact when the field still shows what a conversion put there
-  function metricOf(el, kind, from) {
+  function metricOf(el) {
     if (el.dataset.shown === el.value && el.dataset.metric) return JSON.parse(el.dataset.metric);
     return null;
   }
 
   function convertNumber(el, kind, from, to) {
-    const kept = metricOf(el, kind, from);
+    const kept = metricOf(el);
     const value = Number(el.value);
     if (kept === null && (el.value.trim() === "" || !Number.isFinite(value))) return;
     const metric = kept === null ? F.toMetric(kind, value, from) : kept;
@@ -163,7 +163,7 @@
     } catch (err) {
       return err;
     }
-    const kept = metricOf(el, "torque", from);
+    const kept = metricOf(el);
     const metric = kept === null ? curve.torque.map((t) => F.toMetric("torque", t, from)) : kept;
     el.value = F.curveText(curve.rpm, metric.map((t) => F.shown("torque", t, to)));
     el.dataset.metric = JSON.stringify(metric);
@@ -174,7 +174,7 @@
   function convertList(el, from, to) {
     const values = F.parseList(el.value);
     if (values.length === 0 || values.some((v) => !Number.isFinite(v))) return;
-    const kept = metricOf(el, "speed", from);
+    const kept = metricOf(el);
     const metric = kept === null ? values.map((v) => F.toMetric("speed", v, from)) : kept;
     el.value = metric.map((v) => F.shown("speed", v, to)).join(", ");
     el.dataset.metric = JSON.stringify(metric);
@@ -243,13 +243,13 @@
   }
 
   // ---- requests ---------------------------------------------------------------------------
-  function readNumber(id, percent) {
+  function readNumber(id) {
     const el = input(id);
     const value = Number(el.value);
     if (el.value.trim() === "" || !Number.isFinite(value)) {
       throw new F.InputError(`${NAMES[id]} must be a number.`, id);
     }
-    return percent ? value / 100 : value;
+    return value;
   }
 
   function readTire() {
