@@ -180,6 +180,7 @@
     [/^launch\.shift_time/, "shiftTime", "Time per shift"],
     [/^(cruise_speeds|indicated_speeds)/, "cruise", "Highway speeds"],
     [/^drive$/, "speedoDrive", "Speedometer signal"],
+    [/^(shift_criterion|shifts\.criterion)/, "shiftRule", "Shift rule"],
   ];
 
   function fieldOf(path) {

@@ -17,7 +17,7 @@
         drive: "rear", "front-share": 53, grip: 1.0, wheelbase: 107, "cg-height": 19,
         cd: 0.34, "frontal-area": 23.5, "launch-rpm": 3500, "shift-time": 0.25,
         cruise: "55, 65, 75", "stock-tire": "245/40R18", "stock-axle": 3.55,
-        "speedo-drive": "transmission_output",
+        "speedo-drive": "transmission_output", "shift-rule": "net_acceleration",
       },
       cruise: { us: "55, 65, 75", metric: "90, 110, 130" },
     },
@@ -31,7 +31,7 @@
         drive: "front", "front-share": 60, grip: 0.95, wheelbase: 2720, "cg-height": 540,
         cd: 0.3, "frontal-area": 2.25, "launch-rpm": 2800, "shift-time": 0.3,
         cruise: "90, 110, 130", "stock-tire": "205/60R16", "stock-axle": 3.94,
-        "speedo-drive": "wheel",
+        "speedo-drive": "wheel", "shift-rule": "net_acceleration",
       },
       cruise: { us: "55, 65, 75", metric: "90, 110, 130" },
     },
@@ -53,6 +53,7 @@
     "curve", "rev-limit", "gears", "axle", "efficiency", "tire-size", "tire-diameter", "mass",
     "drive", "front-share", "grip", "wheelbase", "cg-height", "cd", "frontal-area",
     "launch-rpm", "shift-time", "cruise", "stock-tire", "stock-axle", "speedo-drive",
+    "shift-rule",
   ];
   const NAMES = {
     "rev-limit": "Rev limit", axle: "Axle ratio", efficiency: "Driveline efficiency",
@@ -85,7 +86,7 @@
     stockTire: "stock-tire", stockAxle: "stock-axle", mass: "mass", frontShare: "front-share",
     wheelbase: "wheelbase", cgHeight: "cg-height", grip: "grip", drive: "drive", cd: "cd",
     frontalArea: "frontal-area", launchRpm: "launch-rpm", shiftTime: "shift-time",
-    cruise: "cruise", speedoDrive: "speedo-drive",
+    cruise: "cruise", speedoDrive: "speedo-drive", shiftRule: "shift-rule",
   };
 
   let lastPlan = null;
@@ -302,13 +303,15 @@
       friction_coefficient: readNumber("grip"),
       road_load: { drag_coefficient: readNumber("cd"), frontal_area: readNumber("frontal-area") },
     };
+    const rule = input("shift-rule").value;
     const stockTire = input("stock-tire").value.trim();
     if (!stockTire) throw new F.InputError("Calibrated tire size is empty.", "stock-tire");
     return {
-      plan: { ...base, vehicle, cruise_speeds: cruise },
+      plan: { ...base, vehicle, cruise_speeds: cruise, shift_criterion: rule },
       run: {
         ...base,
         vehicle,
+        shifts: { criterion: rule },
         launch: {
           coupling: "clutch", launch_rpm: readNumber("launch-rpm"),
           shift_time: readNumber("shift-time"),
@@ -509,8 +512,13 @@
       cell(tr, `${fmt(s.shift_speed, 1)} ${u.speed}`);
       cell(tr, fmt(s.rpm_after, 0));
       cell(tr, fmt(s.rpm_drop, 0));
-      const why = { crossover: "next gear pulls harder", rev_limit: "rev limit",
-        drag_limit: "gear stops gaining" }[s.reason] || s.reason;
+      const why = {
+        crossover: plan.shift_criterion === "net_acceleration"
+          ? "next gear accelerates harder" : "next gear pulls harder",
+        rev_limit: "rev limit",
+        drag_limit: "gear stops gaining",
+        traction_limit: "tires at their grip",
+      }[s.reason] || s.reason.replace(/_/g, " ");
       cell(tr, why, `reason ${s.reason}`);
       tr.dataset.shiftRpm = String(s.shift_rpm);
       tr.dataset.shiftSpeed = String(s.shift_speed);
@@ -535,6 +543,13 @@
     setKpi("kpi-top", perf ? `${fmt(perf.top_speed.speed, 1)} ${u.speed}` : "–");
     renderLegend(plan);
     drawChart(plan);
+    $("chart-hint").textContent = "One line per gear, from the curve's first rpm to the rev " +
+      "limit. A filled dot marks a shift and the dashed drop ends where the next gear takes " +
+      (plan.shift_criterion === "net_acceleration"
+        ? "over: where the next gear accelerates the car harder once drag, rolling resistance " +
+          "and the rotating parts are counted (so before the lines cross), or the rev limit."
+        : "over: where the next gear pulls harder at the tires, or the rev limit if it never " +
+          "does.");
   }
 
   // one row per gear, one column per highway speed; above the rev limit is marked
@@ -600,6 +615,7 @@
     setKpi("kpi-quarter", quarter && quarter.elapsed !== null ? `${fmt(quarter.elapsed, 2)} s` : "–");
     $("kpi-trap").textContent = quarter && quarter.trap_speed !== null
       ? `trap ${fmt(quarter.trap_speed, 1)} ${u.speed}` : "";
+    els.runBody.dataset.shiftRpm = JSON.stringify(run.shift_rpm);
     const shifts = run.shifts.map((s) => fmt(s.rpm_before, 0)).join(", ");
     const grip = run.traction_limited_to === null ? "The tires never limit the drive."
       : `The tires limit the drive up to ${fmt(run.traction_limited_to, 1)} ${u.speed}.`;

@@ -45,6 +45,7 @@ FORM_FIELDS = [
     "curve", "rev-limit", "gears", "axle", "efficiency", "tire-size", "tire-diameter", "mass",
     "drive", "front-share", "grip", "wheelbase", "cg-height", "cd", "frontal-area",
     "launch-rpm", "shift-time", "cruise", "stock-tire", "stock-axle", "speedo-drive",
+    "shift-rule",
 ]  # fmt: skip
 # scipy.constants: lbf in N, foot and inch in m
 LBF_FT_NM = constants.lbf * constants.foot
@@ -175,6 +176,9 @@ def _status(page: Page) -> str:
 
 
 def test_axle_ratio_change_keeps_shift_rpm_and_lowers_shift_speeds(page: Page) -> None:
+    before = _updates(page)
+    page.select_option("#shift-rule", "tractive_force")  # where the next gear pulls harder
+    _wait_for_update(page, before, "ready")
     rpm_before, speed_before = _shift_rows(page)
     assert rpm_before.size == 5  # six-speed demo coupe
     before = _updates(page)
@@ -189,6 +193,20 @@ def test_axle_ratio_change_keeps_shift_rpm_and_lowers_shift_speeds(page: Page) -
     assert page.input_value("#axle-slider") == f"{AXLE_AFTER:.1f}"
     assert page.get_attribute("#chart", "data-series") == "6"
     assert _painted_pixels(page) > 5000
+
+
+@pytest.mark.parametrize("rule", ["net_acceleration", "tractive_force"])
+def test_the_shift_table_and_the_run_shift_at_the_same_rpm(page: Page, rule: str) -> None:
+    if page.input_value("#shift-rule") != rule:
+        before = _updates(page)
+        page.select_option("#shift-rule", rule)
+        _wait_for_update(page, before, "ready")
+    plan_rpm = _shift_rows(page)[0]
+    run_rpm: list[float] = page.evaluate(
+        "JSON.parse(document.querySelector('#run-table tbody').dataset.shiftRpm)"
+    )
+    # one shift rule for both answers, so the run leaves each gear where the table says
+    assert_allclose(run_rpm, plan_rpm, rtol=1e-3)
 
 
 def test_switching_units_converts_the_form_and_keeps_every_force_and_time(page: Page) -> None:
