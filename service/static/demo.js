@@ -546,8 +546,9 @@
     $("chart-hint").textContent = "One line per gear, from the curve's first rpm to the rev " +
       "limit. A filled dot marks a shift and the dashed drop ends where the next gear takes " +
       (plan.shift_criterion === "net_acceleration"
-        ? "over: where the next gear accelerates the car harder once drag, rolling resistance " +
-          "and the rotating parts are counted (so before the lines cross), or the rev limit."
+        ? "over: where the next gear accelerates the car harder once drag, rolling resistance, " +
+          "the rotating parts and the tires' grip (dashed rule) are counted, so often before " +
+          "the lines cross; or the rev limit."
         : "over: where the next gear pulls harder at the tires, or the rev limit if it never " +
           "does.");
   }
@@ -756,6 +757,20 @@
       });
       ctx.stroke();
     });
+
+    // the most the driven tires can put down (with a car described): a dashed rule
+    if (plan.performance && plan.performance.traction_limit < maxForce) {
+      const gy = y(plan.performance.traction_limit);
+      ctx.strokeStyle = "#8a96a3";
+      ctx.lineWidth = 1.2;
+      ctx.setLineDash([7, 5]);
+      ctx.beginPath(); ctx.moveTo(pad.left, gy); ctx.lineTo(pad.left + plotW, gy); ctx.stroke();
+      ctx.setLineDash([]);
+      ctx.fillStyle = "#56606b";
+      ctx.textAlign = "right";
+      ctx.textBaseline = "bottom";
+      ctx.fillText("tire grip limit", pad.left + plotW - 6, gy - 3);
+    }
 
     // each shift: a filled dot on this gear, a dashed drop, a ring where the next takes over
     plan.shifts.forEach((s) => {
