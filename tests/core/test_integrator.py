@@ -345,7 +345,8 @@ def test_traction_stops_limiting_where_the_drive_force_meets_the_limit() -> None
     )
     load = RoadLoad.from_coast_down(1200.0, 150.0, 0.0, 0.4)
     vehicle = Vehicle(1200.0, load, GEOMETRY, DriveLayout.REAR, 0.9, inertia=NO_INERTIA)
-    model = drive_model(curve, make_drivetrain([1.0], 4.0), TIRE, vehicle, Launch(launch_rpm=1000.0))
+    launch = Launch(launch_rpm=1000.0)
+    model = drive_model(curve, make_drivetrain([1.0], 4.0), TIRE, vehicle, launch)
     r, g, limit = TIRE.rolling_radius_m, 4.0, model.traction_limit_n
     c = 400.0 / 6000.0
     n_star = (600.0 + c * 1000.0 - limit * r / g) / c
