@@ -3,7 +3,10 @@
 The baseline is ``GET /healthz`` answered in the same process through httpx's ASGI
 transport: what the service costs a caller before it computes anything. Every figure is
 the median over rounds of the median of a few calls, the cases interleaved round by round
-so that a busy moment of the shared machine touches all of them alike.
+so that a busy moment of the shared machine touches all of them alike. Calls are timed in
+CPU time of this process (``time.process_time``): on a machine shared with other work a
+long call is preempted more often than a short one, which wall-clock ratios would count
+against it.
 """
 
 from __future__ import annotations
@@ -49,8 +52,8 @@ def interleaved_ms(
         for key, (fn, calls) in cases.items():
             samples = []
             for _ in range(calls):
-                t0 = time.perf_counter()
+                t0 = time.process_time()
                 fn()
-                samples.append(time.perf_counter() - t0)
+                samples.append(time.process_time() - t0)
             per_round[key].append(statistics.median(samples) * 1e3)
     return {k: statistics.median(v) for k, v in per_round.items()}

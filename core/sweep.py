@@ -12,7 +12,6 @@ diameter [in] / (overall ratio * 336.135) inverted (common practice).
 
 from __future__ import annotations
 
-import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -27,7 +26,7 @@ from core.errors import SimulationError
 from core.milestones import FOOT_M
 from core.plan import Notice, resolve_rev_limit, shift_plan
 from core.simulate import drive_model
-from core.sweepopt import SweepOptimum, continuous_optimum, objective_at, top_gear_rpm
+from core.sweepopt import SweepOptimum, continuous_optimum, top_gear_rpm
 from core.sweepspec import (
     SWEEP_DISTANCES,
     SWEEP_SPEEDS,
@@ -209,14 +208,21 @@ def sweep_final_drives(
         top = batch_top_speed(model, f)
     setting = (drivetrain, tire, cruise_target)
 
-    def evaluate(ratio: float) -> float:
-        one = None
-        if vehicle is not None:
-            changed = dataclasses.replace(drivetrain, final_drive_ratio=ratio)
-            one = drive_model(
-                curve, changed, tire, vehicle, launch or Launch(), rev_limit_rpm=limit
-            )
-        return objective_at(objective, one, shifts, ratio, setting, rollout_m)
+    def evaluate(ratios: FloatArray) -> FloatArray:
+        """The objective at many ratios, by one batch of runs or top speeds."""
+        if objective is SweepObjective.CRUISE_RPM_TARGET or model is None:
+            return _values(objective, None, None, setting, ratios)
+        if objective is SweepObjective.TOP_SPEED:
+            return _values(objective, None, batch_top_speed(model, ratios), setting, ratios)
+        more = batch_runs(
+            model,
+            ratios,
+            shifts,
+            distances=SWEEP_DISTANCES,
+            speeds=SWEEP_SPEEDS,
+            rollout_m=rollout_m,
+        )
+        return _values(objective, more, None, setting, ratios)
 
     values = _values(objective, runs, top, setting, f)
     order, rank = _ranking(objective, values)
