@@ -2,8 +2,8 @@
 
 The optimum is searched between the listed ratios either side of the best listed one: the
 sampled candidates locate the basin, the search refines it, so a local minimum elsewhere
-in the span is not mistaken for it. The search is a nested grid: ``_OPTIMUM_GRID`` evenly
-spaced ratios across the bracket are evaluated together, in one batch of runs
+in the span is not mistaken for it. The search is a nested grid: up to ``_OPTIMUM_GRID``
+evenly spaced ratios across the bracket are evaluated together, in one batch of runs
 (:func:`core.batchrun.batch_runs`, the integrator of the single run), and the bracket
 narrows to the neighbours of the best of them, until it is narrower than
 ``_OPTIMUM_XATOL``. The objective of a run is not smooth in the ratio everywhere (a shift
@@ -34,7 +34,7 @@ FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
 Evaluate = Callable[[FloatArray], FloatArray]
 _OPTIMUM_XATOL = 2e-3  # [-] in final drive ratio; axles are sold in steps of 0.05 or more
-_OPTIMUM_GRID = 9  # ratios evaluated together in each narrowing of the bracket
+_OPTIMUM_GRID = 33  # most ratios evaluated together in each narrowing of the bracket
 _OPTIMUM_ROUNDS = 6
 
 
@@ -207,7 +207,9 @@ def continuous_optimum(
         return SweepOptimum(found, float(values[best]), (lo, hi), 0)
     left, right, spent = lo, hi, 0
     for _ in range(_OPTIMUM_ROUNDS):
-        grid = np.linspace(left, right, _OPTIMUM_GRID)
+        # fine enough to end the search in this round where that takes few ratios
+        count = min(_OPTIMUM_GRID, max(5, math.ceil((right - left) / _OPTIMUM_XATOL) + 1))
+        grid = np.linspace(left, right, count)
         cost = sign * evaluate(grid)
         spent += grid.size
         cost = np.where(np.isfinite(cost), cost, np.inf)
