@@ -398,11 +398,11 @@ def _checked_start(
             f"`start_gear` must name a gear from 1 to {gears}, got {start_gear}",
             parameter="start_gear",
         )
-    limit_speed = model.speed_at_rpm(start_gear - 1, model.rev_limit_rpm)
-    if start_speed_m_s >= limit_speed:
+    rpm = float(model.coupled_rpm(start_gear - 1, np.array([start_speed_m_s]))[0])
+    if rpm >= model.rev_limit_rpm:
         raise SimulationError(
-            f"`start_gear` {start_gear} reaches the rev limit at {limit_speed:.1f} m/s, "
-            f"below the start speed ({start_speed_m_s:.1f} m/s)",
+            f"`start_gear` {start_gear} would turn {rpm:.0f} rpm at the start speed, at or "
+            f"above the rev limit ({model.rev_limit_rpm:.0f} rpm)",
             parameter="start_gear",
         )
     return start_gear
