@@ -4,10 +4,10 @@ A sweep computed one candidate at a time would cost one run (plus one top-speed 
 candidate; the batched sweep integrates all of them in one pass per gear, with the same
 integrator as the single run. Targets (issue 12): the whole sweep of 100 candidates, its
 continuous optimum included, costs no more than 8 single runs (goal 5), and 1000
-candidates integrated together cost no more than 10 times 100. Timings are interleaved in rounds on the same
-process, in CPU time, and reported as medians (:mod:`bench.inprocess`); figures are
-printed, never asserted (the machine is shared). Run with
-``python -m bench.final_drive_sweep``.
+candidates integrated together cost no more than 10 times 100. Timings are interleaved
+in rounds on the same process, in CPU time, and reported as medians
+(:mod:`bench.inprocess`); figures are printed, never asserted (the machine is shared).
+Run with ``python -m bench.final_drive_sweep``.
 """
 
 from __future__ import annotations

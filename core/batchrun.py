@@ -34,9 +34,9 @@ from core.batchtiming import (
 from core.errors import SimulationError
 from core.integrator import MAX_SPEED_M_S, GearBlock, RunStart, ShiftBlock, integrate_runs
 from core.milestones import FOOT_M
-from core.simulate import DriveModel, checked_shift_rpm
+from core.simulate import DriveModel, checked_shift_rpm, default_start_gear
 
-__all__ = ["BatchRuns", "batch_runs"]
+__all__ = ["BatchRuns", "batch_finish_times", "batch_runs"]
 
 FloatArray = NDArray[np.float64]
 BoolArray = NDArray[np.bool_]
@@ -209,3 +209,63 @@ def batch_runs(
         rpm_after=sink.events["n1"],
         gears_left_at_once=ends.left_at_once.sum(axis=1).astype(np.int64),
     )
+
+
+def batch_finish_times(
+    model: DriveModel,
+    shift_rpm: ArrayLike,
+    *,
+    start_speed_m_s: float,
+    rollout_m: float,
+    finish_distance_m: float | None,
+    finish_speed_m_s: float | None,
+) -> FloatArray:
+    """Time to the finish of one car with each row of shift rpms, all run together.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car.
+    shift_rpm : array_like, shape (k, g - 1)
+        One row of shift rpms per run [rpm], each checked as for a single run.
+    start_speed_m_s : float
+        0 for a standing start, else a rolling start in the default start gear of each
+        row [m/s].
+    rollout_m : float
+        Distance rolled before the clock starts on a standing start [m].
+    finish_distance_m, finish_speed_m_s : float or None
+        The finish: a distance from the clock start [m], or a speed [m/s].
+
+    Returns
+    -------
+    ndarray, shape (k,)
+        Elapsed time [s] as :func:`core.runreport.run_report` times the finish (a speed
+        from the start of the run); NaN where the run does not get there or cannot move.
+    """
+    rows = np.atleast_2d(np.asarray(shift_rpm, dtype=np.float64))
+    shifts = np.array([checked_shift_rpm(model, r) for r in rows]).reshape(rows.shape)
+    k = rows.shape[0]
+    rollout = rollout_m if start_speed_m_s == 0.0 else 0.0
+    distances = [] if finish_distance_m is None else [("finish", finish_distance_m, False)]
+    speeds = [] if finish_speed_m_s is None else [("finish", start_speed_m_s, finish_speed_m_s)]
+    out = np.full(k, np.nan)
+    starts = np.array([default_start_gear(model, r, start_speed_m_s) for r in shifts])
+    for gear in np.unique(starts).tolist():
+        idx = np.flatnonzero(starts == gear)
+        probes = TraceProbes(idx.size, probe_distances(rollout, distances), probe_speeds(speeds))
+        cover = (finish_distance_m or 0.0) + rollout
+        start = RunStart(start_speed_m_s, gear - 1, cover, finish_speed_m_s or 0.0)
+        gears = model.drivetrain.gear_count
+        ratio = np.tile(model.drivetrain.overall_ratios, (idx.size, 1))
+        masses = (
+            np.tile(model.effective_mass_kg, (idx.size, 1)),
+            np.full(idx.size, model.decoupled_mass_kg),
+        )
+        sink = _Probing(probes, idx.size, gears)
+        ends = integrate_runs(model, ratio, masses, shifts[idx], start, sink)
+        if finish_distance_m is not None:
+            timed = timed_distances(probes, distances, ends.moved)[0].elapsed_s
+        else:
+            timed = np.where(ends.moved, probes.reaching(1), np.nan)
+        out[idx] = timed
+    return out

@@ -327,7 +327,7 @@ def _gear(
     g: int,
     rows: IntArray,
     shift_speed: FloatArray,
-    shift_rpm: float | None,
+    shift_rpm: FloatArray | None,
     state: _State,
     sink: RunSink,
     launching: bool,
@@ -344,7 +344,7 @@ def _gear(
     if shift_rpm is not None:
         # leave the gear when the engine reaches the shift rpm: with a slipping converter
         # that comes before the coupled speed of the shift rpm
-        due = rpm >= shift_rpm * (1.0 - 1e-9)
+        due = rpm >= shift_rpm[:, None] * (1.0 - 1e-9)
         k = np.argmax(due, axis=1)
         cut = due.any(axis=1) & (k > 0) & (k < valid - 1)
         if cut.any():
@@ -354,7 +354,7 @@ def _gear(
             v_cut = _pick(grid, km) + frac * (_pick(grid, k) - _pick(grid, km))
             a_cut = _pick(a, km) + frac * (_pick(a, k) - _pick(a, km))
             v_end = np.where(cut, v_cut, v_end)
-            ends = [v_cut, a_cut, np.full(rows.size, shift_rpm)]
+            ends = [v_cut, a_cut, shift_rpm]
             _cut([grid, a, rpm], k, cut, ends)
             after = cut[:, None] & (np.arange(grid.shape[1])[None, :] >= k[:, None])
             limited = np.where(after, limited[np.arange(k.size), km][:, None], limited)
@@ -447,8 +447,9 @@ def integrate_runs(
         Overall ratio of each row in each gear [-].
     masses : tuple of ndarray, shapes (c, g) and (c,)
         Effective mass in each gear and mass while the engine slips, per row [kg].
-    shift_rpm : ndarray, shape (g - 1,)
-        Engine speed at which to leave each gear [rpm], checked.
+    shift_rpm : ndarray, shape (g - 1,) or (c, g - 1)
+        Engine speed at which to leave each gear [rpm], checked; the same for every row,
+        or one row of them per run.
     start : RunStart
         Start speed and gear, and how far to go.
     sink : RunSink
@@ -461,8 +462,10 @@ def integrate_runs(
     count, gears = overall_ratio.shape
     car = _Car(model, overall_ratio, masses[0], masses[1])
     r = model.tire.rolling_radius_m
-    limits = np.append(shift_rpm, model.rev_limit_rpm)
-    shift_speed = limits[None, :] * RPM_TO_RAD_S * r / overall_ratio
+    limits = np.empty((count, gears))
+    limits[:, :-1] = shift_rpm
+    limits[:, -1] = model.rev_limit_rpm
+    shift_speed = limits * RPM_TO_RAD_S * r / overall_ratio
     state = _State(count, gears, start)
     target_v = min(max(start.cover_speed_m_s, 0.0), MAX_SPEED_M_S)
     for g in range(start.gear, gears):
@@ -480,7 +483,7 @@ def integrate_runs(
         driven = np.flatnonzero(~skip)
         if driven.size:
             rows = idx[driven]
-            shift = None if top else float(shift_rpm[g])
+            shift = None if top else limits[rows, g]
             go = _gear(car, g, rows, v_top[driven], shift, state, sink, launching)
             rows = rows[go]
             held = rows if top else rows[state.v[rows] >= MAX_SPEED_M_S * (1 - 1e-12)]

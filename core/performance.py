@@ -9,12 +9,13 @@ from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.optimize import minimize
 
+from core.batchrun import batch_finish_times
 from core.milestones import time_at_distance, time_at_speed
 from core.plan import ShiftPoint, shift_plan
 from core.roadload import gradeability_percent
 from core.shifting import ShiftChoice, best_shifts
+from core.shiftpattern import pattern_search
 from core.simulate import DriveModel, RunResult, simulate_run
 
 __all__ = [
@@ -32,6 +33,9 @@ __all__ = [
 
 FloatArray = NDArray[np.float64]
 _GRID = 257
+_SEARCH_STEP = 0.08  # first step of the shift search, as a share of the rev limit
+_SEARCH_MIN_STEP_RPM = 2.0
+_SEARCH_ROUNDS = 14
 
 
 def acceleration_shifts(model: DriveModel) -> tuple[ShiftChoice, ...]:
@@ -192,8 +196,9 @@ def optimal_shift_rpm(
     finish_speed_m_s: float | None,
     max_evaluations: int = 120,
 ) -> OptimalShifts:
-    """Shift rpms minimising the time to the finish, by ``scipy.optimize.minimize`` (Powell,
-    bounded) over full simulated runs, shift time and traction included.
+    """Shift rpms minimising the time to the finish over full simulated runs, shift time and
+    traction included, by a pattern search whose trial points are run in batches
+    (:func:`core.shiftpattern.pattern_search`, :func:`core.batchrun.batch_finish_times`).
 
     Parameters
     ----------
@@ -206,7 +211,8 @@ def optimal_shift_rpm(
     finish_distance_m, finish_speed_m_s : float or None
         The finish: a distance from the clock start [m], or a speed [m/s].
     max_evaluations : int
-        Budget of simulated runs.
+        Budget of simulated runs; the search's batches take about two runs' time for a
+        dozen runs.
 
     Returns
     -------
@@ -249,24 +255,29 @@ def optimal_shift_rpm(
     if active.size == 0:
         return OptimalShifts(x0, baseline, baseline, evaluations)
 
-    def run_time(x: FloatArray) -> float:
-        rpm = x0.copy()
-        rpm[active] = np.clip(x, lower[active], limit)
-        return timed(rpm)[0]
+    def time_rows(rows: FloatArray) -> FloatArray:
+        return batch_finish_times(
+            model,
+            rows,
+            start_speed_m_s=start_speed_m_s,
+            rollout_m=rollout_m,
+            finish_distance_m=finish_distance_m,
+            finish_speed_m_s=finish_speed_m_s,
+        )
 
-    res = minimize(
-        run_time,
-        x0[active],
-        method="Powell",
-        bounds=list(zip(lower[active].tolist(), [limit] * active.size, strict=True)),
-        options={"maxfev": max_evaluations, "xtol": 1e-3, "ftol": 1e-6},
+    found = pattern_search(
+        time_rows,
+        x0,
+        baseline,
+        active,
+        (lower, np.full(x0.size, limit)),
+        step_rpm=_SEARCH_STEP * limit,
+        min_step_rpm=_SEARCH_MIN_STEP_RPM,
+        max_rounds=_SEARCH_ROUNDS,
+        max_evaluations=max_evaluations - evaluations,
     )
-    best = x0.copy()
-    best[active] = np.clip(np.asarray(res.x, dtype=np.float64), lower[active], limit)
-    best_time = float(res.fun)
-    if best_time > baseline:
-        best, best_time = x0, baseline
-    return OptimalShifts(best, best_time, baseline, evaluations)
+    evaluations += found.evaluations
+    return OptimalShifts(found.shift_rpm, found.time_s, baseline, evaluations)
 
 
 class ShiftCriterion(enum.Enum):

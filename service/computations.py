@@ -74,7 +74,7 @@ RUN_FIELDS = {
     "start_gear": "run.start_gear",
 }
 # simulated runs the shift search may spend: fixed, so the same request gets the same answer
-SEARCH_BUDGET = {Coupling.CLUTCH: 120, Coupling.CONVERTER: 60}
+SEARCH_BUDGET = {Coupling.CLUTCH: 160, Coupling.CONVERTER: 160}
 
 
 @dataclass(frozen=True)

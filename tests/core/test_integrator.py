@@ -18,6 +18,7 @@ import pytest
 from numpy.testing import assert_allclose
 from scipy.integrate import quad, solve_ivp
 
+from core.batchrun import batch_finish_times
 from core.converter import TorqueConverter
 from core.converter_matching import converter_operating_points
 from core.curves import (
@@ -29,6 +30,7 @@ from core.curves import (
 from core.drivetrain import make_drivetrain
 from core.errors import SimulationError
 from core.milestones import FOOT_M, TRAP_WINDOW_M, time_at_distance, time_at_speed, timed_distance
+from core.performance import optimal_shift_rpm
 from core.roadload import RoadLoad
 from core.runreport import run_report, sample_trace
 from core.simulate import DriveModel, drive_model, simulate_run
@@ -415,3 +417,67 @@ def test_converter_table_matches_the_operating_points_solved_directly() -> None:
     )
     assert_allclose(engine, exact.engine_rpm, rtol=1e-3)
     assert_allclose(torque, exact.output_torque_nm, rtol=1e-3)
+
+
+# --- batched finish times and the shift search -------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("start", "distance", "speed"),
+    [
+        pytest.param(0.0, 402.336, None, id="standing-quarter"),
+        pytest.param(0.0, None, 26.8224, id="standing-0-60-mph"),
+        pytest.param(15.0, 500.0, None, id="rolling-500-m"),
+    ],
+)
+def test_batched_finish_times_equal_single_runs_row_by_row(
+    start: float, distance: float | None, speed: float | None
+) -> None:
+    # one integrator: each row of a batch is the single run with that row's shift rpms
+    model = _geared_model()
+    rows = np.array([SHIFTS, [5600.0, 6300.0, 5900.0], [6500.0, 5200.0, 6400.0]])
+    times = batch_finish_times(
+        model,
+        rows,
+        start_speed_m_s=start,
+        rollout_m=FOOT_M,
+        finish_distance_m=distance,
+        finish_speed_m_s=speed,
+    )
+    rollout = FOOT_M if start == 0.0 else 0.0
+    for row, batched in zip(rows, times, strict=True):
+        run = simulate_run(
+            model,
+            row,
+            start_speed_m_s=start,
+            cover_distance_m=(distance or 0.0) + rollout,
+            cover_speed_m_s=speed or 0.0,
+        )
+        if distance is not None:
+            single = reached(time_at_distance(run, distance + rollout)) - (
+                reached(time_at_distance(run, rollout)) if rollout else 0.0
+            )
+        else:
+            single = reached(time_at_speed(run, speed or 0.0))
+        assert_allclose(batched, single, rtol=1e-9)
+
+
+def test_shift_search_is_never_slower_than_its_start_and_its_time_is_a_real_run() -> None:
+    model = _geared_model()
+    start = np.array([5000.0, 5000.0, 5000.0])
+    best = optimal_shift_rpm(
+        model,
+        start,
+        start_speed_m_s=0.0,
+        rollout_m=FOOT_M,
+        finish_distance_m=402.336,
+        finish_speed_m_s=None,
+        max_evaluations=160,
+    )
+    assert best.time_s < best.baseline_time_s
+    assert best.evaluations <= 160
+    run = simulate_run(model, best.shift_rpm, cover_distance_m=402.336 + FOOT_M)
+    single = reached(time_at_distance(run, 402.336 + FOOT_M)) - reached(
+        time_at_distance(run, FOOT_M)
+    )
+    assert_allclose(best.time_s, single, rtol=1e-9)
