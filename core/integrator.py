@@ -63,6 +63,7 @@ POINTS_PER_GEAR = 121
 TAIL_POINTS = 24
 TAIL_END = 1e-6  # [-] relative distance to the drag-limited speed where the approach ends
 MAX_SPEED_M_S = 150.0  # [m/s], no run integrates beyond this
+_EVEN = np.linspace(0.0, 1.0, POINTS_PER_GEAR)
 
 
 @dataclass(frozen=True)
@@ -335,7 +336,8 @@ def _gear(
     """Drive rows through gear index ``g``; returns which rows go on to shift."""
     model = car.model
     v_in, v_top = state.v[rows], np.minimum(shift_speed, MAX_SPEED_M_S)
-    grid = np.linspace(v_in, v_top, POINTS_PER_GEAR, axis=-1)
+    grid = v_in[:, None] + (v_top - v_in)[:, None] * _EVEN
+    grid[:, -1] = v_top
     valid = np.full(rows.size, POINTS_PER_GEAR, dtype=np.int64)
     if launching and model.launch.coupling is Coupling.CLUTCH:
         grid, valid = _with_launch_lock(model, grid, car.ratio[rows, g])
