@@ -8,6 +8,7 @@ from typing import Any
 import numpy as np
 
 from core import OptimalShifts, RunReport, TimedDistance, TimedSpeed, sample_trace
+from core.runreport import QUARTER_MILE_M
 from core.simulate import DriveModel
 from service.cautions import CAUTIONS, SHORT_CAUTION
 from service.present import notices_out, rounded
@@ -114,10 +115,10 @@ def _finish_lines(report: RunReport, units: UnitSystem) -> list[str]:
     spd = unit_labels(units)["speed"]
     finish = report.finish
     if isinstance(finish, TimedDistance):
-        where = (
-            f"{from_si(finish.distance_m, Quantity.DISTANCE, units):g} "
-            + (unit_labels(units)["distance"])
-        )
+        length = from_si(finish.distance_m, Quantity.DISTANCE, units)
+        where = f"{length:.6g} {unit_labels(units)['distance']}"
+        if abs(finish.distance_m - QUARTER_MILE_M) < 1e-9:
+            where = "the 1/4 mile"
         if finish.elapsed_s is None:
             return [f"Finish at {where}: not reached."]
         trap = (
