@@ -18,9 +18,9 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from core.batchrun import batch_finish_times
-from core.milestones import time_at_distance, time_at_speed
+from core.milestones import time_at_distance
 from core.shiftpattern import pattern_search
-from core.simulate import DriveModel, RunResult, simulate_run
+from core.simulate import DriveModel, simulate_run
 
 __all__ = ["SEARCH_WON", "OptimalShifts", "search_shift_rpm"]
 
@@ -29,7 +29,7 @@ SEARCH_WON = "search"
 """``OptimalShifts.won_by`` when the search found shifts quicker than every seed."""
 _UNREACHED_S = 1e6
 _SEARCH_STEP = 0.08  # first step of the pattern search, as a share of the rev limit
-_SEARCH_MIN_STEP_RPM = 2.0
+_SEARCH_MIN_STEP_RPM = 4.0
 _SEARCH_ROUNDS = 14
 
 
@@ -97,48 +97,11 @@ def search_shift_rpm(
     lower = np.minimum(
         np.maximum(model.curve.rpm_min / step, model.curve.rpm_min + 1.0), limit - 1.0
     )
-    cover = (finish_distance_m or 0.0) + rollout_m
-    evaluations = 0
-
-    def timed(rpm: FloatArray) -> tuple[float, RunResult]:
-        nonlocal evaluations
-        evaluations += 1
-        run = simulate_run(
-            model,
-            rpm,
-            start_speed_m_s=start_speed_m_s,
-            cover_distance_m=cover,
-            cover_speed_m_s=finish_speed_m_s or 0.0,
-        )
-        if finish_distance_m is not None:
-            t_end = time_at_distance(run, cover)
-            t_start = time_at_distance(run, rollout_m) or 0.0
-        else:
-            t_end = time_at_speed(run, float(finish_speed_m_s or 0.0))
-            t_start = 0.0
-        return (_UNREACHED_S if t_end is None else t_end - t_start), run
-
-    tried: list[tuple[str, FloatArray, float, RunResult]] = []
-    for name, rpm in seeds:
-        x = np.clip(np.asarray(rpm, dtype=np.float64), lower, limit)
-        if any(np.array_equal(x, t[1]) for t in tried):
-            continue
-        time_s, run = timed(x)
-        tried.append((name, x, time_s, run))
-    baseline = tried[0][2]
-    won_by, x0, best_time, first = min(tried, key=lambda t: t[2])
-    report = tuple((t[0], t[2]) for t in tried)
-    # only the shifts made before the finish can change its time
-    finish_at = best_time + (time_at_distance(first, rollout_m) or 0.0)
-    active = np.array(
-        [k for k, s in enumerate(first.shifts) if s.time_s < finish_at], dtype=np.int64
-    )
-    budget = max_evaluations - evaluations
-    if active.size == 0 or budget <= 0:
-        return OptimalShifts(x0, best_time, baseline, evaluations, won_by, report)
+    rollout = rollout_m if start_speed_m_s == 0.0 else 0.0
+    cover = (finish_distance_m or 0.0) + rollout
 
     def time_rows(rows: FloatArray) -> FloatArray:
-        return batch_finish_times(
+        times = batch_finish_times(
             model,
             rows,
             start_speed_m_s=start_speed_m_s,
@@ -146,6 +109,36 @@ def search_shift_rpm(
             finish_distance_m=finish_distance_m,
             finish_speed_m_s=finish_speed_m_s,
         )
+        return np.where(np.isfinite(times), times, _UNREACHED_S)
+
+    named: list[tuple[str, FloatArray]] = []
+    for name, rpm in seeds:
+        x = np.clip(np.asarray(rpm, dtype=np.float64), lower, limit)
+        if not any(np.array_equal(x, t[1]) for t in named):
+            named.append((name, x))
+    # every seed timed in one batch, as run_report times the finish
+    seed_times = time_rows(np.array([x for _, x in named]))
+    evaluations = len(named)
+    tried = [(n, x, float(t)) for (n, x), t in zip(named, seed_times.tolist(), strict=True)]
+    baseline = tried[0][2]
+    won_by, x0, best_time = min(tried, key=lambda t: t[2])
+    report = tuple((t[0], t[2]) for t in tried)
+    first = simulate_run(
+        model,
+        x0,
+        start_speed_m_s=start_speed_m_s,
+        cover_distance_m=cover,
+        cover_speed_m_s=finish_speed_m_s or 0.0,
+    )
+    evaluations += 1
+    # only the shifts made before the finish can change its time
+    finish_at = best_time + (time_at_distance(first, rollout) or 0.0)
+    active = np.array(
+        [k for k, s in enumerate(first.shifts) if s.time_s < finish_at], dtype=np.int64
+    )
+    budget = max_evaluations - evaluations
+    if active.size == 0 or budget <= 0:
+        return OptimalShifts(x0, best_time, baseline, evaluations, won_by, report)
 
     found = pattern_search(
         time_rows,
