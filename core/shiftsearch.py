@@ -28,9 +28,9 @@ FloatArray = NDArray[np.float64]
 SEARCH_WON = "search"
 """``OptimalShifts.won_by`` when the search found shifts quicker than every seed."""
 _UNREACHED_S = 1e6
-_SEARCH_STEP = 0.08  # first step of the pattern search, as a share of the rev limit
+_SEARCH_STEP = 0.04  # first step of the pattern search, as a share of the rev limit
 _SEARCH_MIN_STEP_RPM = 4.0
-_SEARCH_ROUNDS = 14
+_SEARCH_ROUNDS = 10
 
 
 @dataclass(frozen=True)
