@@ -19,7 +19,19 @@ from pathlib import Path
 
 import numpy as np
 
-__all__ = ["Timing", "WrkResult", "serve", "time_call", "wrk"]
+__all__ = [
+    "VARY",
+    "Timing",
+    "WrkResult",
+    "median_wrk",
+    "ratio_line",
+    "serve",
+    "side_by_side",
+    "time_call",
+    "wrk",
+]
+
+VARY = "__N__"  # in a wrk body: replaced by a request counter, so no two bodies are alike
 
 
 @dataclass(frozen=True)
@@ -49,6 +61,32 @@ def time_call(fn: Callable[[], object], *, runs: int = 300, warmup: int = 20) ->
     return Timing(float(np.median(samples)), float(np.percentile(samples, 99)), runs)
 
 
+def side_by_side(
+    fns: dict[str, Callable[[], object]], *, rounds: int = 9, calls: int = 20, warmup: int = 3
+) -> dict[str, Timing]:
+    """Time several calls interleaved round by round (so a busy spell on the shared machine
+    hits them alike); each figure is the median over ``rounds * calls`` calls, p99 too."""
+    for fn in fns.values():
+        for _ in range(warmup):
+            fn()
+    samples: dict[str, list[float]] = {k: [] for k in fns}
+    for _ in range(rounds):
+        for name, fn in fns.items():
+            for _ in range(calls):
+                t0 = time.perf_counter()
+                fn()
+                samples[name].append(time.perf_counter() - t0)
+    return {
+        k: Timing(float(np.median(v)), float(np.percentile(v, 99)), len(v))
+        for k, v in samples.items()
+    }
+
+
+def ratio_line(label: str, value: float, target: str) -> str:
+    """One ratio with its target, for the benchmark's closing lines."""
+    return f"   RATIO {label:<48} {value:8.2f}x   (target {target})"
+
+
 def _free_port() -> int:
     with socket.socket() as s:
         s.bind(("127.0.0.1", 0))
@@ -66,11 +104,14 @@ def serve(workers: int = 1, env: dict[str, str] | None = None) -> Iterator[str]:
     )
     base = f"http://127.0.0.1:{port}"
     try:
-        for _ in range(200):
+        deadline = time.monotonic() + 60.0  # a loaded machine can take a while to import
+        while True:
             try:
                 with urllib.request.urlopen(base + "/healthz", timeout=1):
                     break
             except OSError:
+                if time.monotonic() > deadline or proc.poll() is not None:
+                    raise SystemExit(f"the service did not come up on {base}") from None
                 time.sleep(0.05)
         yield base
     finally:
@@ -98,6 +139,14 @@ _LUA = """
 wrk.method = "{method}"
 wrk.body = {body}
 wrk.headers["Content-Type"] = "application/json"
+local counter = 0
+if wrk.body ~= nil and string.find(wrk.body, "{vary}", 1, true) then
+  request = function()
+    counter = counter + 1
+    local body = string.gsub(wrk.body, "{vary}", tostring(counter))
+    return wrk.format(nil, nil, nil, body)
+  end
+end
 done = function(summary, latency, requests)
   io.write(string.format(
     "JSON {{\\"p50\\": %f, \\"p99\\": %f, \\"non2xx\\": %d, \\"errors\\": %d}}\\n",
@@ -111,23 +160,50 @@ end
 def wrk(
     url: str, *, body: bytes | None = None, seconds: int = 8, connections: int = 16
 ) -> WrkResult:
-    """Load ``url`` with wrk (one thread, keep-alive) and parse its figures."""
+    """Load ``url`` with wrk (one thread, keep-alive) and parse its figures.
+
+    Where the body holds ``VARY`` each request replaces it with its own number, so every
+    body differs and a result cache never answers."""
     exe = shutil.which("wrk")
     if exe is None:
         raise SystemExit("wrk not found: apt-get install wrk")
     lua = _LUA.format(
         method="POST" if body is not None else "GET",
         body=json.dumps(body.decode()) if body is not None else "nil",
+        vary=VARY,
     )
     with tempfile.TemporaryDirectory() as tmp:
         script = Path(tmp) / "req.lua"
         script.write_text(lua)
-        out = subprocess.run(
+        done = subprocess.run(
             [exe, "-t1", f"-c{connections}", f"-d{seconds}s", "-s", str(script), url],
             capture_output=True,
             text=True,
-            check=True,
-        ).stdout
+            check=False,
+        )
+    if done.returncode != 0:
+        raise SystemExit(f"wrk failed on {url}: {done.stdout[-300:]} {done.stderr[-300:]}")
+    out = done.stdout
     rps = float(re.search(r"Requests/sec:\s+([\d.]+)", out).group(1))  # type: ignore[union-attr]
     stats = json.loads(out[out.index("JSON ") + 5 :].splitlines()[0])
     return WrkResult(rps, stats["p50"], stats["p99"], int(stats["non2xx"]) + int(stats["errors"]))
+
+
+def median_wrk(
+    runs: dict[str, tuple[str, bytes | None]], *, repeats: int = 3, seconds: int = 3
+) -> dict[str, WrkResult]:
+    """wrk runs of several targets, interleaved ``repeats`` times; per target the median
+    throughput, p50 and p99 over the repeats (errors summed)."""
+    got: dict[str, list[WrkResult]] = {k: [] for k in runs}
+    for _ in range(repeats):
+        for name, (url, body) in runs.items():
+            got[name].append(wrk(url, body=body, seconds=seconds))
+    return {
+        k: WrkResult(
+            float(np.median([r.requests_per_s for r in v])),
+            float(np.median([r.p50_ms for r in v])),
+            float(np.median([r.p99_ms for r in v])),
+            sum(r.errors for r in v),
+        )
+        for k, v in got.items()
+    }
