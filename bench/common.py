@@ -16,6 +16,7 @@ from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
@@ -23,6 +24,7 @@ __all__ = [
     "VARY",
     "Timing",
     "WrkResult",
+    "app_cpu_per_request",
     "median_wrk",
     "ratio_line",
     "serve",
@@ -80,6 +82,74 @@ def side_by_side(
         k: Timing(float(np.median(v)), float(np.percentile(v, 99)), len(v))
         for k, v in samples.items()
     }
+
+
+def app_cpu_per_request(
+    app: Any,
+    requests: dict[str, tuple[str, list[bytes] | None]],
+    *,
+    rounds: int = 7,
+    calls: int = 40,
+) -> dict[str, float]:
+    """CPU seconds per request through the whole ASGI app (every middleware, no socket),
+    per target, interleaved round by round; the median of the rounds. CPU time of this
+    process, so other work on a shared machine does not count. A target is a path and
+    either None (GET) or bodies to POST in turn, each one different."""
+    import asyncio
+
+    def scope(path: str, body: bytes | None) -> dict[str, Any]:
+        headers = [(b"host", b"127.0.0.1"), (b"content-type", b"application/json")]
+        if body is not None:
+            headers.append((b"content-length", str(len(body)).encode()))
+        return {
+            "type": "http",
+            "asgi": {"version": "3.0"},
+            "http_version": "1.1",
+            "method": "GET" if body is None else "POST",
+            "scheme": "http",
+            "path": path,
+            "raw_path": path.encode(),
+            "query_string": b"",
+            "root_path": "",
+            "headers": headers,
+            "client": ("127.0.0.1", 1),
+            "server": ("127.0.0.1", 80),
+        }
+
+    async def one(path: str, body: bytes | None) -> None:
+        sent = False
+
+        async def receive() -> dict[str, Any]:
+            nonlocal sent
+            if sent:
+                await asyncio.sleep(3600)
+            sent = True
+            return {"type": "http.request", "body": body or b"", "more_body": False}
+
+        async def send(message: dict[str, Any]) -> None:
+            if message["type"] == "http.response.start" and message["status"] != 200:
+                raise SystemExit(f"{path} answered {message['status']}")
+
+        await app(scope(path, body), receive, send)
+
+    async def run() -> dict[str, float]:
+        per: dict[str, list[float]] = {k: [] for k in requests}
+        counters = dict.fromkeys(requests, 0)
+        for warm in (True, False):
+            for _ in range(1 if warm else rounds):
+                for name, (path, bodies) in requests.items():
+                    t0 = time.process_time()
+                    for _ in range(calls):
+                        body = None
+                        if bodies is not None:
+                            body = bodies[counters[name] % len(bodies)]
+                            counters[name] += 1
+                        await one(path, body)
+                    if not warm:
+                        per[name].append((time.process_time() - t0) / calls)
+        return {k: float(np.median(v)) for k, v in per.items()}
+
+    return asyncio.run(run())
 
 
 def ratio_line(label: str, value: float, target: str) -> str:

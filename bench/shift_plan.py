@@ -16,7 +16,7 @@ from typing import Any
 import numpy as np
 import orjson
 
-from bench.common import VARY, median_wrk, ratio_line, serve, time_call
+from bench.common import VARY, app_cpu_per_request, median_wrk, ratio_line, serve, time_call
 from core import make_drivetrain, shift_plan, tire_from_size, torque_curve_from_torque
 from service.schemas.shift_plan import ShiftPlanRequest, ShiftPlanResponse
 
@@ -45,7 +45,7 @@ def main() -> None:
     print("  ", time_call(lambda: shift_plan(curve, drivetrain, tire), runs=500))
 
     # serialisation of the same response document, side by side
-    from service.app import app  # noqa: F401  (imports the routes)
+    from service.app import app
     from service.routes.shift_plan import create_shift_plan
 
     request = ShiftPlanRequest.model_validate(body)
@@ -87,6 +87,32 @@ def main() -> None:
     t_own = time_call(lambda: pchip_coefficients(x, y), runs=500)
     print("   scipy PchipInterpolator", t_scipy)
     print("   core pchip_coefficients", t_own)
+
+    fresh_bodies = [json.dumps({**body, "reference": f"APP-{i}"}).encode() for i in range(4000)]
+    cpu = app_cpu_per_request(
+        app,
+        {
+            "health": ("/healthz", None),
+            "plan": ("/v1/shift-plan", fresh_bodies),
+            "cached": ("/v1/shift-plan", [json.dumps({**body, "reference": "APP"}).encode()]),
+        },
+    )
+    print("through the whole app in process (every middleware, no socket), CPU per request")
+    print(f"   /healthz                           {cpu['health'] * 1e3:8.3f} ms")
+    print(f"   /v1/shift-plan, computed (fresh)   {cpu['plan'] * 1e3:8.3f} ms")
+    print(f"   /v1/shift-plan, cached answers     {cpu['cached'] * 1e3:8.3f} ms")
+    print(
+        ratio_line(
+            "app CPU: healthz / computed shift plan", cpu["health"] / cpu["plan"], ">= 0.25"
+        )
+    )
+    print(
+        ratio_line(
+            "app CPU: healthz / cached shift plan",
+            cpu["cached"] and cpu["health"] / cpu["cached"],
+            "(cache)",
+        )
+    )
 
     fresh = json.dumps({**body, "reference": f"BENCH-{VARY}"}).encode()
     same = json.dumps({**body, "reference": "BENCH"}).encode()
