@@ -66,8 +66,12 @@ def time_call(fn: Callable[[], object], *, runs: int = 300, warmup: int = 20) ->
 def side_by_side(
     fns: dict[str, Callable[[], object]], *, rounds: int = 9, calls: int = 20, warmup: int = 3
 ) -> dict[str, Timing]:
-    """Time several calls interleaved round by round (so a busy spell on the shared machine
-    hits them alike); each figure is the median over ``rounds * calls`` calls, p99 too."""
+    """CPU time of several calls, interleaved round by round; each figure is the median
+    over ``rounds * calls`` calls, p99 too.
+
+    CPU time of this process, not wall time: on a shared machine a call that outlasts its
+    time slice waits for the others' work, which would make longer calls look superlinearly
+    dearer than short ones and spoil the ratios."""
     for fn in fns.values():
         for _ in range(warmup):
             fn()
@@ -75,9 +79,9 @@ def side_by_side(
     for _ in range(rounds):
         for name, fn in fns.items():
             for _ in range(calls):
-                t0 = time.perf_counter()
+                t0 = time.process_time()
                 fn()
-                samples[name].append(time.perf_counter() - t0)
+                samples[name].append(time.process_time() - t0)
     return {
         k: Timing(float(np.median(v)), float(np.percentile(v, 99)), len(v))
         for k, v in samples.items()
