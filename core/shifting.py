@@ -60,6 +60,10 @@ class ShiftReason(enum.Enum):
     DRAG_LIMIT = "drag_limit"
     """Net-acceleration plans only: the gear stops accelerating (road load) before its rev
     limit and before the next gear overtakes it, so the shift comes where it tops out."""
+    TRACTION_LIMIT = "traction_limit"
+    """Net-acceleration plans only: both gears are held at the tires' grip at the shift, so
+    the gear with the lighter rotating parts is the quicker and the shift comes as soon as
+    it can take over; no force crossover decides it."""
 
 
 @dataclass(frozen=True)
@@ -80,6 +84,11 @@ class ShiftChoice:
     below_range : bool
         True when the next gear is the stronger over the whole shared range, so the
         crossover lies below it and the shift is at the range's start.
+    intersections : int
+        How many times the two efforts intersect in the shared range, either way (the next
+        gear overtaking, or falling back behind).
+    overtake_rpm : tuple of float
+        Current-gear rpm at each point where the next gear overtakes (``crossings`` of them).
     """
 
     shift_rpm: float
@@ -87,6 +96,8 @@ class ShiftChoice:
     crossings: int
     coincident_rpm: tuple[float, float] | None
     below_range: bool
+    intersections: int = 0
+    overtake_rpm: tuple[float, ...] = ()
 
 
 def _coincident_band(
@@ -102,6 +113,15 @@ def _coincident_band(
     if hi - lo < 0.02 * float(grid[-1] - grid[0]):
         return None
     return lo, hi
+
+
+def _intersections(grid: FloatArray, diff: FloatArray, band: tuple[float, float] | None) -> int:
+    """Sign changes of ``diff`` on the grid, zeros and a coincident band left out."""
+    keep = diff != 0.0
+    if band is not None:
+        keep &= (grid < band[0]) | (grid > band[1])
+    signs = np.sign(diff[keep])
+    return int(np.count_nonzero(signs[1:] != signs[:-1]))
 
 
 def _crossing(f: Callable[[float], float], a: float, b: float, fa: float, fb: float) -> float:
@@ -204,54 +224,39 @@ def best_shifts(
     floor = 1e-9 * scale[:, None]
     slowness = 1.0 / np.maximum(e_cur, floor) - 1.0 / np.maximum(e_next, floor)
     cost = _cost(grid, slowness)
-    stalls: list[bool] = np.any(e_cur <= 0.0, axis=1).tolist()
-    near: list[bool] = np.any(np.abs(diff) <= COINCIDENT_RTOL * scale[:, None], axis=1).tolist()
-    falls_all = (diff[:, :-1] > 0.0) & (diff[:, 1:] <= 0.0)
 
-    # first pass: each row's range, coincident band and the cells where it falls behind
-    rows: list[tuple[FloatArray, FloatArray, float, tuple[float, float] | None] | None] = []
-    roots: list[list[float]] = [[] for _ in range(lo.size)]
+    choices = []
     for k in range(lo.size):
         if not valid[k]:
-            rows.append(None)
+            choices.append(ShiftChoice(float(hi[k]), ShiftReason.REV_LIMIT, 0, None, False))
             continue
         g, d = grid[k], diff[k]
         top = float(hi[k])
-        falls = falls_all[k]
-        if stalls[k]:  # the car cannot reach these speeds in the current gear
-            j = int(np.flatnonzero(e_cur[k] <= 0.0)[0])
+        stalled = np.flatnonzero(e_cur[k] <= 0.0)
+        if stalled.size:  # the car cannot reach these speeds in the current gear
+            j = int(stalled[0])
             if j == 0:
-                rows.append(None)
+                choices.append(ShiftChoice(float(lo[k]), ShiftReason.DRAG_LIMIT, 0, None, False))
                 continue
             e0, e1 = float(e_cur[k][j - 1]), float(e_cur[k][j])
             frac = e0 / (e0 - e1)
             top = float(g[j - 1] + frac * (g[j] - g[j - 1]))
             d_top = float(d[j - 1] + frac * (d[j] - d[j - 1]))
             g, d = np.append(g[:j], top), np.append(d[:j], d_top)
-            falls = (d[:-1] > 0.0) & (d[1:] <= 0.0)
-        band = _coincident_band(g, d, float(scale[k])) if near[k] or stalls[k] else None
-        rows.append((g, d, top, band))
-        for j in np.flatnonzero(falls).tolist():
+        band = _coincident_band(g, d, float(scale[k]))
+        roots = []
+        falls = np.flatnonzero((d[:-1] > 0.0) & (d[1:] <= 0.0))
+        for j in falls.tolist():
             if d[j + 1] == 0.0:
-                roots[k].append(float(g[j + 1]))
-            elif diff_scalar is not None:
-                a, b, fa, fb = float(g[j]), float(g[j + 1]), float(d[j]), float(d[j + 1])
-                roots[k].append(_crossing(functools.partial(diff_scalar, k), a, b, fa, fb))
+                root = float(g[j + 1])
+            elif diff_scalar is None:
+                root = float(g[j] + d[j] / (d[j] - d[j + 1]) * (g[j + 1] - g[j]))
             else:
-                roots[k].append(float(g[j] + d[j] / (d[j] - d[j + 1]) * (g[j + 1] - g[j])))
-
-    # second pass: the candidate with the least crossing time
-    choices = []
-    for k, row in enumerate(rows):
-        if row is None:
-            if valid[k]:
-                choices.append(ShiftChoice(float(lo[k]), ShiftReason.DRAG_LIMIT, 0, None, False))
-            else:
-                choices.append(ShiftChoice(float(hi[k]), ShiftReason.REV_LIMIT, 0, None, False))
-            continue
-        g, d, top, band = row
-        found = [r for r in roots[k] if band is None or not band[0] <= r <= band[1]]
-        candidates = [float(lo[k]), top, *found]
+                f = functools.partial(diff_scalar, k)
+                root = _crossing(f, float(g[j]), float(g[j + 1]), float(d[j]), float(d[j + 1]))
+            if band is None or not band[0] <= root <= band[1]:
+                roots.append(root)
+        candidates = [float(lo[k]), top, *roots]
         if band is not None:
             candidates.append(band[1])
         at = np.interp(candidates, grid[k], cost[k])
@@ -259,9 +264,13 @@ def best_shifts(
         if band is not None and band[0] <= best <= band[1]:
             best = band[1]
         below = best == float(lo[k]) and bool(d[0] < 0.0)
-        at_end = best >= top and not any(abs(r - top) <= 1e-9 * top for r in found)
+        at_end = best >= top and not any(abs(r - top) <= 1e-9 * top for r in roots)
         reason = ShiftReason.CROSSOVER
         if at_end:
             reason = ShiftReason.REV_LIMIT if top >= float(hi[k]) else ShiftReason.DRAG_LIMIT
-        choices.append(ShiftChoice(best, reason, len(found), band, below))
+        choices.append(
+            ShiftChoice(
+                best, reason, len(roots), band, below, _intersections(g, d, band), tuple(roots)
+            )
+        )
     return tuple(choices)

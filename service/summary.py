@@ -10,7 +10,7 @@ from service.units import Quantity, UnitSystem, from_si, unit_labels
 __all__ = ["WIDTH", "shift_plan_summary"]
 
 WIDTH = 80
-_WHY = {"crossover": "crossover", "rev_limit": "rev limit"}
+_WHY = {"crossover": "crossover", "rev_limit": "rev limit", "traction_limit": "both on grip"}
 _CAUTION_LINES = ("", *wrap_text("Caution: " + SHORT_CAUTION))  # wrapped once
 
 
