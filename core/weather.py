@@ -27,6 +27,7 @@ from core.correction import CorrectionStandard, correction_factor
 from core.curves import TorqueCurve
 from core.errors import CorrectionError
 from core.performance import ShiftCriterion, planned_shift_rpm
+from core.plan import Notice
 from core.runreport import run_report
 from core.simulate import DriveModel, drive_model
 
@@ -85,6 +86,8 @@ class WeatherAir:
         Density over ISO sea level [-].
     correction_factor : float
         The standard's factor: reference power over power in this air [-].
+    notices : tuple of Notice
+        The standard's validity notices for this air.
     """
 
     weather: Weather
@@ -92,6 +95,7 @@ class WeatherAir:
     density_altitude_m: float
     relative_density: float
     correction_factor: float
+    notices: tuple[Notice, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -138,15 +142,20 @@ def density_altitude_m(density_kg_m3: float) -> float:
 
 def weather_air(weather: Weather, standard: CorrectionStandard) -> WeatherAir:
     """Density, density altitude and the standard's correction factor of one weather."""
-    factor = correction_factor(
+    corr = correction_factor(
         standard,
         weather.temperature_k,
         weather.relative_humidity,
         station_pressure_pa=weather.pressure_pa,
-    ).factor
+    )
     rho = air_density_kg_m3(weather.pressure_pa, weather.temperature_k, weather.relative_humidity)
     return WeatherAir(
-        weather, rho, density_altitude_m(rho), rho / ISO_SEA_LEVEL_DENSITY_KG_M3, factor
+        weather,
+        rho,
+        density_altitude_m(rho),
+        rho / ISO_SEA_LEVEL_DENSITY_KG_M3,
+        corr.factor,
+        corr.notices,
     )
 
 

@@ -2,9 +2,10 @@
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from typing import Any
 
+from core import Notice
 from core.weather import SlipPrediction, WeatherAir
 from service.sheets import summary_sheet, wrap_text
 from service.units import Quantity, UnitSystem, from_si
@@ -60,7 +61,9 @@ def slip_document(p: SlipPrediction, units: UnitSystem) -> dict[str, Any]:
     }
 
 
-def weather_summary(doc: Mapping[str, Any], reference: str | None) -> str:
+def weather_summary(
+    doc: Mapping[str, Any], reference: str | None, notices: Sequence[Notice] = ()
+) -> str:
     """Weather and slip as a short printable sheet: 80 columns, printable ASCII."""
     lab = doc["units"]
     t, pr, d, sp = lab["temperature"], lab["pressure"], lab["distance"], lab["speed"]
@@ -86,4 +89,4 @@ def weather_summary(doc: Mapping[str, Any], reference: str | None) -> str:
             f"Predicted:      ET {s['predicted_et']:.3f} s   trap {s['predicted_trap']:.2f} {sp}",
         ]
     body += ["", *wrap_text("Method: " + WEATHER_METHOD), *wrap_text("Limits: " + WEATHER_LIMITS)]
-    return summary_sheet("GEARWORK WEATHER CORRECTION", reference, body, [])
+    return summary_sheet("GEARWORK WEATHER CORRECTION", reference, body, notices)

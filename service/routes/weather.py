@@ -6,9 +6,10 @@ POST /v1/weather-correction.
 from __future__ import annotations
 
 from fastapi import APIRouter
+from starlette.concurrency import run_in_threadpool
 from starlette.responses import Response
 
-from core import air_state, drive_model
+from core import Notice, air_state, drive_model
 from core.correction import CorrectionStandard
 from core.runreport import QUARTER_MILE_M
 from core.weather import Weather, predict_slip, weather_air
@@ -17,6 +18,7 @@ from service.cautions import CAUTIONS
 from service.computations import RUN_FIELDS
 from service.deps import JsonBody
 from service.openapi import PROBLEM_RESPONSES
+from service.present import notices_out
 from service.present_weather import (
     WEATHER_LIMITS,
     WEATHER_METHOD,
@@ -76,8 +78,10 @@ async def create_weather_correction(body: WeatherCorrectionRequest, _json: JsonB
     u, standard = body.units, CorrectionStandard(body.standard)
     taken = _weather(body.taken_in, u)
     slip = predict = None
+    notices: list[Notice] = []
     with core_fields({**FIELDS, "temperature_k": "taken_in.temperature"}):
         air = weather_air(taken, standard)
+    notices += list(air.notices)
     if body.predict_for is not None and body.engine and body.drivetrain and body.vehicle:
         curve = build_curve(body.engine.curve, u)
         drivetrain = build_drivetrain(body.drivetrain)
@@ -92,7 +96,8 @@ async def create_weather_correction(body: WeatherCorrectionRequest, _json: JsonB
             model = drive_model(
                 curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
             )
-            result = predict_slip(
+            result = await run_in_threadpool(
+                predict_slip,
                 model,
                 _vehicle_density(body.vehicle, u),
                 taken,
@@ -105,6 +110,7 @@ async def create_weather_correction(body: WeatherCorrectionRequest, _json: JsonB
                 else to_si(body.slip.trap, Quantity.SPEED, u),
             )
         predict, slip = air_document(result.predict_for, u), slip_document(result, u)
+        notices += [n for n in result.predict_for.notices if n not in notices]
     doc = {
         "reference": body.reference,
         "units": unit_labels(u),
@@ -114,7 +120,7 @@ async def create_weather_correction(body: WeatherCorrectionRequest, _json: JsonB
         "slip": slip,
         "method": WEATHER_METHOD,
         "limits": WEATHER_LIMITS,
-        "warnings": [],
+        "warnings": notices_out(notices, FIELDS),
         "cautions": list(CAUTIONS),
     }
-    return FastJSONResponse({**doc, "summary": weather_summary(doc, body.reference)})
+    return FastJSONResponse({**doc, "summary": weather_summary(doc, body.reference, notices)})

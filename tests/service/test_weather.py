@@ -60,3 +60,14 @@ def test_temperature_outside_the_standard_names_the_field(api: ApiClient) -> Non
     r = api.post(URL, json={"taken_in": {"temperature": 70, "pressure": 100}})
     assert r.status_code == 422, r.text
     assert r.json()["field"].startswith("taken_in")
+
+
+def test_air_outside_the_standards_band_is_warned(api: ApiClient) -> None:
+    # ISO 1585 states a validity band for its factor, 0.93..1.07 (from memory, as
+    # core.correction records it): 40 degC at 90 kPa lies outside it
+    body = {"standard": "iso_1585", "taken_in": {"temperature": 40, "pressure": 90}}
+    r = api.post(URL, json=body)
+    assert r.status_code == 200, r.text
+    codes = [w["code"] for w in r.json()["warnings"]]
+    assert codes == ["correction_factor_out_of_range"]
+    assert "Warnings:" in r.json()["summary"]
