@@ -6,9 +6,21 @@ from typing import Literal, Self
 
 from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsRequest,
+)
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.quantities import (
+    RoadSpeed,
+    RoadSpeedOrZero,
+    Rollout,
+    RunDistance,
+)
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -29,8 +41,8 @@ __all__ = [
 class SpeedIntervalIn(ApiModel):
     """An extra speed interval to time, e.g. 50-70 mph passing."""
 
-    start: float = Field(ge=0, le=500, description="From speed [km/h | mph].")
-    end: float = Field(gt=0, le=500, description="To speed [km/h | mph].")
+    start: RoadSpeedOrZero = Field(description="From speed [km/h | mph].")
+    end: RoadSpeed = Field(description="To speed [km/h | mph].")
 
     @model_validator(mode="after")
     def _ordered(self) -> Self:
@@ -42,30 +54,27 @@ class SpeedIntervalIn(ApiModel):
 class RunOptions(ApiModel):
     """Start, finish and what to report."""
 
-    start_speed: float = Field(
-        0.0, ge=0, le=400, description="0 for a standing start, else a rolling start [km/h | mph]."
+    start_speed: RoadSpeedOrZero = Field(
+        0.0, description="0 for a standing start, else a rolling start [km/h | mph]."
     )
-    rollout: float | None = Field(
+    rollout: Rollout | None = Field(
         None,
-        ge=0,
-        le=2000,
         description="Standing start: distance rolled before the clock starts [mm | in]; "
         "default one foot (304.8 mm, 12 in), about what a tire rolls before the beam clears "
         "(common practice).",
     )
-    finish_distance: float | None = Field(
+    finish_distance: RunDistance | None = Field(
         None,
-        gt=0,
-        le=5000,
-        description="Finish distance from the clock start [m | ft]; default 1/4 mile.",
+        description="Finish distance from the clock start [m | ft]; default 1/4 mile "
+        "(a standing mile is 1609.344 m, 5280 ft).",
     )
-    finish_speed: float | None = Field(
-        None, gt=0, le=500, description="Finish at this speed instead [km/h | mph]."
+    finish_speed: RoadSpeed | None = Field(
+        None, description="Finish at this speed instead [km/h | mph]."
     )
-    extra_distances: list[float] = Field(
+    extra_distances: list[RunDistance] = Field(
         default_factory=list,
         max_length=10,
-        description="More distances to time [m | ft], each at most 5000.",
+        description="More distances to time [m | ft], each at most 5000 m (16404 ft).",
     )
     extra_speed_intervals: list[SpeedIntervalIn] = Field(default_factory=list, max_length=10)
     trace_points: int = Field(200, ge=10, le=2000, description="Points in the sampled trace.")
@@ -74,8 +83,6 @@ class RunOptions(ApiModel):
     def _finish(self) -> Self:
         if self.finish_distance is not None and self.finish_speed is not None:
             raise ValueError("give `finish_distance` or `finish_speed`, not both")
-        if any(not 0 < d <= 5000 for d in self.extra_distances):
-            raise ValueError("`extra_distances` must each lie in (0, 5000]")
         return self
 
 
@@ -108,12 +115,11 @@ class ShiftChoiceIn(ApiModel):
         return self
 
 
-class AccelerationRunRequest(ApiModel):
+class AccelerationRunRequest(UnitsRequest):
     """A curve, a drivetrain, a vehicle and a launch."""
 
     model_config = ConfigDict(json_schema_extra={"examples": [ACCELERATION_RUN_EXAMPLE]})
 
-    units: UnitsField
     reference: Reference
     engine: EngineIn
     drivetrain: DrivetrainIn

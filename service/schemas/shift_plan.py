@@ -6,9 +6,16 @@ from typing import Literal, Self
 
 from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsRequest,
+)
 from service.schemas.examples import SHIFT_PLAN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.quantities import RoadSpeed
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -39,12 +46,11 @@ class TableOptions(ApiModel):
     )
 
 
-class ShiftPlanRequest(ApiModel):
+class ShiftPlanRequest(UnitsRequest):
     """A torque curve and a drivetrain."""
 
     model_config = ConfigDict(json_schema_extra={"examples": [SHIFT_PLAN_EXAMPLE]})
 
-    units: UnitsField
     reference: Reference
     engine: EngineIn
     drivetrain: DrivetrainIn
@@ -60,7 +66,7 @@ class ShiftPlanRequest(ApiModel):
         description="`tractive_force`: the wheel-force crossover; `net_acceleration` (needs "
         "`vehicle`): road load and rotating inertia counted, which moves shifts earlier.",
     )
-    cruise_speeds: list[float] = Field(
+    cruise_speeds: list[RoadSpeed] = Field(
         default_factory=list,
         max_length=10,
         description="Road speeds [km/h | mph] at which to report the rpm in every gear.",
@@ -72,8 +78,6 @@ class ShiftPlanRequest(ApiModel):
             self.shift_criterion == "net_acceleration" or self.launch is not None
         ):
             raise ValueError("`net_acceleration` and `launch` need `vehicle`")
-        if any(not 0 < v <= 500 for v in self.cruise_speeds):
-            raise ValueError("`cruise_speeds` must each lie in (0, 500]")
         return self
 
 
