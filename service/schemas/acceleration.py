@@ -196,7 +196,7 @@ class AccelerationRunResponse(ApiModel):
     reference: str | None
     units: UnitLabels
     shift_criterion: Literal["net_acceleration", "tractive_force", "custom"]
-    shift_rpm: list[float] = Field(description="Shift rpm used for each gear change.")
+    shift_rpm: list[float] = Field(description="Shift rpm used for each gear change [rpm].")
     finish: DistanceOut | SpeedOut
     distances: list[DistanceOut]
     speeds: list[SpeedOut]

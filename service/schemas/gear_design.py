@@ -238,9 +238,9 @@ class SpeedReadingOut(ApiModel):
 class DistanceReadingOut(ApiModel):
     """An odometer reading and the distance travelled, in the odometer's unit."""
 
-    indicated: float
-    true: float
-    error: float = Field(description="indicated - true.")
+    indicated: float = Field(description="What the odometer shows [km | mi].")
+    true: float = Field(description="Distance travelled [km | mi].")
+    error: float = Field(description="indicated - true [km | mi].")
 
 
 class DrivenGearOut(ApiModel):

@@ -185,7 +185,7 @@ class PerformanceOut(ApiModel):
     cruise: list[CruiseOut]
     traction_limit: float = Field(description="Traction-limited tractive force [N | lbf].")
     force_crossover_rpm: list[float] = Field(
-        description="Wheel-force crossover shift rpm per gear change, for comparison."
+        description="Wheel-force crossover shift rpm per gear change, for comparison [rpm]."
     )
 
 
