@@ -32,7 +32,7 @@ class AirIn(ApiModel):
 
     temperature: AirTemperature | None = Field(
         None,
-        description="Air temperature [degC | degF]; default 15 degC (ISO 2533 sea level).",
+        description="Air temperature [degC | degF]; default 15 degC, 59 degF (ISO 2533 sea level).",
     )
     pressure: AirPressure | None = Field(
         None, description="Station (absolute) pressure [kPa | inHg]."
