@@ -6,6 +6,7 @@ from typing import Literal, Self
 
 from pydantic import ConfigDict, Field, model_validator
 
+from core.vehicle import MIN_FRICTION_COEFFICIENT
 from service.schemas.common import ApiModel, schema_rules
 from service.schemas.quantities import (
     AirPressure,
@@ -32,7 +33,8 @@ class AirIn(ApiModel):
 
     temperature: AirTemperature | None = Field(
         None,
-        description="Air temperature [degC | degF]; default 15 degC, 59 degF (ISO 2533 sea level).",
+        description="Air temperature [degC | degF]; default 15 degC, 59 degF (ISO 2533 sea "
+        "level).",
     )
     pressure: AirPressure | None = Field(
         None, description="Station (absolute) pressure [kPa | inHg]."
@@ -111,7 +113,10 @@ class VehicleIn(ApiModel):
         None, ge=0, le=1, description="All-wheel drive: share of torque to the front [-]."
     )
     friction_coefficient: float = Field(
-        1.0, gt=0, le=5, description="Peak tire-road friction coefficient [-]."
+        1.0,
+        ge=MIN_FRICTION_COEFFICIENT,
+        le=5,
+        description="Peak tire-road friction coefficient [-]; from 0.05 (glare ice).",
     )
     road_load: RoadLoadIn
     air: AirIn = Field(default_factory=AirIn)
