@@ -197,7 +197,7 @@ def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
     speed = Quantity.SPEED
     rollout = 0.3048 if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
     start = to_si(run.start_speed, speed, u)
-    with core_fields(RUN_FIELDS):
+    with core_fields(RUN_FIELDS, u):
         model = drive_model(
             curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
         )

@@ -63,7 +63,7 @@ LAUNCH_FIELDS: Mapping[str, str] = {
 
 def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
     """The core vehicle of a request's vehicle."""
-    with core_fields(VEHICLE_FIELDS):
+    with core_fields(VEHICLE_FIELDS, units):
         mass = to_si(body.mass, Quantity.MASS, units)
         air = body.air
         temperature_k = (

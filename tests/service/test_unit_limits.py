@@ -417,3 +417,10 @@ def test_fixed_plus_percent_driveline_loss(api: Any) -> None:
         json={**body, "curve": {"rpm": [3000], "power": [180], "measured_at": "engine"}},
     ).json()
     assert back["curve"]["wheel_power"] == pytest.approx([150.0], rel=1e-9)
+
+
+def test_core_messages_quote_speeds_in_the_callers_units(api: Any) -> None:
+    # a rolling start beyond top gear's reach at the rev limit: core speaks m/s
+    r = _us_run(api, {"start_speed": 300})
+    assert r.status_code == 422
+    assert "m/s" not in r.json()["detail"]
