@@ -424,3 +424,15 @@ def test_core_messages_quote_speeds_in_the_callers_units(api: Any) -> None:
     r = _us_run(api, {"start_speed": 300})
     assert r.status_code == 422
     assert "m/s" not in r.json()["detail"]
+
+
+def test_imported_speed_curve_tire_diameter_limit_quotes_inches(api: Any) -> None:
+    csv = (Path(__file__).resolve().parents[1] / "data/dyno_road_speed_power_us.csv").read_bytes()
+    r = api.post(
+        "/v1/torque-curves/import?units=us&overall_ratio=3.0&tire_diameter=300",
+        content=csv,
+        headers={"Content-Type": "text/csv"},
+    )
+    assert r.status_code == 422
+    # 5 m is 196.85 in (pint)
+    assert r.json()["detail"] == "`tire_diameter` must be at most 196.85 in, got 300 in"
