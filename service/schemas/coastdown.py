@@ -2,12 +2,13 @@
 
 from __future__ import annotations
 
-from typing import Annotated, Literal, Self
+from typing import Annotated, Any, Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
 from core.coastdown import MAX_RUNS, MIN_SAMPLES
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
+from service.schemas.quantities import AirPressure, AirTemperature, Mass, RoadSpeed
 from service.schemas.vehicle import RoadLoadIn
 
 __all__ = [
@@ -21,9 +22,175 @@ __all__ = [
 ]
 
 MAX_SAMPLES = 20000
+# an invented 1,180 kg hatchback, two runs sampled every 4 s
+COAST_DOWN_EXAMPLE: dict[str, Any] = {
+    "units": "metric",
+    "reference": "CD-HATCH-1",
+    "mass": 1180,
+    "runs": [
+        {
+            "direction": "out",
+            "time": [
+                0.0,
+                4.0,
+                8.0,
+                12.0,
+                16.0,
+                20.0,
+                24.0,
+                28.0,
+                32.0,
+                36.0,
+                40.0,
+                44.0,
+                48.0,
+                52.0,
+                56.0,
+                60.0,
+                64.0,
+                68.0,
+                72.0,
+                76.0,
+                80.0,
+                84.0,
+                88.0,
+                92.0,
+                96.0,
+                100.0,
+                104.0,
+                108.0,
+                112.0,
+                116.0,
+                120.0,
+                124.0,
+                128.0,
+                132.0,
+                136.0,
+            ],
+            "speed": [
+                114.9,
+                109.4,
+                103.9,
+                99.0,
+                94.2,
+                89.8,
+                85.8,
+                81.6,
+                78.1,
+                74.3,
+                71.1,
+                67.9,
+                65.1,
+                61.6,
+                58.8,
+                55.9,
+                53.3,
+                50.7,
+                48.7,
+                46.0,
+                43.9,
+                41.5,
+                39.1,
+                36.8,
+                34.9,
+                32.6,
+                31.2,
+                29.1,
+                27.1,
+                25.1,
+                23.6,
+                21.7,
+                19.8,
+                18.2,
+                16.4,
+            ],
+        },
+        {
+            "direction": "back",
+            "time": [
+                0.0,
+                4.0,
+                8.0,
+                12.0,
+                16.0,
+                20.0,
+                24.0,
+                28.0,
+                32.0,
+                36.0,
+                40.0,
+                44.0,
+                48.0,
+                52.0,
+                56.0,
+                60.0,
+                64.0,
+                68.0,
+                72.0,
+                76.0,
+                80.0,
+                84.0,
+                88.0,
+                92.0,
+                96.0,
+                100.0,
+                104.0,
+                108.0,
+                112.0,
+                116.0,
+                120.0,
+                124.0,
+                128.0,
+                132.0,
+                136.0,
+                140.0,
+                144.0,
+            ],
+            "speed": [
+                115.2,
+                109.3,
+                104.2,
+                99.3,
+                94.7,
+                90.6,
+                86.8,
+                82.4,
+                78.8,
+                75.6,
+                72.3,
+                69.1,
+                65.4,
+                63.2,
+                60.1,
+                57.6,
+                55.1,
+                52.7,
+                50.3,
+                47.8,
+                45.4,
+                43.5,
+                41.2,
+                39.5,
+                37.4,
+                35.7,
+                33.3,
+                31.5,
+                29.7,
+                28.1,
+                26.2,
+                24.5,
+                22.8,
+                21.1,
+                19.5,
+                18.1,
+                16.7,
+            ],
+        },
+    ],
+    "conditions": {"temperature": 27.0, "pressure": 99.1, "relative_humidity": 40},
+}
 
 Seconds = Annotated[float, Field(ge=0, le=1800)]
-RoadSpeed = Annotated[float, Field(gt=0, le=500)]
 
 
 class CoastDownRunIn(ApiModel):
@@ -55,21 +222,20 @@ class CoastDownRunIn(ApiModel):
 class TestConditionsIn(ApiModel):
     """Weather during the coast-downs, for the correction to reference conditions."""
 
-    temperature: float = Field(ge=-40, le=140, description="Air temperature [degC | degF].")
-    pressure: float = Field(gt=0, le=120, description="Station pressure [kPa | inHg].")
+    temperature: AirTemperature = Field(description="Air temperature [degC | degF].")
+    pressure: AirPressure = Field(description="Station pressure [kPa | inHg].")
     relative_humidity: float = Field(0.0, ge=0, le=100, description="Relative humidity [%].")
 
 
-class CoastDownRequest(ApiModel):
+class CoastDownRequest(UnitsRequest):
     """Logged coast-downs of one car, its mass and the test weather."""
 
-    units: UnitsField
+    model_config = ConfigDict(json_schema_extra={"examples": [COAST_DOWN_EXAMPLE]})
+
     reference: Reference
-    mass: float = Field(gt=0, le=60000, description="Test mass with driver and fuel [kg | lb].")
-    equivalent_mass: float | None = Field(
+    mass: Mass = Field(description="Test mass with driver and fuel [kg | lb].")
+    equivalent_mass: Mass | None = Field(
         None,
-        gt=0,
-        le=80000,
         description="Mass plus rotating parts in neutral [kg | lb]; default 1.03 x `mass` "
         "(common practice).",
     )

@@ -4,11 +4,13 @@ from __future__ import annotations
 
 from typing import Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
 from core.shiftwindow import DEFAULT_TOLERANCE_S, MAX_POINTS, MIN_POINTS
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
+from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.quantities import RoadSpeed, RoadSpeedOrZero, Rollout, RunDistance
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -22,21 +24,19 @@ __all__ = [
 class ShiftWindowFinishIn(ApiModel):
     """Start and finish of the run the shifts are priced against."""
 
-    start_speed: float = Field(
-        0.0, ge=0, le=400, description="0 for a standing start, else a rolling start [km/h | mph]."
+    start_speed: RoadSpeedOrZero = Field(
+        0.0, description="0 for a standing start, else a rolling start [km/h | mph]."
     )
-    rollout: float | None = Field(
+    rollout: Rollout | None = Field(
         None,
-        ge=0,
-        le=2000,
         description="Standing start: distance rolled before the clock starts [mm | in]; "
         "default one foot (common practice).",
     )
-    finish_distance: float | None = Field(
-        None, gt=0, le=5000, description="Finish distance [m | ft]; default 1/4 mile."
+    finish_distance: RunDistance | None = Field(
+        None, description="Finish distance [m | ft]; default 1/4 mile."
     )
-    finish_speed: float | None = Field(
-        None, gt=0, le=500, description="Finish at this speed instead [km/h | mph]."
+    finish_speed: RoadSpeed | None = Field(
+        None, description="Finish at this speed instead [km/h | mph]."
     )
 
     @model_validator(mode="after")
@@ -46,10 +46,13 @@ class ShiftWindowFinishIn(ApiModel):
         return self
 
 
-class ShiftWindowRequest(ApiModel):
+class ShiftWindowRequest(UnitsRequest):
     """A curve, a drivetrain, a vehicle, a launch, the finish and the tolerance."""
 
-    units: UnitsField
+    model_config = ConfigDict(
+        json_schema_extra={"examples": [{**ACCELERATION_RUN_EXAMPLE, "points": 9}]}
+    )
+
     reference: Reference
     engine: EngineIn
     drivetrain: DrivetrainIn

@@ -2,12 +2,14 @@
 
 from __future__ import annotations
 
-from typing import Literal, Self
+from typing import Any, Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
+from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.quantities import CellTemperature, RoadSpeed, RunDistance, StationPressure
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -19,15 +21,23 @@ __all__ = [
     "WeatherCorrectionResponse",
 ]
 
+WEATHER_EXAMPLE: dict[str, Any] = {
+    **ACCELERATION_RUN_EXAMPLE,
+    "reference": "SLIP-88",
+    "taken_in": {"temperature": 31, "pressure": 97.2, "relative_humidity": 55},
+    "predict_for": {"temperature": 12, "pressure": 100.4, "relative_humidity": 30},
+    "slip": {"et": 16.62, "trap": 138.4},
+}
+
 Standard = Literal["sae_j1349_2004", "sae_j1349_1990", "sae_j607", "din_70020", "iso_1585"]
 
 
 class StripWeatherIn(ApiModel):
     """Weather at the strip, as its weather station reads it."""
 
-    temperature: float = Field(ge=-40, le=140, description="Air temperature [degC | degF].")
-    pressure: float = Field(
-        gt=0, le=120, description="Station (absolute, uncorrected) pressure [kPa | inHg]."
+    temperature: CellTemperature = Field(description="Air temperature [degC | degF].")
+    pressure: StationPressure = Field(
+        description="Station (absolute, uncorrected) pressure [kPa | inHg]."
     )
     relative_humidity: float = Field(0.0, ge=0, le=100, description="Relative humidity [%].")
 
@@ -36,13 +46,14 @@ class SlipIn(ApiModel):
     """A time slip taken in the first weather."""
 
     et: float = Field(gt=0, le=100, description="Elapsed time to the finish [s].")
-    trap: float = Field(gt=0, le=700, description="Trap speed [km/h | mph].")
+    trap: RoadSpeed = Field(description="Trap speed [km/h | mph].")
 
 
-class WeatherCorrectionRequest(ApiModel):
+class WeatherCorrectionRequest(UnitsRequest):
     """Weather, and optionally a car and its slip to carry to other weather."""
 
-    units: UnitsField
+    model_config = ConfigDict(json_schema_extra={"examples": [WEATHER_EXAMPLE]})
+
     reference: Reference
     standard: Standard = Field(
         "sae_j1349_2004",
@@ -63,8 +74,8 @@ class WeatherCorrectionRequest(ApiModel):
         None, description="The car; its road load refers to its own `air`."
     )
     launch: LaunchIn = Field(default_factory=LaunchIn)
-    finish_distance: float | None = Field(
-        None, gt=0, le=5000, description="Finish distance [m | ft]; default 1/4 mile."
+    finish_distance: RunDistance | None = Field(
+        None, description="Finish distance [m | ft]; default 1/4 mile."
     )
 
     @model_validator(mode="after")

@@ -325,6 +325,11 @@ def _other_system(body: dict[str, Any]) -> dict[str, Any]:
         ambient.update(
             {"temperature": 30 if metric else 86, "station_pressure": 97.9 if metric else 28.9}
         )
+    for key in ("conditions", "taken_in", "predict_for"):  # weather blocks: the same air
+        air = flipped.get(key)
+        if air is not None:
+            metric = flipped["units"] == "metric"
+            air.update({"temperature": 30 if metric else 86, "pressure": 97.9 if metric else 28.9})
     return flipped
 
 
