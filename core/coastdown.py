@@ -65,6 +65,7 @@ ROLLING_TEMPERATURE_COEFFICIENT_PER_K = 0.00864
 """Rolling-resistance temperature coefficient ``K0`` of SAE J1263 [1/K] (from memory)."""
 CONFIDENCE = 0.95
 MIN_SAMPLES = 10
+MIN_MASS_KG = 10.0  # lighter than any vehicle that coasts on a road
 MAX_RUNS = 10
 SHORT_SPAN_M_S = 40.0 / 3.6  # a run spanning less than 40 km/h separates the terms poorly
 NOISY_RMS_M_S = 1.0 / 3.6  # residual above 1 km/h RMS: a noisy or disturbed run
@@ -257,11 +258,14 @@ def _least_squares(
         return coast_down_speed(run.time_s, x[3], x[:3], me) - run.speed_m_s
 
     scale = np.concatenate([np.maximum(guess, [1.0, 0.1, 0.01]), [1.0]])
-    fit = least_squares(
-        residuals, x0, bounds=(0.0, np.inf), x_scale=scale, method="trf", max_nfev=100
-    )
-    dof = float(max(fit.fun.size - x0.size, 1))
-    cov = (2.0 * float(fit.cost) / dof) * np.linalg.pinv(fit.jac.T @ fit.jac)
+    with np.errstate(all="ignore"):
+        fit = least_squares(
+            residuals, x0, bounds=(0.0, np.inf), x_scale=scale, method="trf", max_nfev=100
+        )
+        dof = float(max(fit.fun.size - x0.size, 1))
+        cov = (2.0 * float(fit.cost) / dof) * np.linalg.pinv(fit.jac.T @ fit.jac)
+    if not (np.all(np.isfinite(fit.x)) and np.all(np.isfinite(cov))):
+        raise FitError("a run cannot be fitted: the model diverges", parameter="runs")
     return np.asarray(fit.x, np.float64), np.asarray(cov, np.float64), -fit.fun, dof
 
 
@@ -393,8 +397,10 @@ def fit_coast_down(
     FitError
         No runs, too many, a run too short, times not increasing, or a run not slowing.
     """
-    if not math.isfinite(mass_kg) or mass_kg <= 0.0:
-        raise FitError(f"`mass_kg` must be > 0, got {mass_kg:g}", parameter="mass_kg")
+    if not math.isfinite(mass_kg) or mass_kg < MIN_MASS_KG:
+        raise FitError(
+            f"`mass_kg` must be >= {MIN_MASS_KG:g}, got {mass_kg:g}", parameter="mass_kg"
+        )
     me = EQUIVALENT_MASS_FACTOR * mass_kg if equivalent_mass_kg is None else equivalent_mass_kg
     if not math.isfinite(me) or me < mass_kg:
         raise FitError(

@@ -96,3 +96,9 @@ def test_equivalent_mass_below_mass_is_rejected() -> None:
     run = synthetic_run(TravelDirection.OUT, 0.0, 6)
     with pytest.raises(FitError, match="equivalent_mass_kg"):
         fit_coast_down([run], MASS, equivalent_mass_kg=MASS - 1.0)
+
+
+def test_mass_below_any_vehicle_is_rejected() -> None:
+    run = synthetic_run(TravelDirection.OUT, 0.0, 7)
+    with pytest.raises(FitError, match="mass_kg"):
+        fit_coast_down([run], 5e-324)
