@@ -6,17 +6,14 @@ import json
 from collections.abc import Callable, Iterator
 from typing import Any
 
-import anyio
 import httpx
 import pytest
 from anyio.from_thread import start_blocking_portal
 from fastapi import FastAPI
 from pydantic import ValidationError
 from starlette.exceptions import HTTPException
-from starlette.types import Message, Receive, Scope, Send
 
 from service.app import create_app
-from service.limits import InFlightLimit
 from service.routes.demo import STATIC
 from service.settings import Settings, get_settings
 from tests.conftest import ApiClient, load_demo
@@ -250,83 +247,6 @@ def test_largest_admissible_request_is_answered_not_failed(api: ApiClient) -> No
     r = api.post(URL, json=body, headers={"Accept-Encoding": "gzip"})
     assert r.status_code == 200, r.text
     assert len(r.json()["gears"]) == 12
-
-
-# --- busy worker: 503 with Retry-After --------------------------------------------------
-
-
-def test_busy_worker_answers_503_problem_with_retry_after() -> None:
-    release = anyio.Event()
-    entered = anyio.Event()
-
-    async def slow(scope: Scope, receive: Receive, send: Send) -> None:
-        if scope["path"] != "/healthz":  # a probe is answered at once
-            entered.set()
-            await release.wait()
-        await send({"type": "http.response.start", "status": 200, "headers": []})
-        await send({"type": "http.response.body", "body": b"done"})
-
-    limited = InFlightLimit(slow, max_in_flight=1, retry_after_s=3)
-    transport = httpx.ASGITransport(app=limited)
-    results: dict[str, httpx.Response] = {}
-
-    async def go() -> None:
-        async with httpx.AsyncClient(transport=transport, base_url="http://t") as c:
-
-            async def first() -> None:
-                results["first"] = await c.post(URL, content=b"{}")
-
-            async with anyio.create_task_group() as tg:
-                tg.start_soon(first)
-                await entered.wait()
-                results["second"] = await c.post(URL, content=b"{}")
-                results["probe"] = await c.get("/healthz")
-                release.set()
-
-    anyio.run(go)
-    assert results["first"].status_code == 200
-    second = results["second"]
-    assert second.status_code == 503
-    assert second.headers["content-type"] == "application/problem+json"
-    assert second.headers["retry-after"] == "3"
-    assert second.json()["type"].endswith(":busy")
-    assert results["probe"].status_code == 200  # probes are never refused
-    assert limited.in_flight == 0
-
-
-def test_requests_waiting_behind_cpu_bound_work_are_counted() -> None:
-    # handlers that never yield: without the pause at admission each would run to its end
-    # before the next is counted, and the limit would never trigger
-    async def busy(scope: Scope, receive: Receive, send: Send) -> None:
-        sum(range(20_000))
-        await send({"type": "http.response.start", "status": 200, "headers": []})
-        await send({"type": "http.response.body", "body": b"ok"})
-
-    limited = InFlightLimit(busy, max_in_flight=2, retry_after_s=1)
-    statuses: list[int] = []
-
-    async def one() -> None:
-        seen = 0
-
-        async def receive() -> Message:
-            return {"type": "http.request", "body": b"", "more_body": False}
-
-        async def send(message: Message) -> None:
-            nonlocal seen
-            if message["type"] == "http.response.start":
-                seen = message["status"]
-
-        scope = {"type": "http", "method": "POST", "path": URL, "headers": []}
-        await limited(scope, receive, send)
-        statuses.append(seen)
-
-    async def go() -> None:
-        async with anyio.create_task_group() as tg:
-            for _ in range(5):
-                tg.start_soon(one)
-
-    anyio.run(go)
-    assert sorted(statuses) == [200, 200, 503, 503, 503]
 
 
 # --- the demo page ----------------------------------------------------------------------
