@@ -34,6 +34,7 @@ import anyio
 from starlette.responses import Response
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
+from service.bodycheck import MAX_OBJECT_FIELDS, crowded_object
 from service.problems import problem_response
 
 __all__ = ["Admission", "AdmissionGate", "CalculationSlots", "is_calculation"]
@@ -333,7 +334,7 @@ class CalculationSlots:
 
         if slot is None:
             try:
-                await self.app(scope, replay, send)
+                await self._checked(scope, body, replay, send)
             finally:
                 adm.release(None)
             return
@@ -353,12 +354,30 @@ class CalculationSlots:
 
             loop.call_soon_threadsafe(on_loop)
 
-        slot.run(lambda: self.app(scope, replay, collect), done)
+        slot.run(lambda: self._checked(scope, body, replay, collect), done)
         error = await finished
         if error is not None:
             raise error
         for message in out:
             await send(message)
+
+
+    async def _checked(self, scope: Scope, body: bytes, receive: Receive, send: Send) -> None:
+        """The application, unless the JSON body holds an object with too many fields."""
+        kind = dict(scope.get("headers", [])).get(b"content-type", b"application/json")
+        crowded = crowded_object(body) if b"json" in kind.lower() else None
+        if crowded is None:
+            await self.app(scope, receive, send)
+            return
+        where, count = crowded
+        response = problem_response(
+            422,
+            f"`{where}` has {count} fields; no request object has more than "
+            f"{MAX_OBJECT_FIELDS} (unknown fields are refused).",
+            scope.get("path", ""),
+            field=where,
+        )
+        await response(scope, receive, send)
 
 
 async def _read_body(receive: Receive) -> bytes | None:

@@ -291,3 +291,51 @@ def test_demo_assets_load_nothing_from_elsewhere() -> None:
 def test_demo_data_is_marked_invented() -> None:
     page = (STATIC / "demo.html").read_text(encoding="utf-8")
     assert "invented" in page
+
+
+# --- documents, /docs and /metrics on a shop's network (issue 11) -----------------------
+
+
+@pytest.mark.parametrize(
+    ("url", "accept", "kind"),
+    [
+        pytest.param("/v1/reports/shift-plan", "text/html", "text/html", id="html-report"),
+        pytest.param("/v1/charts/tractive-force", "image/svg+xml", "image/svg+xml", id="svg"),
+    ],
+)
+def test_html_reports_and_svg_charts_carry_a_content_policy_without_script(
+    api: ApiClient, url: str, accept: str, kind: str
+) -> None:
+    r = api.post(url, json=load_demo("demo_coupe_us"), headers={"accept": accept})
+    assert r.status_code == 200, r.text
+    assert r.headers["content-type"].startswith(kind)
+    policy = r.headers["content-security-policy"]
+    assert "default-src 'none'" in policy and "frame-ancestors 'none'" in policy
+    assert "script-src" not in policy  # falls back to default-src 'none': no script at all
+
+
+def test_json_results_carry_no_document_policy(api: ApiClient) -> None:
+    r = api.post(URL, json=load_demo("demo_coupe_us"))
+    assert "content-security-policy" not in r.headers
+
+
+def test_docs_page_loads_its_assets_from_this_service_only(api: ApiClient) -> None:
+    page = api.get("/docs")
+    assert page.status_code == 200
+    assert page.headers["content-type"].startswith("text/html")
+    assert "script-src 'self'" in page.headers["content-security-policy"]
+    assert "http://" not in page.text and "https://" not in page.text
+    assert "<script>" not in page.text  # no inline script: the CSP would block it
+    for src in ("/docs/swagger-ui-bundle.js", "/docs/swagger-ui.css", "/docs/start.js"):
+        assert src in page.text
+        asset = api.get(src)
+        assert asset.status_code == 200 and len(asset.content) > 0, src
+    assert "/openapi.json" in api.get("/docs/start.js").text
+    _problem(api.get("/docs/index.html"), 404)
+    assert api.get("/redoc").status_code == 404  # its page would load a script from a CDN
+
+
+def test_docs_can_be_turned_off(app_with: Callable[..., Built]) -> None:
+    built = app_with(docs="false")
+    assert built("GET", "/docs").status_code == 404
+    assert built("GET", "/openapi.json").status_code == 200
