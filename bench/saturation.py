@@ -113,9 +113,8 @@ def saturate(port: int, seconds: float, clients: int) -> tuple[list[float], Coun
             path, headers, body = work[(k + i) % len(work)]
             data = json.dumps({**body, "reference": f"sat-{k}-{i}"}).encode()
             try:
-                conn.request(
-                    "POST", path, body=data, headers={"Content-Type": "application/json", **headers}
-                )
+                sent = {"Content-Type": "application/json", **headers}
+                conn.request("POST", path, body=data, headers=sent)
                 r = conn.getresponse()
                 r.read()
                 status = r.status

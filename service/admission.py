@@ -361,7 +361,6 @@ class CalculationSlots:
         for message in out:
             await send(message)
 
-
     async def _checked(self, scope: Scope, body: bytes, receive: Receive, send: Send) -> None:
         """The application, unless the JSON body holds an object with too many fields."""
         kind = dict(scope.get("headers", [])).get(b"content-type", b"application/json")
