@@ -90,7 +90,7 @@ def request(
 
 def heaviest() -> list[tuple[str, dict[str, str], dict[str, object]]]:
     """(path, headers, body) of the heaviest admissible requests."""
-    by_label = {label: (path, body) for label, path, body in cases()}
+    by_label = {label: (path, body) for label, path, body, _ in cases()}
     _, run = by_label["acceleration run, largest, optimised"]
     return [
         ("/v1/reports/acceleration-run", {"Accept": "application/pdf"}, run),
