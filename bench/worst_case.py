@@ -81,7 +81,7 @@ def cases() -> list[tuple[str, str, dict[str, Any], dict[str, str]]]:
     sweep["engine"] = {"curve": curve}
     sweep["drivetrain"]["gear_ratios"] = gears
     sweep.pop("ratios", None)
-    sweep["ratio_range"] = {"start": 2.5, "stop": 4.98, "step": 0.025}  # 100 x 12 gears
+    sweep["ratio_range"] = {"low": 2.5, "high": 4.975, "step": 0.025}  # 100 x 12 gears
     crowded = {**coupe, **{f"k{i}": i for i in range(15_000)}}
     html, pdf = {"accept": "text/html"}, {"accept": "application/pdf"}
     return [

@@ -70,7 +70,7 @@ _REQUEST_ID: contextvars.ContextVar[str | None] = contextvars.ContextVar(
 )
 _METHODS = frozenset({"GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS"})
 _QUIET = frozenset({"/healthz", "/readyz", "/metrics"})
-_WAIT_BUCKETS = (0.001, 0.005, 0.01, 0.05, 0.1, 0.25, 0.5, 1.0, 2.0, 5.0, 10.0, 30.0)
+_WAIT_BUCKETS = (0.001, 0.005, 0.01, 0.05, 0.1, 0.25, 0.5, 1, 2, 3, 4, 5, 6, 8, 10, 30)
 _BUCKETS = (0.0005, 0.001, 0.0025, 0.005, 0.01, 0.025, 0.05, 0.1, 0.25, 0.5, 1.0, 2.5, 5.0)
 CLIENT_CLOSED = 499  # no answer started: the client went away first (nginx's convention)
 

@@ -66,7 +66,7 @@ class Settings(BaseSettings):
         "arrival [s]; past it 408 and the connection is closed.",
     )
     shutdown_timeout_s: float = Field(
-        15.0,
+        20.0,
         gt=0,
         le=3600,
         description="On SIGTERM, longest the worker waits for accepted requests to be "

@@ -152,8 +152,12 @@ def test_stalled_body_is_408_and_others_are_served_meanwhile(port: int) -> None:
 
 
 def _waiting(port: int) -> float:
-    with urllib.request.urlopen(f"http://127.0.0.1:{port}/metrics", timeout=BOUND_S) as r:
-        text = r.read().decode()
+    """Queue depth from /metrics; 0 when the scrape is not answered within 0.5 s."""
+    try:
+        with urllib.request.urlopen(f"http://127.0.0.1:{port}/metrics", timeout=0.5) as r:
+            text = r.read().decode()
+    except OSError:
+        return 0.0
     for family in text_string_to_metric_families(text):
         for sample in family.samples:
             if sample.name == "gearwork_calculations_waiting":
@@ -162,8 +166,13 @@ def _waiting(port: int) -> float:
 
 
 def _heavy_run() -> dict[str, Any]:
+    """The largest admissible optimised run: 2000 curve points, 12 gears, 5 km."""
     run: dict[str, Any] = json.loads((DATA / "demo_sedan_run_metric.json").read_text())
+    rpm = [500.0 + 14.25 * i for i in range(2000)]
+    run["engine"] = {"curve": {"rpm": rpm, "torque": [250.0 + (i % 40) for i in range(2000)]}}
+    run["drivetrain"]["gear_ratios"] = [round(5.0 * 0.81**i, 4) for i in range(12)]
     run["shifts"] = {"optimise": True}
+    run["run"] = {"finish_distance": 5000, "trace_points": 2000}
     return run
 
 
@@ -175,10 +184,14 @@ def test_sigterm_with_twenty_requests_queued_answers_every_one() -> None:
     lock = threading.Lock()
 
     def post(body: dict[str, Any]) -> None:
+        slow = body["reference"].startswith("slow")
         request = urllib.request.Request(
-            f"http://127.0.0.1:{port}/v1/acceleration-run",
+            f"http://127.0.0.1:{port}/v1/"
+            + ("reports/acceleration-run" if slow else "acceleration-run"),
             data=json.dumps(body).encode(),
-            headers={"Content-Type": "application/json"},
+            headers={"Content-Type": "application/json", "Accept": "application/pdf"}
+            if slow
+            else {"Content-Type": "application/json"},
         )
         try:
             with urllib.request.urlopen(request, timeout=BOUND_S) as r:
@@ -191,17 +204,22 @@ def test_sigterm_with_twenty_requests_queued_answers_every_one() -> None:
             answers.append(outcome)
 
     try:
-        slow = [_heavy_run() | {"reference": f"slow-{i}"} for i in range(2)]
+        slow = [_heavy_run() | {"reference": f"slow-{i}"} for i in range(3)]
         queued = [
             json.loads((DATA / "demo_sedan_run_metric.json").read_text()) | {"reference": f"q-{i}"}
             for i in range(20)
         ]
         threads = [threading.Thread(target=post, args=(b,)) for b in slow + queued]
-        for t in threads:
+        for t in threads[:3]:
             t.start()
-        deadline = time.monotonic() + BOUND_S
-        while _waiting(port) < 18 and time.monotonic() < deadline and not answers:
-            time.sleep(0.02)
+        time.sleep(0.2)  # pacing only: the slow ones go first
+        for t in threads[3:]:
+            t.start()
+        # SIGTERM once the queue holds the twenty (a scrape is answered while the slot
+        # computes), or after a second, whatever the server has seen by then
+        deadline = time.monotonic() + 1.0
+        while _waiting(port) < 18 and time.monotonic() < deadline:
+            time.sleep(0.05)
         proc.send_signal(signal.SIGTERM)
         for t in threads:
             t.join(BOUND_S)
@@ -210,6 +228,6 @@ def test_sigterm_with_twenty_requests_queued_answers_every_one() -> None:
     finally:
         if proc.poll() is None:
             proc.kill()
-    assert len(answers) == 22
+    assert len(answers) == 23
     assert all(a in (200, 503) for a in answers), answers
-    assert answers.count(200) >= 2, answers  # what was computing is finished
+    assert answers.count(200) >= 1, answers  # what was computing is finished
