@@ -23,6 +23,8 @@ from __future__ import annotations
 import asyncio
 import contextlib
 import contextvars
+import os
+import sys
 import threading
 import time
 from collections import deque
@@ -40,6 +42,7 @@ from service.problems import problem_response
 __all__ = ["Admission", "AdmissionGate", "CalculationSlots", "is_calculation"]
 
 _ARRIVED = "gearwork_arrived"
+SWITCH_INTERVAL_S = float(os.environ.get("GEARWORK_SWITCH_INTERVAL_S", "0.001"))
 
 
 def is_calculation(scope: Scope, prefix: str = "/v1/") -> bool:
@@ -147,6 +150,10 @@ class Admission:
         if self._free:
             return self._free.pop()
         if self._started < self.slots:
+            if self._started == 0:
+                # the event loop waits for the interpreter lock after every I/O; a slot
+                # thread computing in Python gives it up after this interval (5 ms by default)
+                sys.setswitchinterval(SWITCH_INTERVAL_S)
             self._started += 1
             return _SlotThread(f"gearwork-calc-{self._started}")
         return None

@@ -38,11 +38,11 @@ class Settings(BaseSettings):
         262_144, ge=1024, le=16_777_216, description="Largest accepted request body [bytes]."
     )
     calc_slots: int = Field(
-        1,
+        2,
         ge=0,
         le=64,
         description="Calculations one worker runs at once, each on its own thread (see "
-        "README, Scaling out: one per worker measured best); 0 computes on the event loop.",
+        "README, Scaling out: two per worker measured best); 0 computes on the event loop.",
     )
     queue_limit: int = Field(
         16,
