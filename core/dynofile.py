@@ -41,6 +41,7 @@ from scipy.interpolate import PchipInterpolator
 from scipy.signal import savgol_filter
 
 from core.curves import (
+    MAX_TORQUE_NM,
     MIN_CURVE_POINTS,
     RPM_TO_RAD_S,
     CurveSource,
@@ -351,19 +352,32 @@ def read_dyno_text(
     for j in range(1, len(table.columns)):
         cells = [row[j] for row in table.rows]
         _first_bad(values[:, j] < 0.0, cells, ">= 0")
+        unit = table.columns[j].unit
+        if unit.quantity is ColumnQuantity.TORQUE:  # converted values must stay finite
+            top = MAX_TORQUE_NM / unit.si_factor
+            _first_bad(~(values[:, j] <= top), cells, f"at most {top:g} {unit.value}")
     notices = list(table.notices)
     omega = rpm * RPM_TO_RAD_S
     power_j = by_quantity.get(ColumnQuantity.POWER)
     torque_j = by_quantity.get(ColumnQuantity.TORQUE)
     from_power = None
     if power_j is not None:
-        from_power = values[:, power_j] * table.columns[power_j].unit.si_factor / omega
+        with np.errstate(over="ignore"):  # an overflowing cell is refused just below
+            from_power = values[:, power_j] * table.columns[power_j].unit.si_factor / omega
     if torque_j is not None:
         torque = values[:, torque_j] * table.columns[torque_j].unit.si_factor
         if from_power is not None:
             note = _mismatch(torque, from_power, rpm, lines)
             notices.extend([note] if note is not None else [])
     elif from_power is not None:
+        if power_j is not None:  # always, here; the torque it implies must stay finite
+            unit = table.columns[power_j].unit
+            bad = np.flatnonzero(~(from_power <= MAX_TORQUE_NM))
+            limits = MAX_TORQUE_NM * omega / unit.si_factor
+            if bad.size:
+                i = int(bad[0])
+                rule = f"at most {limits[i]:g} {unit.value} at {rpm[i]:g} rpm"
+                _first_bad(bad == i, [row[power_j] for row in table.rows][i : i + 1], rule)
         torque = from_power
     else:  # pragma: no cover - read_table always finds torque or power
         raise DynoFileError("`text` has neither a torque nor a power column")

@@ -2,12 +2,20 @@
 
 from __future__ import annotations
 
-from typing import Annotated, Literal, Self
+from typing import Annotated, Any, Literal, Self
 
 from pydantic import Field, model_validator
 
 from service.schemas.acceleration import TopSpeedOut
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    DEFAULT_SHIFT_RULE,
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsField,
+    with_default_shift_criterion,
+)
 from service.schemas.inputs import DrivetrainIn, EngineIn, TireIn
 from service.schemas.shift_plan import TireOut
 from service.schemas.vehicle import ConverterIn, LaunchIn, VehicleIn
@@ -91,10 +99,10 @@ class ComparisonRequest(ApiModel):
         "and top speed.",
     )
     launch: LaunchIn | None = Field(None, description="Clutch or converter (with `vehicle`).")
-    shift_criterion: Literal["tractive_force", "net_acceleration"] = Field(
-        "tractive_force",
+    shift_criterion: Literal["tractive_force", "net_acceleration"] | None = Field(
+        None,
         description="Shift at the wheel-force crossover, or (needs `vehicle`) where net "
-        "acceleration crosses, road load and rotating inertia counted.",
+        "acceleration crosses, road load and rotating inertia counted. " + DEFAULT_SHIFT_RULE,
     )
     cruise_speeds: list[CruiseSpeed] = Field(
         default_factory=list,
@@ -104,6 +112,11 @@ class ComparisonRequest(ApiModel):
     variants: list[VariantIn] = Field(
         min_length=1, max_length=MAX_VARIANTS, description="One to eight variants."
     )
+
+    @model_validator(mode="before")
+    @classmethod
+    def _default_criterion(cls, data: Any) -> Any:
+        return with_default_shift_criterion(data)
 
     @model_validator(mode="after")
     def _needs_vehicle(self) -> Self:
@@ -133,7 +146,7 @@ class ComparisonShiftOut(ApiModel):
     shift_speed: float = Field(description="Road speed at the shift [km/h | mph].")
     rpm_after: float = Field(description="Engine speed right after the shift [rpm].")
     rpm_drop: float = Field(description="shift_rpm - rpm_after [rpm].")
-    reason: Literal["crossover", "rev_limit", "drag_limit"]
+    reason: Literal["crossover", "rev_limit", "drag_limit", "traction_limit"]
 
 
 class ComparisonCruiseOut(ApiModel):
