@@ -10,7 +10,8 @@ Every POST under ``/v1/`` is a calculation. Two pure-ASGI middlewares share one
   408 problem past it), so a slow client never gets further than reading its body.
 - ``CalculationSlots`` (inner, after the result cache has read the whole body) waits for
   one of ``slots`` calculation threads, at most ``queue`` requests waiting at a time and
-  none past ``budget_s`` from its arrival (503 problem, ``Retry-After``), then runs the
+  none past ``budget_s`` from its arrival (503 problem, ``Retry-After``; at once when the
+  requests ahead of it at the average calculation time would take longer), then runs the
   rest of the application (validation, the calculation, rendering) on that thread's own
   event loop and sends the buffered answer from the server's loop.
 
@@ -125,6 +126,7 @@ class Admission:
     waiting: int = 0
     computing: int = 0
     draining: bool = False
+    mean_calc_s: float = 0.0  # moving average of a calculation's duration [s]
     _free: list[_SlotThread] = field(default_factory=list)
     _started: int = 0
     _waiters: deque[asyncio.Future[_SlotThread | None]] = field(default_factory=deque)
@@ -141,6 +143,17 @@ class Admission:
     def begin_draining(self) -> None:
         """Refuse new calculations and report not ready (SIGTERM received)."""
         self.draining = True
+
+    def record(self, seconds: float) -> None:
+        """Fold one calculation's duration into the moving average (weight 1/8)."""
+        self.mean_calc_s += (seconds - self.mean_calc_s) / 8.0
+
+    def expected_wait_s(self) -> float:
+        """The wait a request joining the queue now can expect [s]: the requests ahead of
+        it, shared among the slots, at the average duration (0 while a slot is free)."""
+        if self.computing < self.capacity:
+            return 0.0
+        return (self.waiting + 1) * self.mean_calc_s / self.capacity
 
     def _report(self) -> None:
         if self.metrics is not None:
@@ -305,6 +318,15 @@ class CalculationSlots:
                 f"after {adm.retry_after_s} s.",
             )(scope, _empty_receive, send)
             return
+        if time.monotonic() - arrived + adm.expected_wait_s() > adm.budget_s:
+            if adm.metrics is not None:
+                adm.metrics.waited(time.monotonic() - arrived, "budget")
+            await adm.refuse(
+                scope,
+                f"The wait for a calculation slot would exceed {adm.budget_s:g} s; retry "
+                f"after {adm.retry_after_s} s.",
+            )(scope, _empty_receive, send)
+            return
         adm.waiting += 1
         adm._report()
         try:
@@ -339,10 +361,12 @@ class CalculationSlots:
                 return {"type": "http.request", "body": body, "more_body": False}
             return {"type": "http.disconnect"}
 
+        started = time.monotonic()
         if slot is None:
             try:
                 await self._checked(scope, body, replay, send)
             finally:
+                adm.record(time.monotonic() - started)
                 adm.release(None)
             return
         out: list[Message] = []
@@ -355,6 +379,7 @@ class CalculationSlots:
 
         def done(error: BaseException | None) -> None:
             def on_loop() -> None:
+                adm.record(time.monotonic() - started)
                 adm.release(slot)
                 if not finished.done():
                     finished.set_result(error)

@@ -253,3 +253,16 @@ def test_thousands_of_unknown_fields_are_refused_before_validation(
     assert problem["field"] == "body"
     assert "15004 fields" in problem["detail"]
     assert len(problem["errors"]) == 1
+
+
+def test_a_wait_that_would_exceed_the_budget_is_refused_at_once() -> None:
+    # two ahead of it on one busy slot at 1 s each: 3 s expected against a 2 s budget
+    from service.admission import Admission
+
+    adm = Admission(slots=1, queue=8, budget_s=2.0, client_timeout_s=10.0, retry_after_s=1)
+    assert adm.expected_wait_s() == 0.0  # a free slot: no wait
+    adm.computing, adm.waiting = 1, 2
+    for _ in range(200):
+        adm.record(1.0)
+    assert adm.expected_wait_s() == pytest.approx(3.0, rel=1e-6)
+    assert adm.expected_wait_s() > adm.budget_s
