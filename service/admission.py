@@ -24,7 +24,6 @@ from __future__ import annotations
 import asyncio
 import contextlib
 import contextvars
-import os
 import sys
 import threading
 import time
@@ -43,7 +42,6 @@ from service.problems import problem_response
 __all__ = ["Admission", "AdmissionGate", "CalculationSlots", "is_calculation"]
 
 _ARRIVED = "gearwork_arrived"
-SWITCH_INTERVAL_S = float(os.environ.get("GEARWORK_SWITCH_INTERVAL_S", "0.001"))
 
 
 def is_calculation(scope: Scope, prefix: str = "/v1/") -> bool:
@@ -115,6 +113,8 @@ class Admission:
         Longest a client may take to send its body, from arrival [s]; past it, 408.
     retry_after_s : int
         Seconds sent in ``Retry-After`` with every refusal.
+    switch_interval_s : float
+        Interpreter switch interval set when the first slot thread starts [s].
     """
 
     slots: int
@@ -122,6 +122,7 @@ class Admission:
     budget_s: float
     client_timeout_s: float
     retry_after_s: int
+    switch_interval_s: float = 0.001
     metrics: AdmissionMetrics | None = None
     waiting: int = 0
     computing: int = 0
@@ -166,7 +167,7 @@ class Admission:
             if self._started == 0:
                 # the event loop waits for the interpreter lock after every I/O; a slot
                 # thread computing in Python gives it up after this interval (5 ms by default)
-                sys.setswitchinterval(SWITCH_INTERVAL_S)
+                sys.setswitchinterval(self.switch_interval_s)
             self._started += 1
             return _SlotThread(f"gearwork-calc-{self._started}")
         return None

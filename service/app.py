@@ -83,6 +83,7 @@ def create_app() -> FastAPI:
         budget_s=settings.wait_budget_s,
         client_timeout_s=settings.client_timeout_s,
         retry_after_s=settings.retry_after_s,
+        switch_interval_s=settings.switch_interval_s,
         metrics=metrics,
     )
 
