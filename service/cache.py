@@ -3,7 +3,7 @@
 Every calculation endpoint is a pure function of its path and body, so the same request
 always gets the same answer. A retailer's page re-sends the configurations buyers flip
 between; a shop's job system re-sends a work order. The middleware keys each POST under
-``/v1/`` by SHA-256 of (path, content type, accept, body), keeps successful answers in a
+``/v1/`` by SHA-256 of (path, query, content type, accept, body), keeps successful answers in a
 bounded LRU (entry count and total bytes), and sends every 200 with an ``ETag`` of that
 digest, so a caller holding the tag can send ``If-None-Match`` and get 304 with no body.
 The tag is weak (``W/"..."``): it names the result, which is the same whether it is sent
@@ -101,6 +101,7 @@ class ResultCache:
         digest = hashlib.sha256(_VERSION)
         for part in (
             scope["path"].encode(),
+            scope.get("query_string", b""),  # ?format= picks a report's or chart's format
             headers.get(b"content-type", b""),
             headers.get(b"accept", b""),
             body,

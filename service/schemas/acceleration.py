@@ -9,6 +9,7 @@ from pydantic import ConfigDict, Field, model_validator
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -115,6 +116,7 @@ class AccelerationRunRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     engine: EngineIn
     drivetrain: DrivetrainIn
     vehicle: VehicleIn

@@ -7,6 +7,7 @@ from typing import Annotated, Literal, Self
 from pydantic import Field, model_validator
 
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.job import JobField
 
 __all__ = [
     "ChassisConversionRequest",
@@ -102,6 +103,7 @@ class ChassisConversionRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     curve: ChassisCurveIn
     driveline: DrivelineLossIn
 

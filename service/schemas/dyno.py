@@ -8,6 +8,7 @@ from pydantic import Field, model_validator
 
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
 from service.schemas.inputs import CurveIn
+from service.schemas.job import JobField
 
 __all__ = [
     "AmbientIn",
@@ -49,6 +50,7 @@ class DynoCorrectionRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     ambient: AmbientIn
     standard: Standard = Field(
         "sae_j1349_2004", description="The standard whose factor is applied to `curve`."

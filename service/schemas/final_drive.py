@@ -10,6 +10,7 @@ from service.schemas.acceleration import TopSpeedOut
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
 from service.schemas.gear_choice import StripTimeOut
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -100,6 +101,7 @@ class FinalDriveSweepRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     engine: EngineIn
     drivetrain: DrivetrainIn = Field(
         description="The drivetrain; each candidate replaces its `final_drive_ratio`."

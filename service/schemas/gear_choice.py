@@ -9,6 +9,7 @@ from pydantic import Field, model_validator
 from service.schemas.acceleration import TopSpeedOut
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
 from service.schemas.inputs import DrivetrainIn, EngineIn, TireIn
+from service.schemas.job import JobField
 from service.schemas.shift_plan import TireOut
 from service.schemas.vehicle import ConverterIn, LaunchIn, VehicleIn
 
@@ -83,6 +84,7 @@ class ComparisonRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     engine: EngineIn
     drivetrain: DrivetrainIn
     vehicle: VehicleIn | None = Field(

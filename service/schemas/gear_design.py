@@ -8,6 +8,7 @@ from pydantic import Field, model_validator
 
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
 from service.schemas.inputs import EngineIn, TireIn
+from service.schemas.job import JobField
 from service.schemas.shift_plan import TireOut
 
 __all__ = [
@@ -57,6 +58,7 @@ class GearSpacingRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     spacing: SpacingIn | None = Field(
         None, description="Space geometric and progressive sets between these ends."
     )
@@ -176,6 +178,7 @@ class SpeedometerRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     drive: Literal["transmission_output", "wheel"] = Field(
         "transmission_output",
         description="Where the speedometer takes its signal: the transmission output (tire "

@@ -8,6 +8,7 @@ from pydantic import Field, model_validator
 
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.vehicle import VehicleIn
 
 __all__ = [
@@ -114,6 +115,7 @@ class LogAnalysisRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     log: LogIn
     drivetrain: DrivetrainIn
     engine: EngineIn | None = Field(

@@ -9,6 +9,7 @@ from pydantic import ConfigDict, Field, model_validator
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
 from service.schemas.examples import SHIFT_PLAN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -46,6 +47,7 @@ class ShiftPlanRequest(ApiModel):
 
     units: UnitsField
     reference: Reference
+    job: JobField
     engine: EngineIn
     drivetrain: DrivetrainIn
     table: TableOptions = Field(default_factory=TableOptions)
