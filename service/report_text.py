@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import textwrap
 
+from service.letterhead import Letterhead, get_letterhead
 from service.report_model import Report, Section, Table
 from service.sheets import printable, printable_line
 
@@ -70,17 +71,46 @@ def report_body_lines(report: Report) -> list[str]:
     lines += ["CAUTIONS", "--------"]
     for caution in report.cautions:
         lines += wrap_text(caution, "- ")
+    if report.appendix:
+        lines += ["", "APPENDIX", "========", ""]
+        for section in report.appendix:
+            lines += _section_lines(section)
+            lines.append("")
+        lines.pop()
     return [printable_line(line) for line in lines]
 
 
-def render_text(report: Report) -> str:
+def _shop_lines(head: Letterhead) -> list[str]:
+    """The shop's letterhead, when one is set."""
+    if head.neutral:
+        return []
+    return [head.name, *head.lines, "=" * WIDTH]
+
+
+def _job_lines(report: Report) -> list[str]:
+    """The job block and the key figures."""
+    lines: list[str] = []
+    for label, value in report.job:
+        lines += wrap_text(value, f"{label}:".ljust(_LABEL), " " * _LABEL)
+    if report.key_figures:
+        cells = [
+            f"{f.label}: {f.value} {f.unit}".rstrip() + (f" ({f.note})" if f.note else "")
+            for f in report.key_figures
+        ]
+        lines += wrap_text("; ".join(cells), "Key figures: ")
+    return lines
+
+
+def render_text(report: Report, letterhead: Letterhead | None = None) -> str:
     """The whole report as text lines of at most 80 columns, ending with a newline."""
+
     head = f"GEARWORK {report.kind.upper()}"
     ref = f"ref: {report.reference}" if report.reference else ""
     if len(head) + 2 + len(ref) <= WIDTH:
         lines = [head + ref.rjust(WIDTH - len(head))] if ref else [head]
     else:
         lines = [head, ref]
+    lines = _shop_lines(letterhead or get_letterhead()) + lines + _job_lines(report)
     lines += wrap_text("Units: " + report.units)
     lines += wrap_text("Caution: " + report.short_caution)
     lines.append("")

@@ -163,6 +163,10 @@ class ComparisonRunOut(ApiModel):
     zero_to_60_mph_less_rollout: float | None = Field(
         description="0-60 mph less the time to roll out [s]."
     )
+    zero_to_100_kmh: float | None = Field(None, description="0-100 km/h from first motion [s].")
+    zero_to_100_kmh_less_rollout: float | None = Field(
+        None, description="0-100 km/h less the time to roll out [s]."
+    )
     top_speed: TopSpeedOut
 
 
@@ -180,6 +184,7 @@ class SetupDeltaOut(ApiModel):
     quarter_mile_elapsed: float | None = Field(description="[s]")
     quarter_mile_trap_speed: float | None = Field(description="[km/h | mph]")
     zero_to_60_mph: float | None = Field(description="[s]")
+    zero_to_100_kmh: float | None = Field(None, description="[s]")
 
 
 class SetupOut(ApiModel):
