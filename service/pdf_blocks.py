@@ -33,6 +33,7 @@ LABEL_MM = 30.0
 PAD_MM = 1.7  # each side of a table cell
 GUTTER_MM = 7.0  # between tables set side by side
 SIDE_BY_SIDE_ROWS = 12  # tables this short may share a row
+MIN_SIDE_BY_SIDE_SCALE = 0.85  # ... set at most this much narrower
 KEEP_FACTS = 24  # a section with at most this many facts keeps them on one page
 
 
@@ -182,8 +183,11 @@ def _side_by_side(pdf: FPDF, width: float, left: Table, right: Table) -> Block |
         return None
     w_left = sum(_widths(pdf, left, BODY_PT))
     w_right = sum(_widths(pdf, right, BODY_PT))
-    if w_left + GUTTER_MM + w_right > width:
+    scale = (width - GUTTER_MM) / (w_left + w_right)
+    if scale < MIN_SIDE_BY_SIDE_SCALE:
         return None
+    if scale < 1.0:  # a little smaller type keeps them side by side (``_fit`` shrinks it)
+        w_left, w_right = w_left * scale, w_right * scale
     parts = (_table_blocks(pdf, w_left, left), _table_blocks(pdf, w_right, right))
     heights = [sum(b.height for b in part) + sum(b.gap_before for b in part[1:]) for part in parts]
 
