@@ -35,6 +35,7 @@ bench: $(STAMP)  ## benchmarks: core timings and served throughput against /heal
 	$(BIN)/python -m bench.acceleration_run
 	$(BIN)/python -m bench.final_drive_sweep
 	$(BIN)/python -m bench.charts
+	$(BIN)/python -m bench.sheets
 	$(BIN)/python -m bench.log_analysis
 	$(BIN)/python -m bench.shift_plan
 	$(BIN)/python -m bench.worst_case

@@ -8,10 +8,10 @@ Every builder measures with the font it will draw in, so the flow's heights are 
 from __future__ import annotations
 
 from collections.abc import Sequence
+from functools import lru_cache
 
-from fpdf import FPDF
-
-from service.pdf_layout import Block, latin, wrap
+from service.pdf_ink import Ink
+from service.pdf_layout import Block, em_width, latin, text_width, wrap
 from service.report_model import Column, KeyFigure, Section, Table
 
 __all__ = [
@@ -37,8 +37,8 @@ MIN_SIDE_BY_SIDE_SCALE = 0.85  # ... set at most this much narrower
 KEEP_FACTS = 24  # a section with at most this many facts keeps them on one page
 
 
-def _heading(pdf: FPDF, width: float, text: str) -> Block:
-    def draw(pdf: FPDF, y: float) -> None:
+def _heading(pdf: Ink, width: float, text: str) -> Block:
+    def draw(pdf: Ink, y: float) -> None:
         pdf.set_font("helvetica", "B", 9)
         pdf.set_text_color(*NAVY)
         pdf.text(pdf.l_margin, y + 3.6, latin(text.upper()))
@@ -49,11 +49,11 @@ def _heading(pdf: FPDF, width: float, text: str) -> Block:
     return Block(6.6, draw, keep_with_next=True, gap_before=3.0)
 
 
-def _fact(pdf: FPDF, width: float, label: str, value: str) -> Block:
+def _fact(pdf: Ink, width: float, label: str, value: str) -> Block:
     pdf.set_font("helvetica", "", BODY_PT)
     lines = wrap(pdf, value, width - LABEL_MM)
 
-    def draw(pdf: FPDF, y: float) -> None:
+    def draw(pdf: Ink, y: float) -> None:
         pdf.set_text_color(*GREY)
         pdf.set_font("helvetica", "B", BODY_PT - 0.5)
         pdf.text(pdf.l_margin, y + 2.9, latin(label))
@@ -65,13 +65,13 @@ def _fact(pdf: FPDF, width: float, label: str, value: str) -> Block:
     return Block(3.5 * len(lines) + 0.4, draw)
 
 
-def _note(pdf: FPDF, width: float, text: str, bullet: bool, size: float = BODY_PT - 0.8) -> Block:
+def _note(pdf: Ink, width: float, text: str, bullet: bool, size: float = BODY_PT - 0.8) -> Block:
     pdf.set_font("helvetica", "", size)
     indent = 3.0 if bullet else 0.0
     lines = wrap(pdf, text, width - indent)
     step = size * 0.44
 
-    def draw(pdf: FPDF, y: float) -> None:
+    def draw(pdf: Ink, y: float) -> None:
         pdf.set_font("helvetica", "", size)
         pdf.set_text_color(*(INK if bullet else GREY))
         if bullet:
@@ -82,20 +82,26 @@ def _note(pdf: FPDF, width: float, text: str, bullet: bool, size: float = BODY_P
     return Block(step * len(lines) + 0.6, draw)
 
 
-def _widths(pdf: FPDF, table: Table, size: float) -> list[float]:
+def _widths(pdf: Ink, table: Table, size: float) -> list[float]:
+    """Each column's width [mm]: its widest text plus padding (kept for the render)."""
+    return list(_column_widths(table, size, pdf.k))
+
+
+@lru_cache(maxsize=64)
+def _column_widths(table: Table, size: float, k: float) -> tuple[float, ...]:
+    def width(fontkey: str, pt: float, text: str) -> float:
+        return em_width(fontkey, latin(text)) * pt * 0.001 / k
+
     out = []
     for i, col in enumerate(table.columns):
-        pdf.set_font("helvetica", "B", size - 0.5)
-        head = pdf.get_string_width(latin(col.name))
-        pdf.set_font("helvetica", "", size - 1.0)
-        unit = pdf.get_string_width(latin(col.unit))
-        pdf.set_font("helvetica", "", size)
-        cells = max((pdf.get_string_width(latin(r[i])) for r in table.rows), default=0.0)
+        head = width("helveticaB", size - 0.5, col.name)
+        unit = width("helvetica", size - 1.0, col.unit)
+        cells = max((width("helvetica", size, r[i]) for r in table.rows), default=0.0)
         out.append(max(head, unit, cells) + 2 * PAD_MM)
-    return out
+    return tuple(out)
 
 
-def _fit(pdf: FPDF, table: Table, width: float) -> tuple[float, list[float]]:
+def _fit(pdf: Ink, table: Table, width: float) -> tuple[float, list[float]]:
     """Font size and column widths [mm]: the body size, smaller when many columns."""
     size = BODY_PT
     widths = _widths(pdf, table, size)
@@ -108,22 +114,22 @@ def _fit(pdf: FPDF, table: Table, width: float) -> tuple[float, list[float]]:
     return size, widths
 
 
-def _cell(pdf: FPDF, text: str, x: float, w: float, y: float, col: Column) -> None:
+def _cell(pdf: Ink, text: str, x: float, w: float, y: float, col: Column) -> None:
     text = latin(text)
     if col.text:
         pdf.text(x + PAD_MM, y, text)
     else:
-        pdf.text(x + w - PAD_MM - pdf.get_string_width(text), y, text)
+        pdf.text(x + w - PAD_MM - text_width(pdf, text), y, text)
 
 
-def _table_blocks(pdf: FPDF, width: float, table: Table) -> list[Block]:
+def _table_blocks(pdf: Ink, width: float, table: Table) -> list[Block]:
     size, widths = _fit(pdf, table, width)
     has_units = any(c.unit for c in table.columns)
     head_h = 4.2 + (2.9 if has_units else 0.0)
     row_h = ROW_MM * size / BODY_PT
     total = sum(widths)
 
-    def head(pdf: FPDF, y: float) -> None:
+    def head(pdf: Ink, y: float) -> None:
         x = pdf.l_margin
         for col, w in zip(table.columns, widths, strict=True):
             pdf.set_font("helvetica", "B", size - 0.5)
@@ -139,7 +145,7 @@ def _table_blocks(pdf: FPDF, width: float, table: Table) -> list[Block]:
         pdf.line(pdf.l_margin, y + head_h - 0.4, pdf.l_margin + total, y + head_h - 0.4)
 
     def row(cells: Sequence[str], last: bool) -> Block:
-        def draw(pdf: FPDF, y: float) -> None:
+        def draw(pdf: Ink, y: float) -> None:
             pdf.set_font("helvetica", "", size)
             pdf.set_text_color(*INK)
             x = pdf.l_margin
@@ -156,7 +162,7 @@ def _table_blocks(pdf: FPDF, width: float, table: Table) -> list[Block]:
     header = Block(head_h, head)
     title_h = 4.6
 
-    def titled(pdf: FPDF, y: float) -> None:
+    def titled(pdf: Ink, y: float) -> None:
         pdf.set_font("helvetica", "B", BODY_PT)
         pdf.set_text_color(*NAVY)
         pdf.text(pdf.l_margin, y + 3.2, latin(table.title))
@@ -177,7 +183,7 @@ def _table_blocks(pdf: FPDF, width: float, table: Table) -> list[Block]:
     return blocks
 
 
-def _side_by_side(pdf: FPDF, width: float, left: Table, right: Table) -> Block | None:
+def _side_by_side(pdf: Ink, width: float, left: Table, right: Table) -> Block | None:
     """Two short tables in one row when both fit at full size, else None."""
     if max(len(left.rows), len(right.rows)) > SIDE_BY_SIDE_ROWS:
         return None
@@ -191,7 +197,7 @@ def _side_by_side(pdf: FPDF, width: float, left: Table, right: Table) -> Block |
     parts = (_table_blocks(pdf, w_left, left), _table_blocks(pdf, w_right, right))
     heights = [sum(b.height for b in part) + sum(b.gap_before for b in part[1:]) for part in parts]
 
-    def draw(pdf: FPDF, y: float) -> None:
+    def draw(pdf: Ink, y: float) -> None:
         margin = pdf.l_margin
         for part, x in zip(parts, (margin, margin + w_left + GUTTER_MM), strict=True):
             pdf.set_left_margin(x)
@@ -205,7 +211,7 @@ def _side_by_side(pdf: FPDF, width: float, left: Table, right: Table) -> Block |
     return Block(max(heights), draw, gap_before=2.4)
 
 
-def section_blocks(pdf: FPDF, width: float, section: Section) -> list[Block]:
+def section_blocks(pdf: Ink, width: float, section: Section) -> list[Block]:
     """A section: its heading kept with what follows, facts, tables (two short ones side by
     side when they fit), notes."""
     blocks = [_heading(pdf, width, section.heading)]
@@ -229,13 +235,13 @@ def section_blocks(pdf: FPDF, width: float, section: Section) -> list[Block]:
     return blocks
 
 
-def key_figure_block(pdf: FPDF, width: float, figures: Sequence[KeyFigure]) -> Block:
+def key_figure_block(pdf: Ink, width: float, figures: Sequence[KeyFigure]) -> Block:
     """The figures a reader looks for first, set large in a row of boxes."""
     per_row = min(max(len(figures), 1), 4)
     rows = [figures[i : i + per_row] for i in range(0, len(figures), per_row)]
     box_w, box_h = width / per_row, 15.0
 
-    def draw(pdf: FPDF, y: float) -> None:
+    def draw(pdf: Ink, y: float) -> None:
         for r, row in enumerate(rows):
             top = y + r * (box_h + 1.5)
             for i, fig in enumerate(row):
@@ -249,7 +255,7 @@ def key_figure_block(pdf: FPDF, width: float, figures: Sequence[KeyFigure]) -> B
                 pdf.set_text_color(*NAVY)
                 value = latin(fig.value)
                 pdf.text(x + 2.6, top + 10.0, value)
-                shown = pdf.get_string_width(value)
+                shown = text_width(pdf, value)
                 pdf.set_font("helvetica", "", 8)
                 pdf.set_text_color(*INK)
                 pdf.text(x + 3.6 + shown, top + 10.0, latin(fig.unit))
@@ -262,7 +268,7 @@ def key_figure_block(pdf: FPDF, width: float, figures: Sequence[KeyFigure]) -> B
     return Block(len(rows) * (box_h + 1.5), draw, gap_before=2.0)
 
 
-def cautions_block(pdf: FPDF, width: float, cautions: Sequence[str]) -> Block:
+def cautions_block(pdf: Ink, width: float, cautions: Sequence[str]) -> Block:
     """Every caution in a ruled box, kept whole."""
     size = 7.0
     pdf.set_font("helvetica", "", size)
@@ -270,7 +276,7 @@ def cautions_block(pdf: FPDF, width: float, cautions: Sequence[str]) -> Block:
     step = size * 0.42
     height = 7.5 + step * sum(len(w) for w in wrapped) + 0.8 * len(wrapped)
 
-    def draw(pdf: FPDF, y: float) -> None:
+    def draw(pdf: Ink, y: float) -> None:
         pdf.set_draw_color(*NAVY)
         pdf.set_line_width(0.35)
         pdf.rect(pdf.l_margin, y, width, height - 1.0)

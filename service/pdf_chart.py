@@ -13,11 +13,12 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from fpdf import FPDF
 from matplotlib.ticker import MaxNLocator
 
 from service.chart_data import RunChart, TractiveForceChart
 from service.charts import ENVELOPE, INKS
+from service.pdf_ink import Ink
+from service.pdf_layout import text_width
 
 __all__ = ["Box", "draw_pdf_chart"]
 
@@ -68,7 +69,7 @@ def _tick_text(value: float) -> str:
     return f"{value:.0f}" if abs(value - round(value)) < 1e-9 else f"{value:g}"
 
 
-def _frame(pdf: FPDF, ax: _Axes, xlabel: str, ylabel: str) -> None:
+def _frame(pdf: Ink, ax: _Axes, xlabel: str, ylabel: str) -> None:
     box = ax.box
     pdf.set_font("helvetica", "", 7)
     pdf.set_dash_pattern()
@@ -85,24 +86,24 @@ def _frame(pdf: FPDF, ax: _Axes, xlabel: str, ylabel: str) -> None:
         pdf.line(box.x - 1.2, y, box.x, y)
         text = _tick_text(value)
         pdf.set_text_color(58, 58, 58)
-        pdf.text(box.x - 1.8 - pdf.get_string_width(text), y + 0.9, text)
+        pdf.text(box.x - 1.8 - text_width(pdf, text), y + 0.9, text)
     for value in _ticks(ax.xmax, 7):
         x = float(ax.x(value))
         pdf.line(x, box.y + box.h, x, box.y + box.h + 1.2)
         text = _tick_text(value)
-        pdf.text(x - pdf.get_string_width(text) / 2, box.y + box.h + 4.0, text)
+        pdf.text(x - text_width(pdf, text) / 2, box.y + box.h + 4.0, text)
     pdf.set_draw_color(58, 58, 58)
     pdf.set_line_width(0.28)
     pdf.line(box.x, box.y, box.x, box.y + box.h)
     pdf.line(box.x, box.y + box.h, box.x + box.w, box.y + box.h)
     pdf.set_font("helvetica", "", 7.5)
     pdf.set_text_color(30, 30, 30)
-    pdf.text(box.x + box.w / 2 - pdf.get_string_width(xlabel) / 2, box.y + box.h + 8.0, xlabel)
+    pdf.text(box.x + box.w / 2 - text_width(pdf, xlabel) / 2, box.y + box.h + 8.0, xlabel)
     with pdf.rotation(90, box.x - 11.0, box.y + box.h / 2):
-        pdf.text(box.x - 11.0 - pdf.get_string_width(ylabel) / 2, box.y + box.h / 2, ylabel)
+        pdf.text(box.x - 11.0 - text_width(pdf, ylabel) / 2, box.y + box.h / 2, ylabel)
 
 
-def _marker(pdf: FPDF, x: float, y: float, gear: int, size: float = 0.75) -> None:
+def _marker(pdf: Ink, x: float, y: float, gear: int, size: float = 0.75) -> None:
     i = (gear - 1) % len(_MARKER_SIDES)
     sides, turn = _MARKER_SIDES[i], np.radians(_MARKER_TURN[i])
     angles = turn + np.linspace(0.0, 2 * np.pi, sides, endpoint=False)
@@ -111,9 +112,7 @@ def _marker(pdf: FPDF, x: float, y: float, gear: int, size: float = 0.75) -> Non
     pdf.polygon(pts, style="DF")
 
 
-def _gear_line(
-    pdf: FPDF, ax: _Axes, gear: int, xs: np.ndarray, ys: np.ndarray, start: int
-) -> None:
+def _gear_line(pdf: Ink, ax: _Axes, gear: int, xs: np.ndarray, ys: np.ndarray, start: int) -> None:
     i = gear - 1
     ink = _rgb(INKS[i % len(INKS)])
     pdf.set_draw_color(*ink)
@@ -130,7 +129,7 @@ def _gear_line(
         _marker(pdf, px, py, gear)
 
 
-def _gear_label(pdf: FPDF, x: float, y: float, gear: int) -> None:
+def _gear_label(pdf: Ink, x: float, y: float, gear: int) -> None:
     ink = _rgb(INKS[(gear - 1) % len(INKS)])
     pdf.set_draw_color(*ink)
     pdf.set_fill_color(255, 255, 255)
@@ -143,11 +142,11 @@ def _gear_label(pdf: FPDF, x: float, y: float, gear: int) -> None:
     pdf.set_font("helvetica", "B", 6.5)
     pdf.set_text_color(*ink)
     text = str(gear)
-    pdf.text(x - pdf.get_string_width(text) / 2, y + 0.8, text)
+    pdf.text(x - text_width(pdf, text) / 2, y + 0.8, text)
 
 
 def _drops(
-    pdf: FPDF,
+    pdf: Ink,
     ax: _Axes,
     points: tuple[Sequence[float], Sequence[float]],
     labels: Sequence[str],
@@ -168,11 +167,11 @@ def _drops(
     for x, text in zip(xs, labels, strict=True):
         px = float(ax.x(x)) - 0.6
         with pdf.rotation(90, px, base - 0.8):
-            pdf.rect(px - 0.3, base - 3.0, pdf.get_string_width(text) + 0.6, 2.6, style="F")
+            pdf.rect(px - 0.3, base - 3.0, text_width(pdf, text) + 0.6, 2.6, style="F")
             pdf.text(px, base - 0.8, text)
 
 
-def _diamonds(pdf: FPDF, ax: _Axes, xs: Sequence[float], ys: Sequence[float]) -> None:
+def _diamonds(pdf: Ink, ax: _Axes, xs: Sequence[float], ys: Sequence[float]) -> None:
     pdf.set_draw_color(255, 255, 255)
     pdf.set_fill_color(17, 17, 17)
     pdf.set_line_width(0.2)
@@ -191,19 +190,19 @@ def _envelope(chart: TractiveForceChart, top_speed: float) -> tuple[np.ndarray, 
     return grid, np.where(np.isfinite(best), np.maximum(best, 0.0), 0.0)
 
 
-def _note(pdf: FPDF, box: Box, text: str) -> None:
+def _note(pdf: Ink, box: Box, text: str) -> None:
     pdf.set_font("helvetica", "", 6.2)
     pdf.set_text_color(85, 85, 85)
-    pdf.text(box.x + box.w - pdf.get_string_width(text), box.y + 2.0, text)
+    pdf.text(box.x + box.w - text_width(pdf, text), box.y + 2.0, text)
 
 
-def _italic(pdf: FPDF, x: float, y: float, text: str, right: bool = True) -> None:
+def _italic(pdf: Ink, x: float, y: float, text: str, right: bool = True) -> None:
     pdf.set_font("helvetica", "I", 6.5)
     pdf.set_text_color(80, 80, 80)
-    pdf.text(x - (pdf.get_string_width(text) if right else 0.0), y, text)
+    pdf.text(x - (text_width(pdf, text) if right else 0.0), y, text)
 
 
-def _tractive_force(pdf: FPDF, box: Box, chart: TractiveForceChart) -> None:
+def _tractive_force(pdf: Ink, box: Box, chart: TractiveForceChart) -> None:
     top_speed = max(max(float(g.speed[-1]) for g in chart.gears), 1e-3)
     top_force = max(max(float(g.force.max()) for g in chart.gears), 1e-3)
     grip = chart.traction_limit
@@ -244,7 +243,7 @@ def _tractive_force(pdf: FPDF, box: Box, chart: TractiveForceChart) -> None:
     _note(pdf, box, "circled number: gear; diamond: shift point")
 
 
-def _run(pdf: FPDF, box: Box, chart: RunChart) -> None:
+def _run(pdf: Ink, box: Box, chart: RunChart) -> None:
     top_time = max(max(float(s.time[-1]) for s in chart.segments), 1e-3)
     top_speed = max(max(float(s.speed.max()) for s in chart.segments), 1e-3)
     ax = _Axes(box, top_time * 1.03, top_speed * 1.12)
@@ -267,7 +266,7 @@ def _run(pdf: FPDF, box: Box, chart: RunChart) -> None:
         _gear_label(pdf, x, y, seg.gear)
 
 
-def draw_pdf_chart(pdf: FPDF, box: Box, chart: TractiveForceChart | RunChart) -> None:
+def draw_pdf_chart(pdf: Ink, box: Box, chart: TractiveForceChart | RunChart) -> None:
     """Draw the chart's plot (axes, curves, marks) inside ``box`` on the current page."""
     if isinstance(chart, TractiveForceChart):
         _tractive_force(pdf, box, chart)

@@ -11,10 +11,13 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from functools import lru_cache
 
-from fpdf import FPDF
+from fpdf.fonts import CORE_FONTS_CHARWIDTHS
 
-__all__ = ["Block", "Placed", "flow", "latin", "wrap"]
+from service.pdf_ink import Ink
+
+__all__ = ["Block", "Placed", "em_width", "flow", "latin", "text_width", "wrap"]
 
 
 @dataclass
@@ -22,7 +25,7 @@ class Block:
     """A piece of a sheet: its height [mm] and how to draw it with its top at ``y``."""
 
     height: float
-    draw: Callable[[FPDF, float], None]
+    draw: Callable[[Ink, float], None]
     keep_with_next: bool = False
     repeat: Block | None = None  # drawn above this block when it starts a page
     gap_before: float = 0.0  # dropped at the top of a page
@@ -39,6 +42,7 @@ class Placed:
     with_repeat: bool
 
 
+@lru_cache(maxsize=16384)
 def latin(text: str) -> str:
     """Text the PDF standard fonts can show (Latin-1), anything else as ``?``.
 
@@ -48,13 +52,25 @@ def latin(text: str) -> str:
     return text.encode("latin-1", "replace").decode("latin-1")
 
 
-def wrap(pdf: FPDF, text: str, width: float) -> list[str]:
+@lru_cache(maxsize=8192)
+def em_width(fontkey: str, text: str) -> int:
+    """Advance width of ``text`` in thousandths of an em, from the standard font metrics."""
+    widths = CORE_FONTS_CHARWIDTHS[fontkey]
+    return sum(widths.get(ch, 500) for ch in text)
+
+
+def text_width(pdf: Ink, text: str) -> float:
+    """Width [mm] of ``text`` in the current standard font: the font's metrics, summed."""
+    return em_width(pdf.fontkey, text) * pdf.font_size_pt * 0.001 / pdf.k
+
+
+def wrap(pdf: Ink, text: str, width: float) -> list[str]:
     """Words of ``text`` in lines no wider than ``width`` [mm] in the current font."""
     lines: list[str] = []
     line = ""
     for word in latin(text).split():
         trial = f"{line} {word}" if line else word
-        if line and pdf.get_string_width(trial) > width:
+        if line and text_width(pdf, trial) > width:
             lines.append(line)
             line = word
         else:

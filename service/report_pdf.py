@@ -30,7 +30,8 @@ from service.pdf_blocks import (
     section_blocks,
 )
 from service.pdf_chart import Box, draw_pdf_chart
-from service.pdf_layout import Block, Placed, flow, latin, wrap
+from service.pdf_ink import Ink
+from service.pdf_layout import Block, Placed, flow, latin, text_width, wrap
 from service.report_model import Report
 
 __all__ = ["PAPERS", "paper_for", "render_pdf"]
@@ -52,11 +53,11 @@ def paper_for(setting: str, units: str) -> str:
     return "letter" if units == "us" else "a4"
 
 
-def _letterhead(pdf: FPDF, head: Letterhead, width: float) -> float:
+def _letterhead(pdf: Ink, head: Letterhead, width: float) -> float:
     """The letterhead at the top of page 1; returns its height [mm]."""
     x, y = pdf.l_margin, TOP_MM
     if head.logo:
-        pdf.image(
+        pdf.pdf.image(
             io.BytesIO(head.logo), x=x + width - 40.0, y=y, w=40.0, h=14.0, keep_aspect_ratio=True
         )
     if head.neutral:
@@ -83,7 +84,7 @@ def _letterhead(pdf: FPDF, head: Letterhead, width: float) -> float:
     return height + 2.0
 
 
-def _title(pdf: FPDF, report: Report, width: float, y: float) -> float:
+def _title(pdf: Ink, report: Report, width: float, y: float) -> float:
     x = pdf.l_margin
     pdf.set_font("helvetica", "B", 17)
     pdf.set_text_color(*NAVY)
@@ -91,11 +92,11 @@ def _title(pdf: FPDF, report: Report, width: float, y: float) -> float:
     if report.reference:
         pdf.set_font("helvetica", "", 6.5)
         pdf.set_text_color(*GREY)
-        pdf.text(x + width - pdf.get_string_width("REFERENCE"), y + 2.6, "REFERENCE")
+        pdf.text(x + width - text_width(pdf, "REFERENCE"), y + 2.6, "REFERENCE")
         pdf.set_font("courier", "B", 11)
         pdf.set_text_color(*INK)
         ref = latin(report.reference)
-        pdf.text(x + width - pdf.get_string_width(ref), y + 7.0, ref)
+        pdf.text(x + width - text_width(pdf, ref), y + 7.0, ref)
     y += 10.0
     if report.job:
         pdf.set_fill_color(244, 241, 235)
@@ -107,7 +108,7 @@ def _title(pdf: FPDF, report: Report, width: float, y: float) -> float:
             pdf.set_font("helvetica", "B", 6.5)
             pdf.set_text_color(*GREY)
             pdf.text(cx, cy, latin(label.upper()))
-            shift = pdf.get_string_width(latin(label.upper())) + 1.6
+            shift = text_width(pdf, latin(label.upper())) + 1.6
             pdf.set_font("helvetica", "", 8)
             pdf.set_text_color(*INK)
             room = width / cols - shift - 4.0
@@ -129,7 +130,7 @@ def _title(pdf: FPDF, report: Report, width: float, y: float) -> float:
 
 
 def _chart_block(report: Report, chart: TractiveForceChart | RunChart, width: float) -> Block:
-    def draw(pdf: FPDF, y: float) -> None:
+    def draw(pdf: Ink, y: float) -> None:
         x = pdf.l_margin
         pdf.set_font("helvetica", "B", 9.5)
         pdf.set_text_color(*NAVY)
@@ -146,7 +147,7 @@ def _chart_block(report: Report, chart: TractiveForceChart | RunChart, width: fl
 
 
 def _blocks(
-    pdf: FPDF, report: Report, chart: TractiveForceChart | RunChart | None, width: float
+    pdf: Ink, report: Report, chart: TractiveForceChart | RunChart | None, width: float
 ) -> list[Block]:
     blocks: list[Block] = []
     if report.key_figures:
@@ -165,29 +166,29 @@ def _blocks(
     return blocks
 
 
-def _running_head(pdf: FPDF, report: Report, head: Letterhead, width: float) -> None:
+def _running_head(pdf: Ink, report: Report, head: Letterhead, width: float) -> None:
     pdf.set_font("helvetica", "B", 7)
     pdf.set_text_color(*NAVY)
     name = "GEARWORK" if head.neutral else head.name
     pdf.text(pdf.l_margin, TOP_MM + 3.0, latin(f"{name}  |  {report.kind}"))
     if report.reference:
         ref = latin(f"ref {report.reference}")
-        pdf.text(pdf.l_margin + width - pdf.get_string_width(ref), TOP_MM + 3.0, ref)
+        pdf.text(pdf.l_margin + width - text_width(pdf, ref), TOP_MM + 3.0, ref)
     pdf.set_draw_color(*NAVY)
     pdf.set_line_width(0.3)
     pdf.line(pdf.l_margin, TOP_MM + 4.6, pdf.l_margin + width, TOP_MM + 4.6)
 
 
-def _footer(pdf: FPDF, report: Report, number: int, count: int, width: float) -> None:
+def _footer(pdf: Ink, report: Report, number: int, count: int, width: float) -> None:
     y = pdf.h - BOTTOM_MM + 6.0
     pdf.set_font("helvetica", "", 6.5)
     pdf.set_text_color(*GREY)
     pdf.text(pdf.l_margin, y, latin(f"{report.kind}  |  page {number} of {count}"))
     note = "Calculated from the data supplied, not measured."
-    pdf.text(pdf.l_margin + width - pdf.get_string_width(note), y, note)
+    pdf.text(pdf.l_margin + width - text_width(pdf, note), y, note)
 
 
-def _draw(pdf: FPDF, placed: Placed) -> None:
+def _draw(pdf: Ink, placed: Placed) -> None:
     y = placed.y
     repeat = placed.block.repeat
     if placed.with_repeat and repeat is not None:
@@ -214,14 +215,17 @@ def render_pdf(
     pdf.set_producer("gearwork")
     width = page_w - 2 * SIDE_MM
     pdf.add_page()
-    top = TOP_MM + _letterhead(pdf, head, width)
-    first_top = _title(pdf, report, width, top)
-    pages = flow(_blocks(pdf, report, chart, width), first_top, TOP_MM + 7.0, page_h - BOTTOM_MM)
+    ink = Ink(pdf)
+    top = TOP_MM + _letterhead(ink, head, width)
+    first_top = _title(ink, report, width, top)
+    pages = flow(_blocks(ink, report, chart, width), first_top, TOP_MM + 7.0, page_h - BOTTOM_MM)
     for number, page in enumerate(pages, start=1):
         if number > 1:
+            ink.flush()
             pdf.add_page()
-            _running_head(pdf, report, head, width)
+            _running_head(ink, report, head, width)
         for placed in page:
-            _draw(pdf, placed)
-        _footer(pdf, report, number, len(pages), width)
+            _draw(ink, placed)
+        _footer(ink, report, number, len(pages), width)
+    ink.flush()
     return bytes(pdf.output())
