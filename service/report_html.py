@@ -71,7 +71,8 @@ dl.job dd { margin: 0; }
 .key-figures div { background: #f4f1eb; padding: 1.4mm 2.4mm; }
 .key-figures .label { font-size: 7pt; letter-spacing: .06em; text-transform: uppercase;
   color: #555; font-weight: 700; }
-.key-figures .value { font-size: 17pt; font-weight: 700; color: #14213d; line-height: 1.15;
+.key-figures .value { font-size: 15pt; font-weight: 700; color: #14213d; line-height: 1.15;
+  white-space: nowrap;
   font-variant-numeric: tabular-nums; }
 .key-figures .unit { font-size: 9pt; font-weight: 400; color: #161616; margin-left: .8mm; }
 .key-figures .note { font-size: 7pt; color: #555; }

@@ -196,8 +196,10 @@ def _key_figures(doc: dict[str, Any], lab: dict[str, str]) -> tuple[KeyFigure, .
         low, high = min(rpms), max(rpms)
         value = fmt(low) if round(low) == round(high) else f"{fmt(low)}-{fmt(high)}"
         figures.append(KeyFigure("Shift at", value, "rpm", f"{len(shifts)} shifts"))
-        drops = [s["rpm_drop"] for s in shifts]
-        figures.append(KeyFigure("Lands", f"{fmt(min(drops))}-{fmt(max(drops))}", "rpm lower"))
+        drops = [s["rpm_drop"] for s in shifts if s["rpm_drop"] is not None]
+        if drops:
+            span = f"{fmt(min(drops))}-{fmt(max(drops))}"
+            figures.append(KeyFigure("Lands", span, "rpm lower"))
     figures.append(
         KeyFigure(
             "Peak power",
