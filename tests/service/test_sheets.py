@@ -312,3 +312,20 @@ def test_logo_is_drawn_once_per_page(shop: Letterhead, tmp_path: Path) -> None:
     outcome = compute_shift_plan(ShiftPlanRequest.model_validate(load_demo("demo_coupe_us")))
     pdf = render_pdf(shift_plan_report(outcome), None, "a4", shop)
     assert pdf.count(b"/Subtype /Image") == 1
+
+
+@needs_poppler
+def test_paper_setting_overrides_the_units(
+    api: ApiClient, monkeypatch: pytest.MonkeyPatch, tmp_path: Path
+) -> None:
+    monkeypatch.setenv("GEARWORK_SHEET_PAPER", "a4")
+    get_settings.cache_clear()
+    try:
+        pdf = _sheet(api, "shift-plan", "pdf", reference="PAPER-A4")  # a US request
+    finally:
+        monkeypatch.undo()
+        get_settings.cache_clear()
+    source = tmp_path / "plan.pdf"
+    source.write_bytes(pdf)
+    info = subprocess.run(["pdfinfo", str(source)], capture_output=True, text=True, check=True)
+    assert "595.28 x 841.89 pts (A4)" in info.stdout and "Pages:           1" in info.stdout
