@@ -28,7 +28,8 @@ test: lint  ## lint, type-check and run the whole test suite (installs Chromium 
 
 fuzz: $(STAMP)  ## long schemathesis run over every endpoint
 	GEARWORK_FUZZ_EXAMPLES=$${EXAMPLES:-2000} $(BIN)/python -m pytest -p no:cacheprovider \
-		tests/service/test_schema_fuzz.py tests/core/test_properties.py
+		tests/service/test_schema_fuzz.py tests/core/test_properties.py \
+		tests/core/test_converter_drive.py
 
 bench: $(STAMP)  ## benchmarks: core timings and served throughput against /healthz
 	command -v wrk >/dev/null || (apt-get update -qq && apt-get install -y -qq wrk)
@@ -37,6 +38,7 @@ bench: $(STAMP)  ## benchmarks: core timings and served throughput against /heal
 	$(BIN)/python -m bench.charts
 	$(BIN)/python -m bench.sheets
 	$(BIN)/python -m bench.log_analysis
+	$(BIN)/python -m bench.imports
 	$(BIN)/python -m bench.shift_plan
 	$(BIN)/python -m bench.worst_case
 	$(BIN)/python -m bench.load

@@ -48,6 +48,11 @@ from core.chassis import (
 from core.converter import (
     TorqueConverter,
 )
+from core.converter_drive import (
+    ConverterDrive,
+    ConverterInput,
+    converter_input,
+)
 from core.converter_matching import (
     ConverterOperatingPoints,
     EngineTorqueFn,
@@ -96,6 +101,13 @@ from core.gearing import (
     gear_tables,
     road_speed_m_s,
     rpm_grid,
+)
+from core.gradeability import (
+    MAX_GRADE_ANGLE_DEG,
+    Gradeability,
+    GradeLimit,
+    gradeability,
+    steepest_grade_rad,
 )
 from core.inertia import (
     equivalent_mass_kg,
@@ -156,7 +168,9 @@ from core.performance import (
     acceleration_shift_points,
     acceleration_shifts,
     cruise_rpm,
+    engine_rpm_at,
     gradeability_by_gear,
+    model_converter,
     optimal_shift_rpm,
     planned_shift_rpm,
     top_speed,
@@ -190,6 +204,10 @@ from core.shifting import (
     ShiftReason,
     VectorEfforts,
     best_shifts,
+)
+from core.shiftsearch import (
+    SEARCH_WON,
+    search_shift_rpm,
 )
 from core.simulate import (
     DriveModel,
@@ -251,6 +269,7 @@ from core.traction import (
     AxleLoads,
     DriveLayout,
     axle_loads,
+    grip_limit_n,
     traction_limit_n,
 )
 from core.vehicle import (
@@ -261,6 +280,8 @@ from core.vehicle import (
 )
 
 __all__ = [
+    "MAX_GRADE_ANGLE_DEG",
+    "SEARCH_WON",
     "AccelerationUnit",
     "AirState",
     "AxleGeometry",
@@ -270,6 +291,8 @@ __all__ = [
     "BatchTimedSpeed",
     "BatchTopSpeed",
     "ChassisConversion",
+    "ConverterDrive",
+    "ConverterInput",
     "ConverterOperatingPoints",
     "Correction",
     "CorrectionError",
@@ -294,6 +317,8 @@ __all__ = [
     "GearSource",
     "GearTable",
     "GearworkError",
+    "GradeLimit",
+    "Gradeability",
     "Interpolation",
     "LandingAnalysis",
     "LandingBand",
@@ -370,6 +395,7 @@ __all__ = [
     "checked_sweep",
     "checked_sweep_shift_rpm",
     "continuous_optimum",
+    "converter_input",
     "converter_operating_points",
     "correction_factor",
     "correction_factors",
@@ -379,18 +405,22 @@ __all__ = [
     "driven_gear_change",
     "efficiency_from_loss",
     "engine_from_wheel",
+    "engine_rpm_at",
     "engine_rpm_at_speed",
     "equivalent_mass_kg",
     "final_drive_range",
     "gear_tables",
     "geometric_gear_set",
+    "gradeability",
     "gradeability_by_gear",
     "gradeability_percent",
+    "grip_limit_n",
     "landing_analysis",
     "make_drivetrain",
     "mass_factor",
     "max_progression_factor",
     "measure_shift",
+    "model_converter",
     "objective_at",
     "odometer_readings",
     "optimal_shift_rpm",
@@ -411,6 +441,7 @@ __all__ = [
     "run_report",
     "sample_trace",
     "saturation_vapour_pressure_pa",
+    "search_shift_rpm",
     "setup_figures",
     "shift_landings",
     "shift_plan",
@@ -422,6 +453,7 @@ __all__ = [
     "stall_speed_rpm",
     "standard_pressure_pa",
     "station_pressure_from_altimeter_pa",
+    "steepest_grade_rad",
     "sweep_final_drives",
     "take_rows",
     "time_at_distance",

@@ -21,7 +21,11 @@ from core.errors import CurveError
 
 __all__ = [
     "MAX_CURVE_POINTS",
+    "MAX_TORQUE_NM",
     "MIN_CURVE_POINTS",
+    "MIN_PEAK_TORQUE_NM",
+    "MIN_RPM",
+    "MIN_RPM_STEP",
     "CurveSource",
     "Interpolation",
     "TorqueCurve",
@@ -32,6 +36,16 @@ __all__ = [
 
 MIN_CURVE_POINTS = 3
 MAX_CURVE_POINTS = 2000
+MIN_RPM = 100.0
+"""Lowest engine speed a curve point may have [rpm]: no running engine is measured slower
+(idle is several hundred rpm; common practice)."""
+MIN_RPM_STEP = 0.1
+"""Smallest spacing of a curve's points [rpm]; closer points are a misread file."""
+MAX_TORQUE_NM = 100_000.0
+"""Largest torque a curve point may have [N*m], far above any road vehicle's engine."""
+MIN_PEAK_TORQUE_NM = 0.1
+"""Least peak torque of a curve [N*m]: below it no vehicle is driven (a small engine has
+several N*m)."""
 RPM_TO_RAD_S = 2.0 * math.pi / 60.0
 
 FloatArray = NDArray[np.float64]
@@ -82,6 +96,7 @@ class TorqueCurve:
     def __post_init__(self) -> None:
         rpm = _validated_rpm(self.rpm)
         torque = _validated_values(self.torque_nm, "torque_nm", rpm.size)
+        _check_torque_range(torque)
         object.__setattr__(self, "rpm", rpm)
         object.__setattr__(self, "torque_nm", torque)
         if self.interpolation is Interpolation.PCHIP:
@@ -262,10 +277,20 @@ def _validated_rpm(rpm: ArrayLike) -> FloatArray:
             f"`rpm` must have at most {MAX_CURVE_POINTS} points, got {arr.size}",
             parameter="rpm",
         )
-    bad = np.flatnonzero(~np.isfinite(arr) | (arr <= 0.0))
+    bad = np.flatnonzero(~np.isfinite(arr) | (arr < MIN_RPM))
     if bad.size:
         i = int(bad[0])
-        raise CurveError(f"`rpm[{i}]` must be finite and > 0, got {arr[i]}", parameter=f"rpm[{i}]")
+        raise CurveError(
+            f"`rpm[{i}]` must be finite and >= {MIN_RPM:g}, got {arr[i]}", parameter=f"rpm[{i}]"
+        )
+    close = np.flatnonzero((np.diff(arr) > 0.0) & (np.diff(arr) < MIN_RPM_STEP))
+    if close.size:
+        i = int(close[0]) + 1
+        raise CurveError(
+            f"`rpm[{i}]` must lie at least {MIN_RPM_STEP:g} rpm above rpm[{i - 1}] = "
+            f"{arr[i - 1]:g}, got {arr[i]:g}",
+            parameter=f"rpm[{i}]",
+        )
     steps = np.flatnonzero(np.diff(arr) <= 0.0)
     if steps.size:
         i = int(steps[0]) + 1
@@ -293,6 +318,24 @@ def _validated_values(values: ArrayLike, name: str, size: int) -> FloatArray:
     if not np.any(arr > 0.0):
         raise CurveError(f"`{name}` must have at least one value > 0", parameter=name)
     return arr
+
+
+def _check_torque_range(torque: FloatArray) -> None:
+    """Torque within physical limits: no point above ``MAX_TORQUE_NM``, peak at least
+    ``MIN_PEAK_TORQUE_NM``."""
+    high = np.flatnonzero(torque > MAX_TORQUE_NM)
+    if high.size:
+        i = int(high[0])
+        raise CurveError(
+            f"`torque_nm[{i}]` must be at most {MAX_TORQUE_NM:g} N*m, got {torque[i]:g}",
+            parameter=f"torque_nm[{i}]",
+        )
+    if float(torque.max()) < MIN_PEAK_TORQUE_NM:
+        raise CurveError(
+            f"`torque_nm` must peak at {MIN_PEAK_TORQUE_NM:g} N*m or more, got "
+            f"{float(torque.max()):g}",
+            parameter="torque_nm",
+        )
 
 
 def torque_curve_from_torque(

@@ -8,6 +8,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.converter_drive import ConverterDrive, converter_input
 from core.curves import RPM_TO_RAD_S, TorqueCurve
 from core.drivetrain import Drivetrain
 from core.errors import CurveError
@@ -103,6 +104,11 @@ class GearTable:
         Force at the tire contact patch [N].
     wheel_power_w : ndarray, shape (n,)
         Power delivered at the wheels [W].
+    engine_rpm : ndarray, shape (n,), or None
+        With a torque converter: engine speed at each row, whose ``rpm`` is then the
+        gearbox input (turbine) speed [rpm]; None without one.
+    torque_ratio : ndarray, shape (n,), or None
+        With a torque converter: its torque ratio at the speed ratio it runs at [-].
     """
 
     gear: int
@@ -116,6 +122,8 @@ class GearTable:
     wheel_torque_nm: FloatArray
     tractive_force_n: FloatArray
     wheel_power_w: FloatArray
+    engine_rpm: FloatArray | None = None
+    torque_ratio: FloatArray | None = None
 
 
 def rpm_grid(curve: TorqueCurve, rev_limit_rpm: float, rpm_step: float | None) -> FloatArray:
@@ -163,8 +171,13 @@ def gear_tables(
     tire: Tire,
     rpm: FloatArray,
     efficiency: FloatArray,
+    converter: ConverterDrive | None = None,
 ) -> tuple[GearTable, ...]:
     """Force tables for every gear on one engine-speed grid, computed together.
+
+    With a torque converter the rows are gearbox input (turbine) speeds and the wheel
+    columns count the converter's torque ratio at the speed ratio it runs at
+    (:func:`core.converter_drive.converter_input`).
 
     Parameters
     ----------
@@ -178,6 +191,8 @@ def gear_tables(
         Engine speeds of the rows [rpm]; the last is the rev limit.
     efficiency : ndarray, shape (g,)
         Driveline efficiency applied per gear (ones for a chassis curve).
+    converter : ConverterDrive, optional
+        The torque converter and its lock-up gears, if the drivetrain has one.
 
     Returns
     -------
@@ -189,6 +204,8 @@ def gear_tables(
     power = torque * rpm * RPM_TO_RAD_S
     wheel_torque = np.outer(ratios * efficiency, torque)
     speed = np.outer(1.0 / ratios, rpm * RPM_TO_RAD_S * r)
+    if converter is not None:
+        return _converter_tables(curve, ratios, r, rpm, efficiency, converter)
     tables = []
     for i in range(ratios.size):
         tables.append(
@@ -204,6 +221,41 @@ def gear_tables(
                 wheel_torque_nm=wheel_torque[i],
                 tractive_force_n=wheel_torque[i] / r,
                 wheel_power_w=power * efficiency[i],
+            )
+        )
+    return tuple(tables)
+
+
+def _converter_tables(
+    curve: TorqueCurve,
+    ratios: FloatArray,
+    r: float,
+    rpm: FloatArray,
+    efficiency: FloatArray,
+    converter: ConverterDrive,
+) -> tuple[GearTable, ...]:
+    torque = curve.torque_at(rpm)
+    power = torque * rpm * RPM_TO_RAD_S
+    tables = []
+    for i in range(ratios.size):
+        inp = converter_input(converter, curve, float(rpm[-1]), i, rpm)
+        speed = rpm * RPM_TO_RAD_S * r / ratios[i]
+        wheel_torque = inp.torque_nm * ratios[i] * efficiency[i]
+        tables.append(
+            GearTable(
+                gear=i + 1,
+                overall_ratio=float(ratios[i]),
+                efficiency=float(efficiency[i]),
+                max_speed_m_s=float(speed[-1]),
+                rpm=rpm,
+                speed_m_s=speed,
+                engine_torque_nm=torque,
+                engine_power_w=power,
+                wheel_torque_nm=wheel_torque,
+                tractive_force_n=wheel_torque / r,
+                wheel_power_w=wheel_torque / r * speed,
+                engine_rpm=inp.engine_rpm,
+                torque_ratio=inp.torque_ratio,
             )
         )
     return tuple(tables)

@@ -63,6 +63,12 @@ class LoggedShift:
         Shift speed over target speed, less 1 [-].
     verdict : ShiftVerdict
     basis : VerdictBasis
+    logged_rpm : tuple of float or None
+        Lowest and highest engine speed logged in the gear being left, up to the shift
+        (from speed, as ``crossover_rpm``) [rpm]; None for a downshift.
+    crossover_extrapolated : bool
+        Whether the crossover lies outside ``logged_rpm``: the fit was extrapolated to rpm
+        the log never reached in that gear, so the crossover is an estimate.
     """
 
     from_gear: int
@@ -82,6 +88,8 @@ class LoggedShift:
     deviation: float | None
     verdict: ShiftVerdict
     basis: VerdictBasis
+    logged_rpm: tuple[float, float] | None = None
+    crossover_extrapolated: bool = False
 
     @property
     def duration_s(self) -> float:
@@ -160,7 +168,10 @@ def measure_shift(
     target: float | None = None
     deviation: float | None = None
     result, basis = ShiftVerdict.UNDETERMINED, VerdictBasis.DOWNSHIFT
+    logged: tuple[float, float] | None = None
     if b.gear > a.gear:
+        span = v[a.first : i_s + 1]
+        logged = (float(span.min()) * n_per_v_i, float(span.max()) * n_per_v_i)
         idx_i = np.arange(a.first + h + sig.settle, i_s - h + 1)
         idx_i = idx_i[v[idx_i] >= v_s * (1.0 - FIT_SPAN_BEFORE)]
         idx_j = np.arange(i_e + h + sig.settle, b.last - h + 1)
@@ -191,4 +202,15 @@ def measure_shift(
         deviation=deviation,
         verdict=result,
         basis=basis,
+        logged_rpm=logged,
+        crossover_extrapolated=_outside(cross_speed, logged, n_per_v_i),
     )
+
+
+def _outside(
+    speed: float | None, logged: tuple[float, float] | None, rpm_per_speed: float
+) -> bool:
+    if speed is None or logged is None:
+        return False
+    rpm = speed * rpm_per_speed
+    return not logged[0] * (1.0 - 1e-9) <= rpm <= logged[1] * (1.0 + 1e-9)

@@ -3,19 +3,20 @@ cruise rpm, gradeability, and shift rpms that minimise the time of a run."""
 
 from __future__ import annotations
 
+import dataclasses
 import enum
 import math
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.optimize import minimize
 
-from core.milestones import time_at_distance, time_at_speed
+from core.converter_drive import ConverterDrive
+from core.gradeability import gradeability
 from core.plan import ShiftPoint, shift_plan
-from core.roadload import gradeability_percent
-from core.shifting import ShiftChoice, best_shifts
-from core.simulate import DriveModel, RunResult, simulate_run
+from core.shifting import ShiftChoice, ShiftReason, best_shifts
+from core.shiftsearch import OptimalShifts, search_shift_rpm
+from core.simulate import DriveModel
 
 __all__ = [
     "OptimalShifts",
@@ -41,6 +42,9 @@ def acceleration_shifts(model: DriveModel) -> tuple[ShiftChoice, ...]:
     gear's effort its net acceleration ``(min(F, F_traction) - R(v)) / m_g``. The heavier
     equivalent mass of the lower gear moves the shift below the force crossover. Crossings
     are located on the 513-point scan by linear interpolation within the bracketing cell.
+    The search runs in gearbox input speed (proportional to road speed); each shift rpm is
+    returned as the engine speed there, which a slipping converter raises. Where both gears
+    are held at the traction limit at the shift, its reason is ``TRACTION_LIMIT``.
 
     Parameters
     ----------
@@ -51,6 +55,11 @@ def acceleration_shifts(model: DriveModel) -> tuple[ShiftChoice, ...]:
     -------
     tuple of ShiftChoice, length g - 1
     """
+    return tuple(choice for choice, _ in _acceleration_choices(model))
+
+
+def _acceleration_choices(model: DriveModel) -> list[tuple[ShiftChoice, float]]:
+    """The net-acceleration shifts and the gearbox input rpm of each."""
     ratios = model.drivetrain.overall_ratios
     step = ratios[1:] / ratios[:-1]
     r_factor = model.tire.rolling_radius_m * (2.0 * math.pi / 60.0)
@@ -65,7 +74,30 @@ def acceleration_shifts(model: DriveModel) -> tuple[ShiftChoice, ...]:
         return cur, nxt
 
     low = model.curve.rpm_min / step
-    return best_shifts(efforts, None, low, np.full(step.size, model.rev_limit_rpm))
+    choices = best_shifts(efforts, None, low, np.full(step.size, model.rev_limit_rpm))
+    out = []
+    for k, choice in enumerate(choices):
+        turbine = choice.shift_rpm
+        v = np.array([turbine * r_factor / ratios[k]])
+        reason = choice.reason
+        if reason is ShiftReason.CROSSOVER and all(
+            float(model.drive(g, v)[0][0]) > model.traction_limit_n for g in (k, k + 1)
+        ):
+            reason = ShiftReason.TRACTION_LIMIT
+        engine = dataclasses.replace(
+            choice,
+            shift_rpm=engine_rpm_at(model, k, turbine),
+            reason=reason,
+            overtake_rpm=tuple(engine_rpm_at(model, k, x) for x in choice.overtake_rpm),
+        )
+        out.append((engine, turbine))
+    return out
+
+
+def engine_rpm_at(model: DriveModel, gear: int, input_rpm: float) -> float:
+    """Engine speed [rpm] at a gearbox input speed in gear index ``gear``: the same with a
+    clutch, higher while a torque converter slips (the run shifts on engine speed)."""
+    return float(model.gearbox_input(gear, np.array([input_rpm]))[1][0])
 
 
 @dataclass(frozen=True)
@@ -143,43 +175,9 @@ def cruise_rpm(model: DriveModel, speed_m_s: float) -> FloatArray:
 def gradeability_by_gear(model: DriveModel) -> FloatArray:
     """Steepest grade [%] each gear can climb at a steady speed, shape (g,).
 
-    The most spare force over the gear's speed range, ``min(F, F_traction) - R_level(v)``
-    with ``R_level`` the road load less its grade term, against ``m*g*sin(theta)``.
+    The exact force balance with the grip on the slope; see :mod:`core.gradeability`.
     """
-    out = np.zeros(model.drivetrain.gear_count)
-    load = model.vehicle.road_load
-    for g in range(out.size):
-        v = np.linspace(
-            model.speed_at_rpm(g, model.curve.rpm_min),
-            model.speed_at_rpm(g, model.rev_limit_rpm),
-            _GRID,
-        )
-        force, _ = model.drive(g, v)
-        spare = np.minimum(force, model.traction_limit_n) - (load.force_n(v) - load.grade_force_n)
-        out[g] = float(gradeability_percent(float(spare.max()), model.vehicle.mass_kg))
-    return out
-
-
-@dataclass(frozen=True)
-class OptimalShifts:
-    """Shift rpms that minimise the time of a run.
-
-    Attributes
-    ----------
-    shift_rpm : ndarray, shape (g - 1,)
-        Best shift rpm per gear change [rpm].
-    time_s : float
-        Run time with them [s].
-    baseline_time_s : float
-        Run time with the starting shift rpms [s].
-    evaluations : int
-        Simulated runs spent.
-    """
-
-    shift_rpm: FloatArray
-    time_s: float
-    baseline_time_s: float
-    evaluations: int
+    return gradeability(model).grade_percent
 
 
 def optimal_shift_rpm(
@@ -191,9 +189,12 @@ def optimal_shift_rpm(
     finish_distance_m: float | None,
     finish_speed_m_s: float | None,
     max_evaluations: int = 120,
+    initial_name: str = "plan",
 ) -> OptimalShifts:
     """Shift rpms minimising the time to the finish, by ``scipy.optimize.minimize`` (Powell,
-    bounded) over full simulated runs, shift time and traction included.
+    bounded) over full simulated runs, shift time and traction included, seeded with the
+    caller's plan, the rev limit, the wheel-force crossover and the net-acceleration plan
+    (:func:`core.shiftsearch.search_shift_rpm`): never slower than any of them.
 
     Parameters
     ----------
@@ -206,67 +207,35 @@ def optimal_shift_rpm(
     finish_distance_m, finish_speed_m_s : float or None
         The finish: a distance from the clock start [m], or a speed [m/s].
     max_evaluations : int
-        Budget of simulated runs.
+        Budget of simulated runs, seeds included.
+    initial_name : str
+        Name reported for ``initial_rpm`` when it wins.
 
     Returns
     -------
     OptimalShifts
     """
-    ratios = model.drivetrain.overall_ratios
-    step = ratios[1:] / ratios[:-1]
-    limit = model.rev_limit_rpm
-    lower = np.minimum(
-        np.maximum(model.curve.rpm_min / step, model.curve.rpm_min + 1.0), limit - 1.0
+    seeds = [
+        (initial_name, np.asarray(initial_rpm, dtype=np.float64)),
+        ("rev_limit", np.full(model.drivetrain.gear_count - 1, model.rev_limit_rpm)),
+        (
+            ShiftCriterion.TRACTIVE_FORCE.value,
+            planned_shift_rpm(model, ShiftCriterion.TRACTIVE_FORCE),
+        ),
+        (
+            ShiftCriterion.NET_ACCELERATION.value,
+            planned_shift_rpm(model, ShiftCriterion.NET_ACCELERATION),
+        ),
+    ]
+    return search_shift_rpm(
+        model,
+        seeds,
+        start_speed_m_s=start_speed_m_s,
+        rollout_m=rollout_m,
+        finish_distance_m=finish_distance_m,
+        finish_speed_m_s=finish_speed_m_s,
+        max_evaluations=max_evaluations,
     )
-    cover = (finish_distance_m or 0.0) + rollout_m
-    evaluations = 0
-    x0 = np.clip(np.asarray(initial_rpm, dtype=np.float64), lower, limit)
-
-    def timed(rpm: FloatArray) -> tuple[float, RunResult]:
-        nonlocal evaluations
-        evaluations += 1
-        run = simulate_run(
-            model,
-            rpm,
-            start_speed_m_s=start_speed_m_s,
-            cover_distance_m=cover,
-            cover_speed_m_s=finish_speed_m_s or 0.0,
-        )
-        if finish_distance_m is not None:
-            t_end = time_at_distance(run, cover)
-            t_start = time_at_distance(run, rollout_m) or 0.0
-        else:
-            t_end = time_at_speed(run, float(finish_speed_m_s or 0.0))
-            t_start = 0.0
-        return (1e6 if t_end is None else t_end - t_start), run
-
-    baseline, first = timed(x0)
-    # only the shifts made before the finish can change its time
-    finish_at = baseline + (time_at_distance(first, rollout_m) or 0.0)
-    active = np.array(
-        [k for k, s in enumerate(first.shifts) if s.time_s < finish_at], dtype=np.int64
-    )
-    if active.size == 0:
-        return OptimalShifts(x0, baseline, baseline, evaluations)
-
-    def run_time(x: FloatArray) -> float:
-        rpm = x0.copy()
-        rpm[active] = np.clip(x, lower[active], limit)
-        return timed(rpm)[0]
-
-    res = minimize(
-        run_time,
-        x0[active],
-        method="Powell",
-        bounds=list(zip(lower[active].tolist(), [limit] * active.size, strict=True)),
-        options={"maxfev": max_evaluations, "xtol": 1e-3, "ftol": 1e-6},
-    )
-    best = x0.copy()
-    best[active] = np.clip(np.asarray(res.x, dtype=np.float64), lower[active], limit)
-    best_time = float(res.fun)
-    if best_time > baseline:
-        best, best_time = x0, baseline
-    return OptimalShifts(best, best_time, baseline, evaluations)
 
 
 class ShiftCriterion(enum.Enum):
@@ -280,8 +249,19 @@ def planned_shift_rpm(model: DriveModel, criterion: ShiftCriterion) -> FloatArra
     """Shift rpm per gear change by the chosen criterion [rpm], shape (g - 1,)."""
     if criterion is ShiftCriterion.NET_ACCELERATION:
         return np.array([c.shift_rpm for c in acceleration_shifts(model)])
-    plan = shift_plan(model.curve, model.drivetrain, model.tire, rev_limit_rpm=model.rev_limit_rpm)
+    plan = shift_plan(
+        model.curve,
+        model.drivetrain,
+        model.tire,
+        rev_limit_rpm=model.rev_limit_rpm,
+        converter=model_converter(model),
+    )
     return np.array([s.shift_rpm for s in plan.shifts])
+
+
+def model_converter(model: DriveModel) -> ConverterDrive | None:
+    """The car's torque converter and lock-up gears, or None with a clutch."""
+    return ConverterDrive.of_launch(model.launch)
 
 
 def acceleration_shift_points(model: DriveModel) -> tuple[ShiftPoint, ...]:
@@ -296,27 +276,28 @@ def acceleration_shift_points(model: DriveModel) -> tuple[ShiftPoint, ...]:
     -------
     tuple of ShiftPoint, length g - 1
     """
-    ratios = model.drivetrain.overall_ratios
     out = []
-    for i, choice in enumerate(acceleration_shifts(model)):
+    for i, (choice, turbine) in enumerate(_acceleration_choices(model)):
         n_s = choice.shift_rpm
-        q = float(ratios[i + 1] / ratios[i])
-        v = model.speed_at_rpm(i, n_s)
+        v = model.speed_at_rpm(i, turbine)
         before, _ = model.drive(i, np.array([v]))
-        after, _ = model.drive(i + 1, np.array([v]))
+        after, engine_after = model.drive(i + 1, np.array([v]))
+        rpm_after = float(engine_after[0])
         out.append(
             ShiftPoint(
                 from_gear=i + 1,
                 to_gear=i + 2,
                 shift_rpm=n_s,
                 shift_speed_m_s=v,
-                rpm_after=n_s * q,
-                rpm_drop=n_s * (1.0 - q),
+                rpm_after=rpm_after,
+                rpm_drop=n_s - rpm_after,
                 reason=choice.reason,
                 force_before_n=float(before[0]),
                 force_after_n=float(after[0]),
                 crossings=choice.crossings,
                 coincident_rpm=choice.coincident_rpm,
+                intersections=choice.intersections,
+                overtake_rpm=choice.overtake_rpm,
             )
         )
     return tuple(out)

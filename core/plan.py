@@ -8,6 +8,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
+from core.converter_drive import ConverterDrive, converter_input
 from core.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
 from core.drivetrain import Drivetrain
 from core.errors import CurveError
@@ -52,7 +53,8 @@ class ShiftPoint:
     shift_speed_m_s : float
         Road speed at the shift [m/s].
     rpm_after : float
-        Engine speed after the shift, shift_rpm * ratio_next / ratio_current [rpm].
+        Engine speed after the shift, shift_rpm * ratio_next / ratio_current [rpm] (with a
+        slipping torque converter, the engine speed it settles at in the next gear).
     rpm_drop : float
         shift_rpm - rpm_after [rpm].
     reason : ShiftReason
@@ -60,9 +62,13 @@ class ShiftPoint:
     force_before_n, force_after_n : float
         Tractive force just before and just after the shift [N].
     crossings : int
-        Number of force crossovers found in the gears' shared range.
+        Number of points in the gears' shared range where the next gear overtakes.
     coincident_rpm : tuple of float or None
         Band of shift rpm where both gears give the same force, if any.
+    intersections : int
+        How many times the two gears' curves intersect in the shared range, either way.
+    overtake_rpm : tuple of float
+        Engine rpm in the current gear at each point where the next gear overtakes.
     """
 
     from_gear: int
@@ -76,6 +82,8 @@ class ShiftPoint:
     force_after_n: float
     crossings: int
     coincident_rpm: tuple[float, float] | None
+    intersections: int = 0
+    overtake_rpm: tuple[float, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -159,8 +167,13 @@ def shift_plan(
     *,
     rev_limit_rpm: float | None = None,
     rpm_step: float | None = None,
+    converter: ConverterDrive | None = None,
 ) -> ShiftPlan:
     """Gear tables and wheel-force shift points.
+
+    With a torque converter the tables and the force comparison count its torque ratio at
+    the speed ratio it runs at; each shift is found in gearbox input (turbine) speed, which
+    is proportional to road speed, and reported at the engine speed the tachometer shows.
 
     Parameters
     ----------
@@ -174,6 +187,8 @@ def shift_plan(
         Rev limit [rpm]; defaults to the curve's last point and is clipped to it.
     rpm_step : float, optional
         Row spacing of the gear tables [rpm]; default the curve's own points.
+    converter : ConverterDrive, optional
+        The torque converter and its lock-up gears, if the drivetrain has one.
 
     Returns
     -------
@@ -204,18 +219,32 @@ def shift_plan(
             )
         )
     rows = rpm_grid(curve, limit, rpm_step)
-    tables = gear_tables(curve, drivetrain, tire, rows, efficiency)
+    tables = gear_tables(curve, drivetrain, tire, rows, efficiency, converter)
     ratios = drivetrain.overall_ratios
     r = tire.rolling_radius_m
     k_cur = ratios[:-1] * efficiency[:-1] / r
     k_next = ratios[1:] * efficiency[1:] / r
     step = ratios[1:] / ratios[:-1]
 
+    def input_torque(gear: int, n: FloatArray) -> FloatArray:
+        if converter is None:
+            return curve.torque_at(n)
+        return converter_input(converter, curve, limit, gear, n).torque_nm
+
+    def engine_rpm(gear: int, n: float) -> float:
+        if converter is None:
+            return n
+        return float(converter_input(converter, curve, limit, gear, np.array([n])).engine_rpm[0])
+
     def efforts(n: FloatArray) -> tuple[FloatArray, FloatArray]:
-        return (
-            k_cur[:, None] * curve.torque_at(n),
-            k_next[:, None] * curve.torque_at(n * step[:, None]),
-        )
+        if converter is None:
+            return (
+                k_cur[:, None] * curve.torque_at(n),
+                k_next[:, None] * curve.torque_at(n * step[:, None]),
+            )
+        cur = np.stack([k_cur[k] * input_torque(k, n[k]) for k in range(step.size)])
+        nxt = np.stack([k_next[k] * input_torque(k + 1, n[k] * step[k]) for k in range(step.size)])
+        return cur, nxt
 
     kc: list[float] = k_cur.tolist()
     kn: list[float] = k_next.tolist()
@@ -226,13 +255,16 @@ def shift_plan(
         return kc[k] * torque(n) - kn[k] * torque(n * qs[k])
 
     low = curve.rpm_min / step
-    choices = best_shifts(efforts, diff_scalar, low, np.full(step.size, limit))
+    choices = best_shifts(
+        efforts, diff_scalar if converter is None else None, low, np.full(step.size, limit)
+    )
     shifts = []
     for i, choice in enumerate(choices):
         g1 = float(ratios[i])
         q = qs[i]
-        n_s = choice.shift_rpm
-        after = n_s * q
+        turbine = choice.shift_rpm
+        n_s = engine_rpm(i, turbine)
+        after = engine_rpm(i + 1, turbine * q)
         if after < curve.rpm_min:
             notes.append(
                 Notice(
@@ -273,14 +305,16 @@ def shift_plan(
                 from_gear=i + 1,
                 to_gear=i + 2,
                 shift_rpm=n_s,
-                shift_speed_m_s=float(road_speed_m_s(n_s, g1, r)),
+                shift_speed_m_s=float(road_speed_m_s(turbine, g1, r)),
                 rpm_after=after,
                 rpm_drop=n_s - after,
                 reason=choice.reason,
-                force_before_n=kc[i] * torque(n_s),
-                force_after_n=kn[i] * torque(after),
+                force_before_n=kc[i] * float(input_torque(i, np.array([turbine]))[0]),
+                force_after_n=kn[i] * float(input_torque(i + 1, np.array([turbine * q]))[0]),
                 crossings=choice.crossings,
                 coincident_rpm=choice.coincident_rpm,
+                intersections=choice.intersections,
+                overtake_rpm=tuple(engine_rpm(i, x) for x in choice.overtake_rpm),
             )
         )
     torque_rpm, power_rpm = curve.peak_torque_rpm(), curve.peak_power_rpm()

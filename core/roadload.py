@@ -250,6 +250,20 @@ class RoadLoad:
         """Grade force ``m*g*sin(theta)`` [N]; negative downhill."""
         return self.mass_kg * _STANDARD_GRAVITY * math.sin(self.grade_angle_rad)
 
+    @property
+    def rolling_normal_factor(self) -> float:
+        """What the level-road ``C0`` and ``C1`` terms are multiplied by on the grade [-]:
+        ``cos(theta)`` for rolling resistance, 1 for coast-down coefficients."""
+        return 1.0 if self.form is RoadLoadForm.COAST_DOWN else math.cos(self.grade_angle_rad)
+
+    def rolling_resistance_n(self, speed_m_s: FloatArray) -> FloatArray:
+        """The terms acting at the contact patch, ``c*(C0 + C1*v)`` [N], shape of the speeds
+        (for coast-down coefficients, ``F0 + F1*v``)."""
+        result: FloatArray = self.rolling_normal_factor * (
+            self.constant_n + self.linear_n_s_m * speed_m_s
+        )
+        return result
+
     def force_n(self, speed_m_s: ArrayLike) -> FloatArray:
         """Total resisting force at each road speed.
 

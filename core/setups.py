@@ -14,6 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
+from core.converter_drive import ConverterDrive
 from core.curves import TorqueCurve
 from core.drivetrain import Drivetrain
 from core.gearing import engine_rpm_at_speed
@@ -118,7 +119,14 @@ def setup_figures(
     >>> round(s.shifts[0].shift_rpm, 3), round(s.shifts[0].rpm_after, 3)
     (4800.0, 3200.0)
     """
-    plan = shift_plan(setup.curve, setup.drivetrain, setup.tire, rev_limit_rpm=setup.rev_limit_rpm)
+    converter = None if setup.vehicle is None else ConverterDrive.of_launch(setup.launch)
+    plan = shift_plan(
+        setup.curve,
+        setup.drivetrain,
+        setup.tire,
+        rev_limit_rpm=setup.rev_limit_rpm,
+        converter=converter,
+    )
     ratios = setup.drivetrain.overall_ratios
     r = setup.tire.rolling_radius_m
     cruise = np.array(

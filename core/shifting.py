@@ -56,6 +56,10 @@ class ShiftReason(enum.Enum):
     DRAG_LIMIT = "drag_limit"
     """Net-acceleration plans only: the gear stops accelerating (road load) before its rev
     limit and before the next gear overtakes it, so the shift comes where it tops out."""
+    TRACTION_LIMIT = "traction_limit"
+    """Net-acceleration plans only: both gears are held at the tires' grip at the shift, so
+    the gear with the lighter rotating parts is the quicker and the shift comes as soon as
+    it can take over; no force crossover decides it."""
 
 
 @dataclass(frozen=True)
@@ -76,6 +80,11 @@ class ShiftChoice:
     below_range : bool
         True when the next gear is the stronger over the whole shared range, so the
         crossover lies below it and the shift is at the range's start.
+    intersections : int
+        How many times the two efforts intersect in the shared range, either way (the next
+        gear overtaking, or falling back behind).
+    overtake_rpm : tuple of float
+        Current-gear rpm at each point where the next gear overtakes (``crossings`` of them).
     """
 
     shift_rpm: float
@@ -83,6 +92,8 @@ class ShiftChoice:
     crossings: int
     coincident_rpm: tuple[float, float] | None
     below_range: bool
+    intersections: int = 0
+    overtake_rpm: tuple[float, ...] = ()
 
 
 def _coincident_band(
@@ -98,6 +109,15 @@ def _coincident_band(
     if hi - lo < 0.02 * float(grid[-1] - grid[0]):
         return None
     return lo, hi
+
+
+def _intersections(grid: FloatArray, diff: FloatArray, band: tuple[float, float] | None) -> int:
+    """Sign changes of ``diff`` on the grid, zeros and a coincident band left out."""
+    keep = diff != 0.0
+    if band is not None:
+        keep &= (grid < band[0]) | (grid > band[1])
+    signs = np.sign(diff[keep])
+    return int(np.count_nonzero(signs[1:] != signs[:-1]))
 
 
 def best_shifts(
@@ -196,5 +216,9 @@ def best_shifts(
         reason = ShiftReason.CROSSOVER
         if at_end:
             reason = ShiftReason.REV_LIMIT if top >= float(hi[k]) else ShiftReason.DRAG_LIMIT
-        choices.append(ShiftChoice(best, reason, len(roots), band, below))
+        choices.append(
+            ShiftChoice(
+                best, reason, len(roots), band, below, _intersections(g, d, band), tuple(roots)
+            )
+        )
     return tuple(choices)

@@ -17,7 +17,6 @@ below ``MIN_ACCELERATION`` the car is taken to hold its speed (drag or rev limit
 
 from __future__ import annotations
 
-import dataclasses
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -26,7 +25,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.integrate import cumulative_trapezoid
 
-from core.converter_matching import converter_operating_points
+from core.converter_drive import ConverterDrive, converter_input
 from core.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
 from core.drivetrain import Drivetrain
 from core.errors import SimulationError
@@ -164,24 +163,9 @@ class DriveModel:
         converter = self.launch.converter
         if converter is None:  # Launch.__post_init__ forbids it; kept for the type
             raise SimulationError("`converter` is missing", parameter="converter")
-        curve, limit = self.curve, self.rev_limit_rpm
-        turbine = np.minimum(n_in, limit)
-        engine = turbine.copy()
-        torque = curve.torque_at(turbine)
-        slipping = np.ones(turbine.shape, dtype=np.bool_)
-        if gear + 1 in self.launch.lockup_gears:
-            slipping = turbine < curve.rpm_min
-        if slipping.any():
-            points = converter_operating_points(
-                dataclasses.replace(converter, lockup_speed_ratio=None),
-                turbine[slipping],
-                curve.torque_at,
-                rpm_min=curve.rpm_min,
-                rpm_max=limit,
-            )
-            engine[slipping] = points.engine_rpm
-            torque[slipping] = points.output_torque_nm
-        return torque, engine
+        drive = ConverterDrive(converter, self.launch.lockup_gears)
+        out = converter_input(drive, curve, limit, gear, n_in)
+        return out.torque_nm, out.engine_rpm
 
     def acceleration(
         self, gear: int, speed_m_s: FloatArray, *, launching: bool = False

@@ -6,10 +6,16 @@ from the CG to the rear axle (``b + c = L``). Under a longitudinal acceleration 
 
     Wf = W*(c/L - (ax/g)*h/L)        Wr = W*(b/L + (ax/g)*h/L)
 
-The traction limit is the closed form obtained by putting ``ax = Fx/m`` into these loads
-and asking that no driven axle need more than ``mu`` times its load. It is road-load free:
-aerodynamic drag (and the lift and pitch moment it brings), rolling resistance, grade and
-the inertia of rotating parts are ignored, so all of ``Fx`` accelerates the vehicle mass.
+The traction limit is the closed form obtained by putting ``(W/g)*ax = Fx - Rx`` into these
+loads, with ``Rx`` the rolling resistance, and asking that no driven axle need more than
+``mu`` times its load (Gillespie eqs. 2-19 and 2-20: rear drive
+``Fx = mu*W*(b - fr*h)/L / (1 - mu*h/L)``, front drive ``mu*W*(c + fr*h)/L / (1 + mu*h/L)``).
+On a slope of angle ``theta`` the weight's normal part ``W*cos(theta)`` takes the place of
+``W`` and the grade force ``W*sin(theta)`` joins the inertia force at the CG height, so the
+transfer is still ``(h/L)*(Fx - Rx)``. Aerodynamic drag is taken to act at the CG height
+(Gillespie's ``ha = h``), so at any steady or accelerating state the transfer is
+``(h/L)*(Fx - Rx)`` and drag leaves the limit unchanged; aerodynamic lift and the inertia of
+rotating parts are ignored.
 """
 
 from __future__ import annotations
@@ -28,6 +34,7 @@ __all__ = [
     "AxleLoads",
     "DriveLayout",
     "axle_loads",
+    "grip_limit_n",
     "traction_limit_n",
 ]
 
@@ -215,6 +222,8 @@ def traction_limit_n(
     layout: DriveLayout,
     *,
     front_torque_share: float | None = None,
+    rolling_resistance_n: float = 0.0,
+    grade_percent: float = 0.0,
 ) -> float:
     """Largest tractive force the driven tires can put down, in closed form.
 
@@ -235,7 +244,10 @@ def traction_limit_n(
     split equal to the front load share at the limit, ``s = c/L - k``, saturates both axles at
     once and gives ``mu*W``, the most any split can reach.
 
-    The form is road-load free (see the module docstring).
+    With ``rolling_resistance_n`` (``Rx``) the load transfer is ``(h/L)*(Fx - Rx)``, the
+    rolling-resistance term of Gillespie eqs. 2-19 and 2-20; on a grade ``W`` becomes
+    ``W*cos(theta)`` (see the module docstring and :func:`grip_limit_n`). With both left at
+    0 the form is the level, road-load-free one above.
 
     Parameters
     ----------
@@ -250,6 +262,10 @@ def traction_limit_n(
     front_torque_share : float, optional
         For ``DriveLayout.ALL`` only, and required there: share of the drive torque sent to
         the front axle [-], 0..1.
+    rolling_resistance_n : float, optional
+        Rolling resistance of all wheels at the state considered [N], >= 0.
+    grade_percent : float, optional
+        Road grade ``100*tan(theta)`` [%].
 
     Returns
     -------
@@ -286,14 +302,88 @@ def traction_limit_n(
         )
     else:
         share = 1.0 if layout is DriveLayout.FRONT else 0.0
+    if not math.isfinite(rolling_resistance_n) or rolling_resistance_n < 0.0:
+        raise VehicleError(
+            f"`rolling_resistance_n` must be finite and >= 0, got {rolling_resistance_n}",
+            parameter="rolling_resistance_n",
+        )
+    if not math.isfinite(grade_percent):
+        raise VehicleError(
+            f"`grade_percent` must be finite, got {grade_percent}", parameter="grade_percent"
+        )
+    normal_n = mass_kg * _STANDARD_GRAVITY * math.cos(math.atan(grade_percent / 100.0))
+    limit = grip_limit_n(
+        np.array([normal_n]),
+        np.array([rolling_resistance_n]),
+        geometry,
+        friction_coefficient,
+        share,
+    )
+    return float(limit[0])
+
+
+def grip_limit_n(
+    normal_load_n: FloatArray,
+    rolling_resistance_n: FloatArray,
+    geometry: AxleGeometry,
+    friction_coefficient: float,
+    front_share: float,
+) -> FloatArray:
+    """The traction limit of :func:`traction_limit_n` for many states at once.
+
+    With ``N`` the weight's component normal to the road, ``Rx`` the rolling resistance,
+    ``s`` the front share of the drive and ``k = mu*h/L``, each axle carries at most ``mu``
+    times its load ``Wf = (N*c - h*(Fx - Rx))/L``, ``Wr = (N*b + h*(Fx - Rx))/L``:
+
+    * front: ``Fx <= mu*(N*c + h*Rx)/L / (s + k)``;
+    * rear: ``Fx <= mu*(N*b - h*Rx)/L / (1 - s - k)`` when ``1 - s - k > 0``, else no limit.
+
+    Parameters
+    ----------
+    normal_load_n : ndarray, shape (n,)
+        ``W*cos(theta)`` [N].
+    rolling_resistance_n : ndarray, shape (n,)
+        Rolling resistance of all wheels [N], >= 0.
+    geometry : AxleGeometry
+        Wheelbase and CG position.
+    friction_coefficient : float
+        Peak friction coefficient ``mu`` [-], > 0.
+    front_share : float
+        Front share ``s`` of the tractive force [-], 0..1.
+
+    Returns
+    -------
+    ndarray, shape (n,)
+        Largest tractive force [N], >= 0.
+
+    Examples
+    --------
+    Rear drive, Gillespie eq. 2-19 with ``fr = 0.015``:
+
+    >>> g = AxleGeometry(2.5, 0.5, 1.25)
+    >>> w = 1000.0 * 9.80665
+    >>> f = grip_limit_n(np.array([w]), np.array([0.015 * w]), g, 1.0, 0.0)
+    >>> bool(abs(f[0] - w * (1.25 - 0.015 * 0.5) / 2.5 / (1 - 0.5 / 2.5)) < 1e-9)
+    True
+    """
     mu = friction_coefficient
     length = geometry.wheelbase_m
-    k = mu * geometry.cg_height_m / length
-    front_bound = mu * (geometry.cg_to_rear_axle_m / length) / (share + k)
-    rear_denominator = 1.0 - share - k
-    rear_bound = (
-        mu * (geometry.cg_to_front_axle_m / length) / rear_denominator
-        if rear_denominator > 0.0
-        else math.inf
+    h = geometry.cg_height_m
+    k = mu * h / length
+    front = (
+        mu
+        * (normal_load_n * geometry.cg_to_rear_axle_m + h * rolling_resistance_n)
+        / length
+        / (front_share + k)
     )
-    return mass_kg * _STANDARD_GRAVITY * min(front_bound, rear_bound)
+    rear_denominator = 1.0 - front_share - k
+    if rear_denominator > 0.0:
+        rear = (
+            mu
+            * (normal_load_n * geometry.cg_to_front_axle_m - h * rolling_resistance_n)
+            / length
+            / rear_denominator
+        )
+        front = np.minimum(front, rear)
+    result: FloatArray = np.maximum(front, 0.0)
+    return result

@@ -18,9 +18,12 @@ from core.roadload import RoadLoad
 from core.tires import Tire
 from core.traction import AxleGeometry, DriveLayout, traction_limit_n
 
-__all__ = ["Coupling", "Launch", "RotatingInertia", "Vehicle"]
+__all__ = ["MIN_FRICTION_COEFFICIENT", "Coupling", "Launch", "RotatingInertia", "Vehicle"]
 
 FloatArray = NDArray[np.float64]
+MIN_FRICTION_COEFFICIENT = 0.05
+"""Least tire-road friction coefficient accepted [-]: glare ice is about 0.05-0.1 (common
+practice); below it no car accelerates or climbs."""
 
 
 def _check(value: float, name: str, low: float, high: float, *, open_low: bool = False) -> None:
@@ -87,16 +90,26 @@ class Vehicle:
 
     def __post_init__(self) -> None:
         _check(self.mass_kg, "mass_kg", 50.0, 50_000.0)
-        _check(self.friction_coefficient, "friction_coefficient", 0.0, 5.0, open_low=True)
+        _check(self.friction_coefficient, "friction_coefficient", MIN_FRICTION_COEFFICIENT, 5.0)
 
     def traction_limit_n(self) -> float:
-        """Largest tractive force the driven tires put down, with weight transfer [N]."""
+        """Largest tractive force the driven tires put down, with weight transfer [N].
+
+        Gillespie eqs. 2-19 and 2-20 with the rolling-resistance term: the transfer is
+        ``(h/L)*(Fx - Rx)``, ``Rx`` the road load's speed-independent rolling part at rest
+        (``fr*W*cos(theta)``, or a coast-down ``F0``), on the road load's grade. The part of
+        the rolling resistance growing with speed is left out: the limit binds at launch.
+        """
+        load = self.road_load
+        rolling = float(load.rolling_resistance_n(np.array([0.0]))[0])
         return traction_limit_n(
             self.mass_kg,
             self.geometry,
             self.friction_coefficient,
             self.layout,
             front_torque_share=self.front_torque_share,
+            rolling_resistance_n=rolling,
+            grade_percent=load.grade_percent,
         )
 
     def decoupled_mass_kg(self, drivetrain: Drivetrain, tire: Tire) -> float:

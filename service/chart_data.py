@@ -12,7 +12,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from core import gear_tables, sample_trace
+from core import ConverterDrive, gear_tables, sample_trace
 from core.milestones import time_at_distance
 from service.computations import PlanOutcome, RunOutcome
 from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
@@ -122,7 +122,9 @@ def tractive_force_chart(outcome: PlanOutcome) -> TractiveForceChart:
         drivetrain.efficiency if plan.efficiency_applied else np.ones(drivetrain.gear_count)
     )
     rows = np.linspace(curve.rpm_min, plan.rev_limit_rpm, CURVE_POINTS)
-    tables = gear_tables(curve, drivetrain, tire, rows, efficiency)
+    model = outcome.model
+    converter = None if model is None else ConverterDrive.of_launch(model.launch)
+    tables = gear_tables(curve, drivetrain, tire, rows, efficiency, converter)
     speed = from_si(np.stack([t.speed_m_s for t in tables]), Quantity.SPEED, units)
     force = from_si(np.stack([t.tractive_force_n for t in tables]), Quantity.FORCE, units)
     gears = tuple(GearCurve(t.gear, speed[i], force[i]) for i, t in enumerate(tables))

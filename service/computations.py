@@ -13,6 +13,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from core import (
+    ConverterDrive,
     Coupling,
     DriveModel,
     Drivetrain,
@@ -134,6 +135,10 @@ def compute_shift_plan(body: ShiftPlanRequest) -> PlanOutcome:
     curve = build_curve(body.engine.curve, units)
     drivetrain = build_drivetrain(body.drivetrain)
     tire = build_tire(body.drivetrain.tire, units)
+    launch = None
+    if body.vehicle is not None:
+        launch = build_launch(body.launch or LaunchIn(), curve, units)
+    converter = ConverterDrive.of_launch(launch)
     with core_fields(PLAN_FIELDS):
         plan = shift_plan(
             curve,
@@ -141,20 +146,21 @@ def compute_shift_plan(body: ShiftPlanRequest) -> PlanOutcome:
             tire,
             rev_limit_rpm=body.engine.rev_limit_rpm,
             rpm_step=body.table.rpm_step,
+            converter=converter,
         )
     performance = None
     model = None
-    if body.vehicle is not None:
+    if body.vehicle is not None and launch is not None:
         vehicle = build_vehicle(body.vehicle, units)
-        launch = build_launch(body.launch or LaunchIn(), curve, units)
         with core_fields(PLAN_FIELDS):
             model = drive_model(
                 curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
             )
             speeds = [to_si(v, Quantity.SPEED, units) for v in body.cruise_speeds]
-            performance = performance_document(model, plan, speeds, units)
+            performance, grade_notes = performance_document(model, plan, speeds, units)
             if body.shift_criterion == "net_acceleration":
                 plan = dataclasses.replace(plan, shifts=acceleration_shift_points(model))
+            plan = dataclasses.replace(plan, notices=plan.notices + tuple(grade_notes))
     doc = shift_plan_document(plan, curve, drivetrain, tire, units, PLAN_FIELDS)
     document = {
         "reference": body.reference,
@@ -213,6 +219,7 @@ def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
                 finish_distance_m=finish_d if finish_v is None else None,
                 finish_speed_m_s=finish_v,
                 max_evaluations=SEARCH_BUDGET[launch.coupling],
+                initial_name=crit,
             )
     doc = run_document(report, model, optimal, crit, u, run.trace_points, RUN_FIELDS)
     document = {"reference": body.reference, **doc}

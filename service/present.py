@@ -11,19 +11,21 @@ from numpy.typing import NDArray
 from core import (
     DriveModel,
     Drivetrain,
+    GearTable,
     Notice,
     ShiftPlan,
     Tire,
     TorqueCurve,
     cruise_rpm,
-    gradeability_by_gear,
     top_speed,
 )
+from core.gradeability import MAX_GRADE_ANGLE_DEG, GradeLimit, gradeability
 from service.builders import request_field
 from service.cautions import CAUTIONS
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = [
+    "grade_notices",
     "notices_out",
     "performance_document",
     "rounded",
@@ -65,6 +67,16 @@ def tire_document(tire: Tire, units: UnitSystem) -> dict[str, Any]:
     }
 
 
+def _converter_columns(table: GearTable) -> dict[str, Any]:
+    """A converter gear's engine rpm and torque ratio per row; nothing without a converter."""
+    if table.engine_rpm is None or table.torque_ratio is None:
+        return {}
+    return {
+        "engine_rpm": rounded(table.engine_rpm, 1),
+        "torque_ratio": rounded(table.torque_ratio, 4),
+    }
+
+
 def shift_plan_document(
     plan: ShiftPlan,
     curve: TorqueCurve,
@@ -95,6 +107,7 @@ def shift_plan_document(
                 "wheel_torque": wt[i],
                 "tractive_force": tf[i],
                 "wheel_power": wp[i],
+                **_converter_columns(g),
             },
         }
         for i, (g, ratio) in enumerate(zip(tables, drivetrain.gear_ratios.tolist(), strict=True))
@@ -111,6 +124,8 @@ def shift_plan_document(
             "force_before": rounded(from_si(s.force_before_n, force, units), 1),
             "force_after": rounded(from_si(s.force_after_n, force, units), 1),
             "crossings": s.crossings,
+            "intersections": s.intersections,
+            "overtake_rpm": [rounded(x, 1) for x in s.overtake_rpm],
             "coincident_rpm": None
             if s.coincident_rpm is None
             else [rounded(s.coincident_rpm[0], 1), rounded(s.coincident_rpm[1], 1)],
@@ -143,18 +158,46 @@ def shift_plan_document(
     }
 
 
+def grade_notices(limits: tuple[GradeLimit, ...]) -> list[Notice]:
+    """Say where grip, or the stated cap, rather than the drive force sets the gradeability."""
+    out = []
+    grip = [i + 1 for i, lim in enumerate(limits) if lim is GradeLimit.GRIP]
+    capped = [i + 1 for i, lim in enumerate(limits) if lim is GradeLimit.CAP]
+    if grip:
+        out.append(
+            Notice(
+                "gradeability_grip_limited",
+                f"Gradeability in gear {', '.join(map(str, grip))} is set by the tires' grip on "
+                "the slope (weight transfer counted), not by the drive force.",
+                "friction_coefficient",
+            )
+        )
+    if capped:
+        out.append(
+            Notice(
+                "gradeability_capped",
+                f"Gradeability in gear {', '.join(map(str, capped))} reaches the reported "
+                f"maximum of {MAX_GRADE_ANGLE_DEG:g} degrees before drive or grip run out.",
+            )
+        )
+    return out
+
+
 def performance_document(
     model: DriveModel, plan: ShiftPlan, cruise_speeds_m_s: list[float], units: UnitSystem
-) -> dict[str, Any]:
-    """Top speed, gradeability, cruise rpm and grip of a described car."""
+) -> tuple[dict[str, Any], list[Notice]]:
+    """Top speed, gradeability, cruise rpm and grip of a described car, and its notices."""
     top = top_speed(model)
-    return {
+    grade = gradeability(model)
+    doc = {
         "top_speed": {
             "speed": round(from_si(top.speed_m_s, Quantity.SPEED, units), 2),
             "gear": top.gear,
             "limited_by": top.limited_by,
         },
-        "gradeability": rounded(gradeability_by_gear(model), 2),
+        "gradeability": rounded(grade.grade_percent, 2),
+        "gradeability_speed": rounded(from_si(grade.speed_m_s, Quantity.SPEED, units), 2),
+        "gradeability_limited_by": [lim.value for lim in grade.limited_by],
         "cruise": [
             {
                 "speed": round(from_si(v, Quantity.SPEED, units), 2),
@@ -165,3 +208,4 @@ def performance_document(
         "traction_limit": round(from_si(model.traction_limit_n, Quantity.FORCE, units), 1),
         "force_crossover_rpm": [round(s.shift_rpm, 1) for s in plan.shifts],
     }
+    return doc, grade_notices(grade.limited_by)

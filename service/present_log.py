@@ -57,6 +57,8 @@ def _shift(s: LoggedShift, model: ModelShifts, units: UnitSystem) -> dict[str, A
         "verdict": s.verdict.value,
         "basis": s.basis.value,
         "model_shift_rpm": _rpm(model.rpm[s.from_gear - 1]) if adjacent else None,
+        "logged_rpm": None if s.logged_rpm is None else [_rpm(x) for x in s.logged_rpm],
+        "crossover_extrapolated": s.crossover_extrapolated,
     }
 
 
@@ -117,8 +119,40 @@ def _verdict_text(s: LoggedShift) -> str:
     return f"{word} {100.0 * s.deviation:+.0f}%{mark}"
 
 
+def _model_lines(analysis: PassAnalysis, model: ModelShifts | None) -> list[str]:
+    """The model's shift rpm for each logged upshift, and the rule it comes from."""
+    if model is None or not model.rpm:
+        return []
+    pairs = [
+        f"{s.from_gear}-{s.to_gear} {model.rpm[s.from_gear - 1]:.0f}"
+        for s in analysis.shifts
+        if s.to_gear == s.from_gear + 1 and s.from_gear <= len(model.rpm)
+    ]
+    if not pairs:
+        return []
+    rule = (model.criterion or "").replace("_", " ")
+    return wrap_text(f"Model shift rpm ({rule}): {', '.join(pairs)}.")
+
+
+def _extrapolated_lines(analysis: PassAnalysis) -> list[str]:
+    out = []
+    for s in analysis.shifts:
+        if s.crossover_extrapolated and s.logged_rpm is not None and s.crossover_rpm:
+            out += wrap_text(
+                f"^ {s.from_gear}-{s.to_gear}: crossover {s.crossover_rpm:.0f} rpm extrapolated "
+                f"beyond the rpm logged in gear {s.from_gear} ({s.logged_rpm[0]:.0f}-"
+                f"{s.logged_rpm[1]:.0f} rpm); an estimate only.",
+                "  ",
+            )
+    return out
+
+
 def log_summary(
-    analysis: PassAnalysis, log: PassLog, units: UnitSystem, reference: str | None
+    analysis: PassAnalysis,
+    log: PassLog,
+    units: UnitSystem,
+    reference: str | None,
+    model: ModelShifts | None = None,
 ) -> str:
     """The checked pass as a short printable sheet: 80 columns, printable ASCII."""
     spd = unit_labels(units)["speed"]
@@ -147,12 +181,14 @@ def log_summary(
             f"{s.from_gear:>3d}-{s.to_gear:<2d}{s.start_time_s:7.2f}{s.duration_s:8.2f}"
             f"{v:7.1f}{s.rpm_before:6.0f}{s.rpm_after:6.0f}"
             f"{s.acceleration_before_m_s2 / G:9.2f}{s.acceleration_after_m_s2 / G:9.2f}"
-            f" {cross}  {_verdict_text(s)}"
+            f" {cross}{'^' if s.crossover_extrapolated else ' '} {_verdict_text(s)}"
         )
     if not analysis.shifts:
         lines.append("  (no gear change found)")
     if any(s.basis.value == "rev_limit" for s in analysis.shifts):
         lines.append("  * against the rev limit, which comes before the crossover")
+    lines += _extrapolated_lines(analysis)
+    lines += _model_lines(analysis, model)
     lines.append("")
     lines += wrap_text(VERDICT_RULE)
     for n in analysis.notices:

@@ -102,6 +102,8 @@ def run_document(
             "plan_elapsed": round(optimal.baseline_time_s, 3),
             "gain": round(optimal.baseline_time_s - optimal.time_s, 3),
             "evaluations": optimal.evaluations,
+            "won_by": optimal.won_by,
+            "seeds": [{"name": n, "elapsed": round(t, 3)} for n, t in optimal.seeds],
         },
         "warnings": notices_out(run.notices, fields),
         "cautions": list(CAUTIONS),

@@ -170,7 +170,8 @@ def _result_facts(doc: dict[str, Any], lab: dict[str, str]) -> tuple[tuple[str, 
             (
                 "Quickest shifts",
                 f"{rpm} rpm: {fmt(best['elapsed'], 3)} s against {fmt(best['plan_elapsed'], 3)}"
-                f" s with the plan ({best['evaluations']} runs searched)",
+                f" s with the plan ({best['evaluations']} runs searched; best start: "
+                f"{best['won_by'].replace('_', ' ')})",
             )
         )
     return tuple(facts)

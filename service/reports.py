@@ -33,7 +33,12 @@ from service.units import unit_labels
 
 __all__ = ["shift_plan_report"]
 
-_WHY = {"crossover": "crossover", "rev_limit": "rev limit", "drag_limit": "tops out"}
+_WHY = {
+    "crossover": "crossover",
+    "rev_limit": "rev limit",
+    "drag_limit": "tops out",
+    "traction_limit": "both on grip",
+}
 
 
 def _gear_table(doc: dict[str, Any], lab: dict[str, str]) -> Table:

@@ -80,9 +80,11 @@ def shift_plan_summary(
         )
         for s in plan.shifts:
             v = from_si(s.shift_speed_m_s, Quantity.SPEED, units)
-            why = {"crossover": "crossover", "rev_limit": "rev limit"}.get(
-                s.reason.value, "tops out"
-            )
+            why = {
+                "crossover": "crossover",
+                "rev_limit": "rev limit",
+                "traction_limit": "both on grip",
+            }.get(s.reason.value, "tops out")
             lines.append(
                 f"{s.from_gear:>3}-{s.to_gear:<1}  {s.shift_rpm:>6.0f}  {v:>8.1f} {spd:<5}  "
                 f"{s.rpm_after:>8.0f}  {s.rpm_drop:>5.0f}  {why}"

@@ -47,5 +47,5 @@ async def create_log_analysis(body: LogAnalysisRequest, _json: JsonBody) -> Resp
             smoothing_window_s=opts.smoothing_window,
         )
     doc = log_analysis_document(analysis, log, text, model, units, LOG_FIELDS)
-    summary = log_summary(analysis, log, units, body.reference)
+    summary = log_summary(analysis, log, units, body.reference, model)
     return FastJSONResponse({"reference": body.reference, **doc, "summary": summary})

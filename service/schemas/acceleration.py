@@ -6,7 +6,14 @@ from typing import Literal, Self
 
 from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    DEFAULT_SHIFT_RULE,
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsField,
+)
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.job import JobField
@@ -19,6 +26,7 @@ __all__ = [
     "OptimalShiftsOut",
     "RunOptions",
     "RunShiftOut",
+    "SeedOut",
     "ShiftChoiceIn",
     "SpeedIntervalIn",
     "SpeedOut",
@@ -86,7 +94,8 @@ class ShiftChoiceIn(ApiModel):
     criterion: Literal["net_acceleration", "tractive_force", "custom"] = Field(
         "net_acceleration",
         description="`net_acceleration`: the plan with road load and rotating inertia "
-        "counted; `tractive_force`: the wheel-force crossover plan; `custom`: `rpm`.",
+        "counted; `tractive_force`: the wheel-force crossover plan; `custom`: `rpm`. "
+        + DEFAULT_SHIFT_RULE,
     )
     rpm: list[float] | None = Field(
         None,
@@ -176,6 +185,13 @@ class TraceOut(ApiModel):
     acceleration: list[float] = Field(description="Net acceleration [g].")
 
 
+class SeedOut(ApiModel):
+    """One starting plan of the shift search."""
+
+    name: Literal["net_acceleration", "tractive_force", "custom", "rev_limit"]
+    elapsed: float = Field(description="Finish time with it [s].")
+
+
 class OptimalShiftsOut(ApiModel):
     """Shift rpms that minimise the time to the finish, beside the plan's."""
 
@@ -183,7 +199,14 @@ class OptimalShiftsOut(ApiModel):
     elapsed: float = Field(description="Finish time with them [s].")
     plan_elapsed: float = Field(description="Finish time with the plan's shifts [s].")
     gain: float = Field(description="plan_elapsed - elapsed [s].")
-    evaluations: int = Field(description="Simulated runs spent in the search.")
+    evaluations: int = Field(description="Simulated runs spent in the search, seeds included.")
+    won_by: Literal["net_acceleration", "tractive_force", "custom", "rev_limit", "search"] = Field(
+        description="Which plan the answer is: the search starts from the quickest of the "
+        "run's own plan, shifting at the rev limit, the wheel-force crossover and the "
+        "net-acceleration plan, so it is never slower than any of them; `search` when it "
+        "improved on all of them."
+    )
+    seeds: list[SeedOut] = Field(description="Each distinct starting plan and its time.")
 
 
 class AccelerationRunResponse(ApiModel):
@@ -198,7 +221,11 @@ class AccelerationRunResponse(ApiModel):
     speeds: list[SpeedOut]
     shifts: list[RunShiftOut]
     top_speed: TopSpeedOut
-    traction_limit: float = Field(description="Traction-limited tractive force [N | lbf].")
+    traction_limit: float = Field(
+        description="Traction-limited tractive force on the road's grade [N | lbf]: Gillespie "
+        "ch. 2 with the rolling-resistance term of the load transfer, rolling resistance "
+        "taken at rest."
+    )
     traction_limited_to: float | None = Field(
         description="Highest speed at which the tires limited the drive [km/h | mph]."
     )

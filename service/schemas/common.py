@@ -2,13 +2,14 @@
 
 from __future__ import annotations
 
-from typing import Annotated
+from typing import Annotated, Any
 
 from pydantic import BaseModel, ConfigDict, Field
 
 from service.units import UnitSystem
 
 __all__ = [
+    "DEFAULT_SHIFT_RULE",
     "ApiModel",
     "NoticeOut",
     "Problem",
@@ -16,7 +17,21 @@ __all__ = [
     "Reference",
     "UnitLabels",
     "UnitsField",
+    "with_default_shift_criterion",
 ]
+
+DEFAULT_SHIFT_RULE = (
+    "Default (the same for the shift plan, the acceleration run and the comparison): "
+    "`net_acceleration` when `vehicle` describes the car, else `tractive_force`."
+)
+
+
+def with_default_shift_criterion(data: Any, field: str = "shift_criterion") -> Any:
+    """A request body with the default shift rule filled in where the caller gave none."""
+    if isinstance(data, dict) and data.get(field) is None:
+        has_vehicle = data.get("vehicle") is not None
+        return {**data, field: "net_acceleration" if has_vehicle else "tractive_force"}
+    return data
 
 
 class ApiModel(BaseModel):

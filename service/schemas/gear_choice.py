@@ -2,13 +2,21 @@
 
 from __future__ import annotations
 
-from typing import Annotated, Literal, Self
+from typing import Annotated, Any, Literal, Self
 
 from pydantic import Field, model_validator
 
 from service.schemas.acceleration import TopSpeedOut
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
-from service.schemas.inputs import DrivetrainIn, EngineIn, TireIn
+from service.schemas.common import (
+    DEFAULT_SHIFT_RULE,
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsField,
+    with_default_shift_criterion,
+)
+from service.schemas.inputs import CurveIn, DrivetrainIn, EngineIn, TireIn
 from service.schemas.job import JobField
 from service.schemas.shift_plan import TireOut
 from service.schemas.vehicle import ConverterIn, LaunchIn, VehicleIn
@@ -21,8 +29,10 @@ __all__ = [
     "ComparisonRunOut",
     "ComparisonShiftOut",
     "CruiseSpeed",
+    "CurvePointsOut",
     "GearReachOut",
     "SetupDeltaOut",
+    "SetupEngineOut",
     "SetupOut",
     "StripTimeOut",
     "VariantIn",
@@ -44,7 +54,15 @@ Label = Annotated[
         examples=["3.91 gears"],
     ),
 ]
-OVERRIDES = ("final_drive_ratio", "gear_ratios", "tire", "rev_limit_rpm", "mass", "converter")
+OVERRIDES = (
+    "final_drive_ratio",
+    "gear_ratios",
+    "tire",
+    "rev_limit_rpm",
+    "mass",
+    "converter",
+    "curve",
+)
 
 
 class VariantIn(ApiModel):
@@ -71,6 +89,12 @@ class VariantIn(ApiModel):
         description="Launch through this torque converter instead (keeping the lock-up "
         "gears and shift time of `launch`).",
     )
+    curve: CurveIn | None = Field(
+        None,
+        description="Replaces the engine curve: a pull after a tune, or another dyno "
+        "session, set beside the base's (before) curve. The rev limit stays the base's "
+        "unless `rev_limit_rpm` is given.",
+    )
 
     @model_validator(mode="after")
     def _changes_something(self) -> Self:
@@ -80,7 +104,8 @@ class VariantIn(ApiModel):
 
 
 class ComparisonRequest(ApiModel):
-    """A base setup and the variants to set beside it."""
+    """A base setup and the variants to set beside it (another axle, tire or gear set, or
+    another engine curve: before and after a tune)."""
 
     units: UnitsField
     reference: Reference
@@ -93,10 +118,10 @@ class ComparisonRequest(ApiModel):
         "and top speed.",
     )
     launch: LaunchIn | None = Field(None, description="Clutch or converter (with `vehicle`).")
-    shift_criterion: Literal["tractive_force", "net_acceleration"] = Field(
-        "tractive_force",
+    shift_criterion: Literal["tractive_force", "net_acceleration"] | None = Field(
+        None,
         description="Shift at the wheel-force crossover, or (needs `vehicle`) where net "
-        "acceleration crosses, road load and rotating inertia counted.",
+        "acceleration crosses, road load and rotating inertia counted. " + DEFAULT_SHIFT_RULE,
     )
     cruise_speeds: list[CruiseSpeed] = Field(
         default_factory=list,
@@ -106,6 +131,11 @@ class ComparisonRequest(ApiModel):
     variants: list[VariantIn] = Field(
         min_length=1, max_length=MAX_VARIANTS, description="One to eight variants."
     )
+
+    @model_validator(mode="before")
+    @classmethod
+    def _default_criterion(cls, data: Any) -> Any:
+        return with_default_shift_criterion(data)
 
     @model_validator(mode="after")
     def _needs_vehicle(self) -> Self:
@@ -135,7 +165,7 @@ class ComparisonShiftOut(ApiModel):
     shift_speed: float = Field(description="Road speed at the shift [km/h | mph].")
     rpm_after: float = Field(description="Engine speed right after the shift [rpm].")
     rpm_drop: float = Field(description="shift_rpm - rpm_after [rpm].")
-    reason: Literal["crossover", "rev_limit", "drag_limit"]
+    reason: Literal["crossover", "rev_limit", "drag_limit", "traction_limit"]
 
 
 class ComparisonCruiseOut(ApiModel):
@@ -170,8 +200,37 @@ class ComparisonRunOut(ApiModel):
     top_speed: TopSpeedOut
 
 
+class CurvePointsOut(ApiModel):
+    """A setup's own engine curve, to draw beside the base's."""
+
+    rpm: list[float] = Field(description="Engine speed [rpm].")
+    torque: list[float] = Field(description="Torque [N*m | lbf*ft].")
+    power: list[float] = Field(description="Power [kW | hp].")
+
+
+class SetupEngineOut(ApiModel):
+    """The engine curve a setup uses, by its peaks."""
+
+    source: Literal["engine", "chassis"] = Field(
+        description="Measured at the crankshaft or at the wheels."
+    )
+    peak_torque: float = Field(description="[N*m | lbf*ft]")
+    peak_torque_rpm: float = Field(description="[rpm]")
+    peak_power: float = Field(description="[kW | hp]")
+    peak_power_rpm: float = Field(description="[rpm]")
+    curve: CurvePointsOut | None = Field(
+        description="The curve's points: for the base, and for a variant with its own "
+        "`curve`; null for a variant using the base's curve."
+    )
+
+
 class SetupDeltaOut(ApiModel):
     """This setup minus the base; null where either lacks the figure."""
+
+    peak_torque: float = Field(description="[N*m | lbf*ft]")
+    peak_torque_rpm: float = Field(description="[rpm]")
+    peak_power: float = Field(description="[kW | hp]")
+    peak_power_rpm: float = Field(description="[rpm]")
 
     speed_at_rev_limit: list[float | None] = Field(description="Per gear [km/h | mph].")
     shift_rpm: list[float | None] = Field(description="Per gear change [rpm].")
@@ -195,6 +254,7 @@ class SetupOut(ApiModel):
     final_drive_ratio: float
     gear_ratios: list[float]
     rev_limit_rpm: float = Field(description="Rev limit used [rpm].")
+    engine: SetupEngineOut
     tire: TireOut
     gears: list[GearReachOut]
     shifts: list[ComparisonShiftOut]

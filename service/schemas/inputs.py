@@ -6,6 +6,7 @@ from typing import Annotated, Literal, Self
 
 from pydantic import Field, model_validator
 
+from core.curves import MIN_RPM
 from service.schemas.common import ApiModel
 
 __all__ = ["CurveIn", "DrivetrainIn", "EngineIn", "TireIn"]
@@ -13,7 +14,7 @@ __all__ = ["CurveIn", "DrivetrainIn", "EngineIn", "TireIn"]
 MAX_CURVE_POINTS = 2000
 MAX_GEARS = 12
 
-Rpm = Annotated[float, Field(gt=0, le=30000, description="Engine speed [rpm].")]
+Rpm = Annotated[float, Field(ge=MIN_RPM, le=30000, description="Engine speed [rpm].")]
 CurveValue = Annotated[float, Field(ge=0, le=100000)]
 Ratio = Annotated[float, Field(ge=0.01, le=50)]
 Efficiency = Annotated[float, Field(gt=0, le=1)]
@@ -62,7 +63,7 @@ class EngineIn(ApiModel):
     curve: CurveIn
     rev_limit_rpm: float | None = Field(
         None,
-        gt=0,
+        ge=MIN_RPM,
         le=30000,
         description="Rev limit [rpm]; default the curve's last point. Above the last point "
         "it is clipped to it, with a warning.",

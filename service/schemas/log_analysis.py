@@ -204,6 +204,16 @@ class LoggedShiftOut(ApiModel):
     model_shift_rpm: float | None = Field(
         description="The model's shift rpm for this gear change, with `engine` [rpm]."
     )
+    logged_rpm: list[float] | None = Field(
+        min_length=2,
+        max_length=2,
+        description="[lowest, highest] engine speed logged in the gear being left, up to "
+        "the shift [rpm]; null for a downshift.",
+    )
+    crossover_extrapolated: bool = Field(
+        description="True when the crossover lies outside `logged_rpm`: the fit was "
+        "extrapolated to rpm this gear never reached in the log, so it is an estimate."
+    )
 
 
 class LogAnalysisResponse(ApiModel):

@@ -2,11 +2,19 @@
 
 from __future__ import annotations
 
-from typing import Literal, Self
+from typing import Any, Literal, Self
 
 from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    DEFAULT_SHIFT_RULE,
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsField,
+    with_default_shift_criterion,
+)
 from service.schemas.examples import SHIFT_PLAN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.job import JobField
@@ -57,16 +65,22 @@ class ShiftPlanRequest(ApiModel):
         "gradeability and cruise rpm.",
     )
     launch: LaunchIn | None = Field(None, description="Clutch or converter (with `vehicle`).")
-    shift_criterion: Literal["tractive_force", "net_acceleration"] = Field(
-        "tractive_force",
+    shift_criterion: Literal["tractive_force", "net_acceleration"] | None = Field(
+        None,
         description="`tractive_force`: the wheel-force crossover; `net_acceleration` (needs "
-        "`vehicle`): road load and rotating inertia counted, which moves shifts earlier.",
+        "`vehicle`): road load and rotating inertia counted, which moves shifts earlier. "
+        + DEFAULT_SHIFT_RULE,
     )
     cruise_speeds: list[float] = Field(
         default_factory=list,
         max_length=10,
         description="Road speeds [km/h | mph] at which to report the rpm in every gear.",
     )
+
+    @model_validator(mode="before")
+    @classmethod
+    def _default_criterion(cls, data: Any) -> Any:
+        return with_default_shift_criterion(data)
 
     @model_validator(mode="after")
     def _needs_vehicle(self) -> Self:
@@ -87,6 +101,17 @@ class GearTableOut(ApiModel):
     wheel_torque: list[float] = Field(description="Torque at the driven wheels [N*m | lbf*ft].")
     tractive_force: list[float] = Field(description="Force at the contact patch [N | lbf].")
     wheel_power: list[float] = Field(description="Power at the wheels [kW | hp].")
+    engine_rpm: list[float] | None = Field(
+        None,
+        description="With a torque converter only: engine speed on each row [rpm], `rpm` then "
+        "being the gearbox input (turbine) speed; the wheel columns count the converter's "
+        "torque ratio.",
+    )
+    torque_ratio: list[float] | None = Field(
+        None,
+        description="With a torque converter only: its torque ratio at the speed ratio it "
+        "runs at on each row (1 when locked).",
+    )
 
 
 class GearOut(ApiModel):
@@ -107,16 +132,28 @@ class ShiftOut(ApiModel):
     to_gear: int
     shift_rpm: float = Field(description="Engine speed at the shift [rpm].")
     shift_speed: float = Field(description="Road speed at the shift [km/h | mph].")
-    reason: Literal["crossover", "rev_limit", "drag_limit"] = Field(
+    reason: Literal["crossover", "rev_limit", "drag_limit", "traction_limit"] = Field(
         description="`crossover`: the next gear's tractive force (or net acceleration) "
         "overtakes this gear's; `rev_limit`: it never does before the rev limit; "
-        "`drag_limit` (net-acceleration plans): this gear stops accelerating first."
+        "`drag_limit` (net-acceleration plans): this gear stops accelerating first; "
+        "`traction_limit` (net-acceleration plans): both gears are held at the tires' grip, "
+        "so the gear with the lighter rotating parts takes over as soon as it can."
     )
     rpm_after: float = Field(description="Engine speed right after the shift [rpm].")
     rpm_drop: float = Field(description="shift_rpm - rpm_after [rpm].")
     force_before: float = Field(description="Tractive force just before the shift [N | lbf].")
     force_after: float = Field(description="Tractive force just after the shift [N | lbf].")
-    crossings: int = Field(description="Force crossovers found in the gears' shared range.")
+    crossings: int = Field(
+        description="Points in the gears' shared range where the next gear overtakes."
+    )
+    intersections: int = Field(
+        description="How many times the two gears' curves intersect in the shared range, "
+        "either way (overtaking, or falling back)."
+    )
+    overtake_rpm: list[float] = Field(
+        description="Engine speed in this gear at each point where the next gear overtakes "
+        "[rpm]; empty when it never does."
+    )
     coincident_rpm: list[float] | None = Field(
         None,
         min_length=2,
@@ -179,9 +216,24 @@ class PerformanceOut(ApiModel):
     """What the described car does: top speed, gradeability, cruise rpm, grip."""
 
     top_speed: PlanTopSpeedOut
-    gradeability: list[float] = Field(description="Steepest steady climb per gear [%].")
+    gradeability: list[float] = Field(
+        description="Steepest steady climb per gear [%], 100*tan(theta) from the exact balance "
+        "W*(sin(theta) + fr*cos(theta)) + drag = drive force, with the driven tires' grip on "
+        "the slope (weight transfer from grade and drive force); never above 1143 % (85 deg)."
+    )
+    gradeability_speed: list[float] = Field(
+        description="Road speed at which each gear's gradeability is reached [km/h | mph]."
+    )
+    gradeability_limited_by: list[Literal["drive", "grip", "cap"]] = Field(
+        description="What sets each gear's gradeability: the drive force, the tires' grip on "
+        "the slope, or the 85 degree cap."
+    )
     cruise: list[CruiseOut]
-    traction_limit: float = Field(description="Traction-limited tractive force [N | lbf].")
+    traction_limit: float = Field(
+        description="Traction-limited tractive force on the road's grade [N | lbf]: Gillespie "
+        "ch. 2 with the rolling-resistance term of the load transfer, rolling resistance "
+        "taken at rest."
+    )
     force_crossover_rpm: list[float] = Field(
         description="Wheel-force crossover shift rpm per gear change, for comparison."
     )

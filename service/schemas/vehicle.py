@@ -6,6 +6,7 @@ from typing import Literal, Self
 
 from pydantic import Field, model_validator
 
+from core.vehicle import MIN_FRICTION_COEFFICIENT
 from service.schemas.common import ApiModel
 
 __all__ = ["AirIn", "ConverterIn", "InertiaIn", "LaunchIn", "RoadLoadIn", "VehicleIn"]
@@ -103,7 +104,10 @@ class VehicleIn(ApiModel):
         None, ge=0, le=1, description="All-wheel drive: share of torque to the front [-]."
     )
     friction_coefficient: float = Field(
-        1.0, gt=0, le=5, description="Peak tire-road friction coefficient [-]."
+        1.0,
+        ge=MIN_FRICTION_COEFFICIENT,
+        le=5,
+        description="Peak tire-road friction coefficient [-]; from 0.05 (glare ice).",
     )
     road_load: RoadLoadIn
     air: AirIn = Field(default_factory=AirIn)

@@ -260,3 +260,26 @@ def test_a_log_standing_still_is_reported_without_a_pass() -> None:
     result = analyse_pass(log, DRIVETRAIN, TIRE)
     assert (result.segments, result.shifts) == ((), ())
     assert "no_pass" in {n.code for n in result.notices}
+
+
+def test_a_crossover_beyond_the_rpm_logged_in_the_gear_is_flagged_with_that_range() -> None:
+    # the early pass shifts at 80 % of the simulator's crossover (tests/core/synthetic_pass),
+    # so every crossover lies above the highest rpm the gear reached: extrapolated, and the
+    # range logged tops out at the shift rpm (rpm from speed, as crossover_rpm)
+    _, result = analysed("early")
+    found = [s for s in result.shifts if s.crossover_rpm is not None]
+    assert found  # some crossovers lie beyond the search range: none to flag there
+    for s in found:
+        assert s.crossover_rpm is not None and s.logged_rpm is not None
+        assert s.crossover_rpm > s.logged_rpm[1]
+        assert s.crossover_extrapolated
+        assert_allclose(s.logged_rpm[1], s.rpm_before, rtol=0.01)
+
+
+def test_a_crossover_inside_the_rpm_logged_in_the_gear_is_not_flagged() -> None:
+    # the late pass shifts at the limiter, above the crossover: the crossover rpm was logged
+    _, result = analysed("late")
+    for s in result.shifts:
+        assert s.logged_rpm is not None and s.crossover_rpm is not None
+        assert s.logged_rpm[0] <= s.crossover_rpm <= s.logged_rpm[1]
+        assert not s.crossover_extrapolated

@@ -17,6 +17,7 @@ from core.curves import TorqueCurve, torque_curve_from_torque
 from core.drivetrain import make_drivetrain
 from core.milestones import time_at_distance, time_at_speed
 from core.performance import (
+    acceleration_shift_points,
     acceleration_shifts,
     cruise_rpm,
     gradeability_by_gear,
@@ -303,3 +304,22 @@ def test_optimal_shift_rpm_to_a_speed_never_returns_a_time_above_its_baseline() 
     t_finish = time_at_speed(run, finish)
     assert t_finish is not None
     assert_allclose(best.time_s, t_finish, rtol=1e-12)
+
+
+def test_a_shift_forced_because_both_gears_are_on_grip_gets_its_own_reason() -> None:
+    # Gillespie ch. 2: with both gears' drive force above the traction limit, each gear's net
+    # acceleration is (F_traction - R)/m_g, so the gear with the smaller equivalent mass
+    # (mass factor 1.04 + 0.0025*N^2, Gillespie) is quicker wherever it can run: the shift
+    # comes where the next gear reaches the curve, reason traction_limit, not a crossover
+    m = 1200.0
+    load = RoadLoad.from_constant_rolling(m, 0.6, 1.2, 0.012)
+    vehicle = Vehicle(m, load, GEOMETRY, DriveLayout.REAR, 0.3)
+    model = flat_model(vehicle, [3.0, 2.0, 1.3])
+    points = acceleration_shift_points(model)
+    for p in points:
+        assert p.reason is ShiftReason.TRACTION_LIMIT
+        assert p.force_before_n > model.traction_limit_n
+        assert p.force_after_n > model.traction_limit_n
+        assert (p.crossings, p.overtake_rpm) == (0, ())
+    # the next gear reaches the curve's first point (1000 rpm) at shift_rpm = 1000*G1/G2
+    assert_allclose(points[0].shift_rpm, 1000.0 * 3.0 / 2.0, rtol=1e-9)

@@ -15,6 +15,7 @@ from core import (
     CurveSource,
     Interpolation,
     ShiftReason,
+    best_shifts,
     make_drivetrain,
     shift_plan,
     tire_from_diameter,
@@ -150,3 +151,42 @@ def test_wide_gap_warns_when_engine_lands_below_curve() -> None:
     plan = shift_plan(curve, make_drivetrain([4.0, 1.5], 3.5), TIRE)
     assert plan.shifts[0].reason is ShiftReason.REV_LIMIT
     assert any(n.code == "gear_gap" for n in plan.notices)
+
+
+def test_intersections_count_both_ways_and_overtakes_are_the_falling_roots() -> None:
+    # closed form: with efforts whose difference is (n - 3000)*(n - 5000)/1e6, the curves
+    # intersect twice (roots of the quadratic); the next gear overtakes at 3000 only (the
+    # difference falls through zero there) and falls back behind at 5000
+    def efforts(n: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        nxt = np.full_like(n, 10.0)
+        return nxt + (n - 3000.0) * (n - 5000.0) / 1e6, nxt
+
+    def diff(_: int, n: float) -> float:
+        return (n - 3000.0) * (n - 5000.0) / 1e6
+
+    (choice,) = best_shifts(efforts, diff, [1500.0], [7000.0])
+    assert choice.intersections == 2
+    assert choice.crossings == 1
+    assert_allclose(choice.overtake_rpm, [3000.0], rtol=1e-9)
+
+
+def test_linear_curve_plan_reports_one_intersection_at_the_closed_form_crossover() -> None:
+    # closed form (REFERENCES.md): forces of G1 > G2 with T = T0 - c*n cross once, at
+    # n1 = (T0/c)*G1/(G1 + G2); the plan reports that as the single overtaking point
+    curve = torque_curve_from_torque(RPM, LINEAR, interpolation=Interpolation.LINEAR)
+    s = shift_plan(curve, make_drivetrain([3.2, 2.1], 3.73), TIRE).shifts[0]
+    expected = T0 / C * 3.2 / (3.2 + 2.1)
+    assert (s.crossings, s.intersections) == (1, 1)
+    assert_allclose(s.overtake_rpm, [expected], rtol=1e-6)
+
+
+def test_flat_torque_reports_no_intersection_and_no_overtake() -> None:
+    # flat torque: force ~ overall ratio, so the lower gear is stronger everywhere
+    curve = torque_curve_from_torque([1000.0, 4000.0, 7000.0], [300.0] * 3)
+    s = shift_plan(curve, make_drivetrain([3.0, 2.0], 3.5), TIRE).shifts[0]
+    assert (s.reason, s.crossings, s.intersections, s.overtake_rpm) == (
+        ShiftReason.REV_LIMIT,
+        0,
+        0,
+        (),
+    )

@@ -11,7 +11,9 @@ import pytest
 from numpy.testing import assert_allclose
 
 from core.errors import VehicleError
+from core.roadload import RoadLoad
 from core.traction import AxleGeometry, AxleLoads, DriveLayout, axle_loads, traction_limit_n
+from core.vehicle import Vehicle
 
 G = 9.80665
 
@@ -177,3 +179,66 @@ def test_invalid_traction_arguments_are_rejected(
     with pytest.raises(VehicleError, match=f"`{re.escape(parameter)}` must") as info:
         call()
     assert info.value.parameter == parameter
+
+
+# --- rolling-resistance term and grade (Gillespie ch. 2, eqs. 2-19 and 2-20) -------------
+
+FR = 0.015
+
+
+@pytest.mark.parametrize(
+    ("layout", "arm_kg", "sign", "denominator"),
+    [
+        pytest.param(
+            DriveLayout.REAR, REAR_KG, -1.0, 1.0 - MU * CG_HEIGHT_M / WHEELBASE_M, id="rear"
+        ),
+        pytest.param(
+            DriveLayout.FRONT, FRONT_KG, 1.0, 1.0 + MU * CG_HEIGHT_M / WHEELBASE_M, id="front"
+        ),
+    ],
+)
+def test_traction_limit_with_rolling_resistance_is_gillespie_eq_2_19_and_2_20(
+    layout: DriveLayout, arm_kg: float, sign: float, denominator: float
+) -> None:
+    # Gillespie ch. 2: RWD Fx = mu*W*(b - fr*h)/L / (1 - mu*h/L) (eq. 2-19), FWD
+    # Fx = mu*W*(c + fr*h)/L / (1 + mu*h/L) (eq. 2-20); b/L and c/L the static axle shares
+    weight = MASS_KG * G
+    arm = arm_kg / MASS_KG + sign * FR * CG_HEIGHT_M / WHEELBASE_M
+    expected = MU * weight * arm / denominator
+    limit = traction_limit_n(MASS_KG, EXAMPLE, MU, layout, rolling_resistance_n=FR * weight)
+    assert_allclose(limit, expected, rtol=1e-12)
+
+
+def test_traction_limit_on_a_grade_scales_with_the_normal_load() -> None:
+    # on a slope the weight's normal part W*cos(theta) carries the axles and the grade force
+    # joins the transfer at the CG height (Gillespie ch. 2 axle loads on a grade), so with the
+    # rolling resistance fr*W*cos(theta) the whole limit scales by cos(theta)
+    weight = MASS_KG * G
+    level = traction_limit_n(
+        MASS_KG, EXAMPLE, MU, DriveLayout.REAR, rolling_resistance_n=FR * weight
+    )
+    cos = math.cos(math.atan(0.2))
+    sloped = traction_limit_n(
+        MASS_KG,
+        EXAMPLE,
+        MU,
+        DriveLayout.REAR,
+        rolling_resistance_n=FR * weight * cos,
+        grade_percent=20.0,
+    )
+    assert_allclose(sloped, level * cos, rtol=1e-12)
+
+
+def test_vehicle_traction_limit_counts_its_rolling_resistance_at_rest() -> None:
+    # Gillespie eq. 2-19 with fr = 0.012 from the vehicle's own constant rolling coefficient
+    load = RoadLoad.from_constant_rolling(MASS_KG, 0.7, 1.2, 0.012)
+    vehicle = Vehicle(MASS_KG, load, EXAMPLE, DriveLayout.REAR, MU)
+    b_over_l = REAR_KG / MASS_KG
+    expected = (
+        MU
+        * MASS_KG
+        * G
+        * (b_over_l - 0.012 * CG_HEIGHT_M / WHEELBASE_M)
+        / (1.0 - MU * CG_HEIGHT_M / WHEELBASE_M)
+    )
+    assert_allclose(vehicle.traction_limit_n(), expected, rtol=1e-12)

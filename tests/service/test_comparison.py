@@ -86,7 +86,7 @@ def test_shorter_axle_keeps_the_shifts_and_shortens_every_gear_by_the_ratio(
 ) -> None:
     # closed form: road speed at a given rpm is inversely proportional to the overall ratio,
     # and the wheel-force crossover does not depend on the final drive (REFERENCES.md)
-    body = post(api, demo)
+    body = post(api, {**demo, "shift_criterion": "tractive_force"})
     base, axle = body["setups"][0], body["setups"][1]
     assert [s["shift_rpm"] for s in axle["shifts"]] == [s["shift_rpm"] for s in base["shifts"]]
     reach = [g["speed_at_rev_limit"] for g in axle["gears"]]

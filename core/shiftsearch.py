@@ -1,0 +1,150 @@
+"""The time-optimal shift search, seeded with every plan it could otherwise have used.
+
+The search minimises the simulated time to the finish over the shift rpms with
+``scipy.optimize.minimize`` (Powell, bounded) from the quickest of its seeds: the caller's
+plan, shifting at the rev limit, the wheel-force crossover and the net-acceleration plan.
+Every seed is timed first, so the answer is never slower than any of them, and the one
+that won (or ``"search"`` when the search improved on all of them) is reported.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+from scipy.optimize import minimize
+
+from core.milestones import time_at_distance, time_at_speed
+from core.simulate import DriveModel, RunResult, simulate_run
+
+__all__ = ["SEARCH_WON", "OptimalShifts", "search_shift_rpm"]
+
+FloatArray = NDArray[np.float64]
+SEARCH_WON = "search"
+"""``OptimalShifts.won_by`` when the search found shifts quicker than every seed."""
+_UNREACHED_S = 1e6
+
+
+@dataclass(frozen=True)
+class OptimalShifts:
+    """Shift rpms that minimise the time of a run.
+
+    Attributes
+    ----------
+    shift_rpm : ndarray, shape (g - 1,)
+        Best shift rpm per gear change [rpm].
+    time_s : float
+        Run time with them [s].
+    baseline_time_s : float
+        Run time with the first seed, the caller's plan [s].
+    evaluations : int
+        Simulated runs spent, seeds included.
+    won_by : str
+        Name of the seed the answer is, or ``SEARCH_WON``.
+    seeds : tuple of (str, float)
+        Each distinct seed and its run time [s], in the order tried.
+    """
+
+    shift_rpm: FloatArray
+    time_s: float
+    baseline_time_s: float
+    evaluations: int
+    won_by: str = "plan"
+    seeds: tuple[tuple[str, float], ...] = ()
+
+
+def search_shift_rpm(
+    model: DriveModel,
+    seeds: Sequence[tuple[str, ArrayLike]],
+    *,
+    start_speed_m_s: float,
+    rollout_m: float,
+    finish_distance_m: float | None,
+    finish_speed_m_s: float | None,
+    max_evaluations: int = 120,
+) -> OptimalShifts:
+    """Shift rpms minimising the time to the finish, never slower than any seed.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car.
+    seeds : sequence of (str, array_like of shape (g - 1,))
+        Named starting shift rpms, the caller's plan first; a seed equal to an earlier one
+        (after clipping to the search bounds) is not run again.
+    start_speed_m_s, rollout_m : float
+        As for the run [m/s, m].
+    finish_distance_m, finish_speed_m_s : float or None
+        The finish: a distance from the clock start [m], or a speed [m/s].
+    max_evaluations : int
+        Budget of simulated runs, seeds included.
+
+    Returns
+    -------
+    OptimalShifts
+    """
+    ratios = model.drivetrain.overall_ratios
+    step = ratios[1:] / ratios[:-1]
+    limit = model.rev_limit_rpm
+    lower = np.minimum(
+        np.maximum(model.curve.rpm_min / step, model.curve.rpm_min + 1.0), limit - 1.0
+    )
+    cover = (finish_distance_m or 0.0) + rollout_m
+    evaluations = 0
+
+    def timed(rpm: FloatArray) -> tuple[float, RunResult]:
+        nonlocal evaluations
+        evaluations += 1
+        run = simulate_run(
+            model,
+            rpm,
+            start_speed_m_s=start_speed_m_s,
+            cover_distance_m=cover,
+            cover_speed_m_s=finish_speed_m_s or 0.0,
+        )
+        if finish_distance_m is not None:
+            t_end = time_at_distance(run, cover)
+            t_start = time_at_distance(run, rollout_m) or 0.0
+        else:
+            t_end = time_at_speed(run, float(finish_speed_m_s or 0.0))
+            t_start = 0.0
+        return (_UNREACHED_S if t_end is None else t_end - t_start), run
+
+    tried: list[tuple[str, FloatArray, float, RunResult]] = []
+    for name, rpm in seeds:
+        x = np.clip(np.asarray(rpm, dtype=np.float64), lower, limit)
+        if any(np.array_equal(x, t[1]) for t in tried):
+            continue
+        time_s, run = timed(x)
+        tried.append((name, x, time_s, run))
+    baseline = tried[0][2]
+    won_by, x0, best_time, first = min(tried, key=lambda t: t[2])
+    report = tuple((t[0], t[2]) for t in tried)
+    # only the shifts made before the finish can change its time
+    finish_at = best_time + (time_at_distance(first, rollout_m) or 0.0)
+    active = np.array(
+        [k for k, s in enumerate(first.shifts) if s.time_s < finish_at], dtype=np.int64
+    )
+    budget = max_evaluations - evaluations
+    if active.size == 0 or budget <= 0:
+        return OptimalShifts(x0, best_time, baseline, evaluations, won_by, report)
+
+    def run_time(x: FloatArray) -> float:
+        rpm = x0.copy()
+        rpm[active] = np.clip(x, lower[active], limit)
+        return timed(rpm)[0]
+
+    res = minimize(
+        run_time,
+        x0[active],
+        method="Powell",
+        bounds=list(zip(lower[active].tolist(), [limit] * active.size, strict=True)),
+        options={"maxfev": budget, "xtol": 1e-3, "ftol": 1e-6},
+    )
+    if float(res.fun) < best_time:
+        best = x0.copy()
+        best[active] = np.clip(np.asarray(res.x, dtype=np.float64), lower[active], limit)
+        return OptimalShifts(best, float(res.fun), baseline, evaluations, SEARCH_WON, report)
+    return OptimalShifts(x0, best_time, baseline, evaluations, won_by, report)
