@@ -199,7 +199,7 @@ def chassis_report(doc: dict[str, Any], units: UnitSystem) -> Report:
                 fmt(g["factor"], 4),
                 fmt(g["peak_wheel_power"], 1),
             )
-            for g in doc["gears"]
+            for g in doc["gears"] or ()
         ),
     )
     where = "the wheels" if doc["measured_at"] == "wheels" else "the engine"
@@ -226,7 +226,7 @@ def chassis_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         "Chassis dyno conversion",
         doc,
         units,
-        sections=(Section("Conversion", facts, (curve, gears)),),
+        sections=(Section("Conversion", facts, (curve, gears) if gears.rows else (curve,)),),
         key_figures=figures,
         cautions=MEASUREMENT_CAUTIONS,
     )
