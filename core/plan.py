@@ -231,6 +231,12 @@ def shift_plan(
             return curve.torque_at(n)
         return converter_input(converter, curve, limit, gear, n).torque_nm
 
+    def one_torque(gear: int, n: float) -> float:
+        # without a converter the scalar path: the same arithmetic, none of the array setup
+        if converter is None:
+            return torque(n)
+        return float(input_torque(gear, np.array([n]))[0])
+
     def engine_rpm(gear: int, n: float) -> float:
         if converter is None:
             return n
@@ -309,8 +315,8 @@ def shift_plan(
                 rpm_after=after,
                 rpm_drop=n_s - after,
                 reason=choice.reason,
-                force_before_n=kc[i] * float(input_torque(i, np.array([turbine]))[0]),
-                force_after_n=kn[i] * float(input_torque(i + 1, np.array([turbine * q]))[0]),
+                force_before_n=kc[i] * one_torque(i, turbine),
+                force_after_n=kn[i] * one_torque(i + 1, turbine * q),
                 crossings=choice.crossings,
                 coincident_rpm=choice.coincident_rpm,
                 intersections=choice.intersections,
