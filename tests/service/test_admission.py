@@ -151,7 +151,9 @@ def test_no_request_waits_past_the_budget(
     anyio.run(go)
     assert answers["first"].status_code == 200
     assert answers["second"].status_code == 503
-    assert "within 0.2 s" in answers["second"].json()["detail"]
+    # refused by the budget either way: after waiting for it ("within 0.2 s"), or at once
+    # when a loaded machine has already spent it reading the body ("would exceed 0.2 s")
+    assert "0.2 s" in answers["second"].json()["detail"]
     assert app.state.admission.waiting == 0 and app.state.admission.computing == 0
 
 
