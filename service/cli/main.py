@@ -32,9 +32,9 @@ _EXAMPLES = {
     "sweep": "gearwork sweep tests/data/demo_sweep_us.json --format json",
     "spacing": "gearwork spacing tests/data/demo_gear_spacing_us.json",
     "speedometer": "gearwork speedometer tests/data/demo_speedometer_us.json",
-    "dyno-correct": "gearwork dyno-correct tests/data/demo_dyno_correction_us.json",
+    "dyno-correct": "gearwork dyno-correct tests/data/demo_dyno_correction_metric.json",
     "import": "gearwork import tests/data/demo_dyno_export.csv -p units=us",
-    "log-check": "gearwork log-check tests/data/demo_log_request_metric.json",
+    "log-check": "gearwork log-check tests/data/demo_log_text_request_metric.json",
     "chassis": "gearwork chassis tests/data/demo_chassis_metric.json",
 }
 
@@ -92,6 +92,7 @@ def _command(ep: Endpoint) -> click.Command:
 
     @click.argument("source", metavar="FILE", default="-")
     @click.option(
+        "-f",
         "--format",
         "fmt",
         type=click.Choice(ep.formats),

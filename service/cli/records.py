@@ -125,7 +125,8 @@ def _parse(line: bytes, number: int) -> tuple[str, Endpoint, Any, dict[str, str]
     try:
         item = orjson.loads(line)
     except orjson.JSONDecodeError as exc:
-        raise _LineError(400, f"The line is not valid JSON: {exc.msg}.", "line", fallback) from None
+        detail = f"The line is not valid JSON: {exc.msg}."
+        raise _LineError(400, detail, "line", fallback) from None
     if not isinstance(item, dict):
         raise _LineError(422, "The line must be a JSON object.", "line", fallback)
     ident = item.get("id")
