@@ -12,6 +12,7 @@ import csv
 import io
 import os
 import sys
+import threading
 import time
 from collections import Counter, deque
 from collections.abc import Callable, Iterable, Iterator
@@ -198,8 +199,14 @@ def _preload() -> None:
 
 
 def _local_pool(jobs: int) -> Executor:
-    ctx = get_context("forkserver")
-    ctx.set_forkserver_preload(["service.cli.records"])
+    """Worker processes forked from this one when it runs a single thread (they inherit
+    the imported application), else from a fork server that imported it once."""
+    if threading.active_count() == 1:
+        _preload()
+        ctx = get_context("fork")
+    else:
+        ctx = get_context("forkserver")
+        ctx.set_forkserver_preload(["service.app", "service.cli.records"])
     return ProcessPoolExecutor(max_workers=jobs, mp_context=ctx, initializer=_preload)
 
 

@@ -13,7 +13,6 @@ from __future__ import annotations
 import asyncio
 import inspect
 import json
-import threading
 from collections.abc import Callable, Coroutine, Iterator, Mapping
 from dataclasses import dataclass, field
 from functools import cache
@@ -232,16 +231,18 @@ async def _problem(request: Request, exc: Exception) -> Response:
     return await result if inspect.isawaitable(result) else result
 
 
-_LOCAL = threading.local()
-
-
-def _run(coro: Coroutine[Any, Any, Response]) -> Response:
-    """Drive a handler coroutine on this thread's own event loop (kept between calls)."""
-    loop: asyncio.AbstractEventLoop | None = getattr(_LOCAL, "loop", None)
-    if loop is None or loop.is_closed():
-        loop = asyncio.new_event_loop()
-        _LOCAL.loop = loop
-    return loop.run_until_complete(coro)
+def _run(make: Callable[[], Coroutine[Any, Any, Response]]) -> Response:
+    """Run a handler coroutine to its end: stepped directly when it never suspends (the
+    JSON endpoints compute without awaiting anything), else on a fresh event loop."""
+    coro = make()
+    try:
+        coro.send(None)
+    except StopIteration as done:
+        response: Response = done.value
+        return response
+    coro.close()
+    with asyncio.Runner() as runner:
+        return runner.run(make())
 
 
 def _decode(raw: bytes) -> Any:
@@ -316,6 +317,6 @@ def call_endpoint(
         path = ep.chart or ep.path
     else:
         path = ep.path
-    response = _run(_answer(ep, path, data, raw, fmt, query))
+    response = _run(lambda: _answer(ep, path, data, raw, fmt, query))
     media = (response.media_type or "").split(";")[0]
     return Answer(response.status_code, media, bytes(response.body))
