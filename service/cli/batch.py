@@ -203,11 +203,10 @@ def _local_pool(jobs: int) -> Executor:
     the imported application), else from a fork server that imported it once."""
     if threading.active_count() == 1:
         _preload()
-        ctx = get_context("fork")
-    else:
-        ctx = get_context("forkserver")
-        ctx.set_forkserver_preload(["service.app", "service.cli.records"])
-    return ProcessPoolExecutor(max_workers=jobs, mp_context=ctx, initializer=_preload)
+        return ProcessPoolExecutor(jobs, mp_context=get_context("fork"), initializer=_preload)
+    server = get_context("forkserver")
+    server.set_forkserver_preload(["service.app", "service.cli.records"])
+    return ProcessPoolExecutor(jobs, mp_context=server, initializer=_preload)
 
 
 def count_lines(source: Path) -> int:
