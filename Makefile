@@ -39,6 +39,7 @@ bench: $(STAMP)  ## benchmarks: core timings and served throughput against /heal
 	$(BIN)/python -m bench.shift_plan
 	$(BIN)/python -m bench.worst_case
 	$(BIN)/python -m bench.load
+	$(BIN)/python -m bench.batch --runs $${BATCH_RUNS:-10000}
 
 openapi: $(STAMP)  ## rewrite openapi/openapi.json from the app
 	$(BIN)/python -m scripts.write_openapi

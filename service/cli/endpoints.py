@@ -309,8 +309,8 @@ def call_endpoint(
     query = dict(query or {})
     if isinstance(body, bytes | str):
         raw, data = (body.encode() if isinstance(body, str) else body), None
-    else:
-        raw, data = orjson.dumps(body), body
+    else:  # already parsed: only a raw-text endpoint reads the body bytes
+        raw, data = (orjson.dumps(body) if ep.raw_body else b""), body
     if fmt in {"html", "pdf"} or (fmt == "text" and ep.report is not None):
         path = ep.report or ep.path
     elif fmt in {"svg", "png"}:
