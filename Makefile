@@ -14,7 +14,7 @@ $(STAMP): pyproject.toml constraints.txt
 	touch $(STAMP)
 
 serve: $(STAMP)  ## run the service on 127.0.0.1:8000 (GEARWORK_HOST / _PORT / _WORKERS)
-	$(BIN)/python -m service
+	$(BIN)/gearwork serve
 
 lint: $(STAMP)
 	$(BIN)/ruff check $(SRC)

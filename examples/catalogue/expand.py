@@ -31,6 +31,11 @@ def vehicles() -> list[dict[str, str]]:
     return list(csv.DictReader(_rows("vehicles.csv")))
 
 
+def stocked_ratios() -> list[float]:
+    """The stocked ring-and-pinion ratios."""
+    return [float(r) for r in _rows("ratios.txt")]
+
+
 def curve(peak_nm: float, peak_rpm: float, limit_rpm: float) -> dict[str, list[float]]:
     """An invented torque shape: rises to the peak, falls to 78 % of it at the limit."""
     rpm = [1000.0 + 500.0 * i for i in range(int((limit_rpm - 1000.0) // 500.0) + 1)]
@@ -98,7 +103,7 @@ def bodies(car: dict[str, str], ratio: float, tire: str) -> tuple[dict[str, Any]
 
 def lines(limit: int | None) -> Iterator[str]:
     """The batch lines, run then cruise for each vehicle, ratio and tire."""
-    ratios = [float(r) for r in _rows("ratios.txt")]
+    ratios = stocked_ratios()
     tires = _rows("tires.txt")
     for car in vehicles()[:limit]:
         for ratio in ratios:

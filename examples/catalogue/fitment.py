@@ -15,7 +15,7 @@ import csv
 from collections import defaultdict
 from pathlib import Path
 
-from expand import vehicles
+from expand import stocked_ratios, vehicles
 
 COLUMNS = (
     "finish.elapsed,finish.trap_speed,speeds[0].elapsed,top_speed.speed,"
@@ -41,9 +41,14 @@ def main() -> None:
             figures[(code, tire, ratio)].update(
                 {k: v for k, v in row.items() if v and k not in {"id", "endpoint", "status"}}
             )
+    answered: dict[tuple[str, str], int] = defaultdict(int)
+    for (code, tire, _), f in figures.items():
+        if "finish.elapsed" in f and "performance.cruise[0].rpm[-1]" in f:
+            answered[(code, tire)] += 1
+    stocked = len(stocked_ratios())
     best: dict[tuple[str, str], tuple[float, str, dict[str, str]]] = {}
     for (code, tire, ratio), f in figures.items():
-        if "finish.elapsed" not in f or "performance.cruise[0].rpm[-1]" not in f:
+        if answered[(code, tire)] < stocked:  # not every stocked ratio answered (yet)
             continue
         cruise = float(f["performance.cruise[0].rpm[-1]"])
         over = max(0.0, cruise - args.max_cruise_rpm)
