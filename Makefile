@@ -36,7 +36,9 @@ bench: $(STAMP)  ## benchmarks: core timings and served throughput against /heal
 	$(BIN)/python -m bench.final_drive_sweep
 	$(BIN)/python -m bench.charts
 	$(BIN)/python -m bench.log_analysis
+	$(BIN)/python -m bench.imports
 	$(BIN)/python -m bench.shift_plan
+	$(BIN)/python -m bench.growth
 	$(BIN)/python -m bench.worst_case
 	$(BIN)/python -m bench.load
 	$(BIN)/python -m bench.batch --runs $${BATCH_RUNS:-10000}

@@ -1,19 +1,23 @@
-"""Chart and report rendering benchmark: matplotlib import, first render, steady renders.
+"""Chart and report rendering benchmark: matplotlib import, first render, steady renders,
+and each chart's cost against the computed shift plan it draws, measured side by side.
 
 Run with ``python -m bench.charts``. Figures are printed, never asserted: the machine is
-shared, so each line gives the median and the 99th percentile of repeated renders.
+shared, so each line gives the median and the 99th percentile of repeated renders, and the
+ratios come from calls interleaved round by round in this run, each request with its own
+reference (as a caller's page sends, so nothing could be answered from a cache).
 """
 
 from __future__ import annotations
 
 import functools
+import itertools
 import json
 import subprocess
 import sys
 import time
 from pathlib import Path
 
-from bench.common import time_call
+from bench.common import ratio_line, side_by_side, time_call
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 RUNS = 40
@@ -72,6 +76,54 @@ def main() -> None:
     for fmt in ChartFormat:
         timing = time_call(functools.partial(render_chart, speed, fmt), runs=RUNS, warmup=3)
         print(f"   {fmt.name:<14}", timing)
+
+    from service.responses import FastJSONResponse
+    from service.summary import shift_plan_summary
+
+    numbers = itertools.count()
+
+    def fresh() -> ShiftPlanRequest:
+        return coupe.model_copy(update={"reference": f"BENCH-{next(numbers)}"})
+
+    def plan_request() -> object:
+        done = compute_shift_plan(fresh())
+        text = shift_plan_summary(
+            done.plan, done.curve, done.drivetrain, done.tire, done.body.units, done.body.reference
+        )
+        return FastJSONResponse({**done.document, "summary": text}).body
+
+    def chart_request(fmt: ChartFormat) -> bytes:
+        return render_chart(tractive_force_chart(compute_shift_plan(fresh())), fmt)
+
+    # SVG and PNG each against the plan in a run of their own: matplotlib's heap churn
+    # would otherwise land in the SVG's timings as collections of the garbage it left
+    got = side_by_side(
+        {"plan": plan_request, "svg": functools.partial(chart_request, ChartFormat.SVG)},
+        rounds=7,
+        calls=5,
+    )
+    png = side_by_side(
+        {"plan": plan_request, "png": functools.partial(chart_request, ChartFormat.PNG)},
+        rounds=5,
+        calls=3,
+    )
+    print("demo coupe, each request computed: plan JSON vs the chart of the same plan")
+    print("   shift plan (compute, summary, JSON)", got["plan"])
+    print("   SVG chart (compute, draw)          ", got["svg"])
+    print("   shift plan, in the PNG's run       ", png["plan"])
+    print("   PNG chart (compute, draw)          ", png["png"])
+    print(
+        ratio_line(
+            "SVG chart / computed shift plan", got["svg"].median / got["plan"].median, "<= 4"
+        )
+    )
+    print(
+        ratio_line(
+            "PNG chart / computed shift plan",
+            png["png"].median / png["plan"].median,
+            "as low as SVG's",
+        )
+    )
 
     report = shift_plan_report(plan)
     run_report = acceleration_run_report(run)

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import dataclasses
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -26,7 +27,9 @@ from numpy.typing import ArrayLike, NDArray
 from core.curves import RPM_TO_RAD_S
 from core.drivetrain import MAX_RATIO
 from core.errors import DrivetrainError
-from core.simulate import DriveModel
+
+if TYPE_CHECKING:
+    from core.simulate import DriveModel
 
 __all__ = [
     "BatchTopSpeed",

@@ -1,14 +1,11 @@
 """Standing-start runs of one car with many final drive ratios, integrated together and
 timed like a strip.
 
-:func:`batch_runs` follows :func:`core.simulate.simulate_run` for every candidate final drive
-at once: in each gear every still-running candidate gets a 241-point speed grid, a row of
-one (c, 241) array, whose net acceleration comes from one call of
-:func:`core.batchdrive.batch_acceleration`; time and distance follow by the trapezoid rule
-along the rows. A row is cut where its engine reaches the shift rpm or its acceleration
-falls to ``MIN_ACCELERATION`` and padded to the common width with copies of its new last
-point, which add nothing to the integrals. All candidates start from rest in first gear and
-change gear together, so the loop runs once per gear, not once per candidate.
+:func:`batch_runs` hands every candidate final drive to the one integrator of runs
+(:func:`core.integrator.integrate_runs`) as a row: in each gear every still-running
+candidate gets its speed grid, one row of a (c, n) array, so the loop runs once per gear,
+not once per candidate, and a single run (:func:`core.simulate.simulate_run`) is the same
+integration with one row.
 
 The traces are not kept: :class:`core.batchtiming.TraceProbes` reads each block as it is
 made, for the strip timing :func:`core.runreport.run_report` gives (the clock starts after
@@ -24,13 +21,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from core.batchdrive import (
-    batch_acceleration,
-    candidate_masses,
-    checked_final_drives,
-    overall_ratios,
-    take_rows,
-)
+from core.batchdrive import candidate_masses, checked_final_drives, overall_ratios
 from core.batchtiming import (
     BatchTimedDistance,
     BatchTimedSpeed,
@@ -40,19 +31,12 @@ from core.batchtiming import (
     timed_distances,
     timed_speeds,
 )
-from core.curves import RPM_TO_RAD_S
 from core.errors import SimulationError
+from core.integrator import MAX_SPEED_M_S, GearBlock, RunStart, ShiftBlock, integrate_runs
 from core.milestones import FOOT_M
-from core.simulate import (
-    MAX_SPEED_M_S,
-    MIN_ACCELERATION,
-    POINTS_PER_GEAR,
-    DriveModel,
-    checked_shift_rpm,
-)
-from core.vehicle import Coupling
+from core.simulate import DriveModel, checked_shift_rpm, default_start_gear
 
-__all__ = ["BatchRuns", "batch_runs"]
+__all__ = ["BatchRuns", "batch_finish_times", "batch_runs"]
 
 FloatArray = NDArray[np.float64]
 BoolArray = NDArray[np.bool_]
@@ -75,9 +59,10 @@ class BatchRuns:
         False where the car cannot move off (road load exceeds the drive at rest); such a
         candidate's timings are NaN.
     held_speed_m_s : ndarray, shape (c,)
-        Speed the car settled at (drag or rev limiter), NaN where it did not [m/s].
+        Drag-limited speed the run approaches, or the speed the rev limiter holds it at
+        [m/s]; NaN where neither happened within the run.
     held_by : tuple of str or None, length c
-        ``"drag"`` or ``"rev_limit"`` where the car settled.
+        ``"drag"`` or ``"rev_limit"`` accordingly.
     shift_rpm : ndarray, shape (g - 1,)
         Shift rpm of each gear change [rpm].
     shift_time_s, shift_speed_m_s : ndarray, shape (c, g - 1)
@@ -117,104 +102,32 @@ class BatchRuns:
         raise KeyError(name)
 
 
-def _cut(arrays: list[FloatArray], at: IntArray, rows: BoolArray, ends: list[FloatArray]) -> None:
-    """In rows ``rows`` set column ``at`` and every later one to the end value: the row's
-    new last point and its padding."""
-    cols = np.arange(arrays[0].shape[1])
-    mask = rows[:, None] & (cols[None, :] >= at[:, None])
-    for arr, end in zip(arrays, ends, strict=True):
-        np.copyto(arr, np.broadcast_to(end[:, None], arr.shape), where=mask)
+class _Probing:
+    """A :class:`core.integrator.RunSink` feeding the strip timers, recording shifts."""
 
+    def __init__(self, probes: TraceProbes, count: int, gears: int) -> None:
+        self.probes = probes
+        self.events = {k: np.full((count, gears - 1), np.nan) for k in ("t", "v", "n0", "n1")}
 
-def _with_launch_lock(
-    model: DriveModel, grid: FloatArray, ratio: FloatArray
-) -> tuple[FloatArray, IntArray]:
-    """Each row with the speed where the slipping clutch locks added, as ``np.union1d``
-    does; rows without it get a copy of their last point. Returns the grid and the number
-    of real points of each row."""
-    points = grid.shape[1]
-    v_lock = model.launch_rpm * RPM_TO_RAD_S * model.tire.rolling_radius_m / ratio
-    inside = (grid[:, 0] < v_lock) & (v_lock < grid[:, -1])
-    inside &= ~np.any(grid == v_lock[:, None], axis=1)
-    pos = np.where(inside, np.sum(grid < v_lock[:, None], axis=1), points)
-    cols = np.arange(points + 1)[None, :]
-    src = np.clip(np.where(cols < pos[:, None], cols, cols - 1), 0, points - 1)
-    out = np.take_along_axis(grid, src, axis=1)
-    out[np.flatnonzero(inside), pos[inside]] = v_lock[inside]
-    return out, np.where(inside, points + 1, points).astype(np.int64)
+    def gear(self, block: GearBlock) -> None:
+        self.probes.add(
+            block.rows, block.time_s, block.speed_m_s, block.distance_m, block.acceleration_m_s2
+        )
 
-
-def _cumulative_trapezoid(y: FloatArray, step: FloatArray) -> FloatArray:
-    """``scipy.integrate.cumulative_trapezoid(y, x, axis=1, initial=0)`` with the steps of
-    ``x`` given: the same sums in the same order."""
-    out = np.zeros(y.shape)
-    np.cumsum(step * (y[:, 1:] + y[:, :-1]) / 2.0, axis=1, out=out[:, 1:])
-    return out
-
-
-@dataclass(frozen=True)
-class _Segment:
-    """One gear of the still-running candidates: the grid and its outcome per row."""
-
-    grid: FloatArray
-    rpm: FloatArray
-    time_s: FloatArray
-    distance_m: FloatArray
-    stuck: BoolArray  # no acceleration on entry: held at the entry speed (or cannot move)
-    stop: BoolArray  # acceleration fell to the floor within the gear: held there
-    v_top: FloatArray
-
-
-def _segment(
-    model: DriveModel,
-    g: int,
-    v_in: FloatArray,
-    v_top: FloatArray,
-    ratio: FloatArray,
-    masses: tuple[FloatArray, FloatArray],
-    shift: float | None,
-    start: tuple[FloatArray, FloatArray],
-) -> _Segment:
-    """Integrate gear index ``g`` for the rows given, as one pass of ``simulate_run``."""
-    launching = g == 0
-    grid = np.linspace(v_in, np.minimum(v_top, MAX_SPEED_M_S), POINTS_PER_GEAR, axis=-1)
-    valid = np.full(v_in.size, POINTS_PER_GEAR, dtype=np.int64)
-    if launching and model.launch.coupling is Coupling.CLUTCH:
-        grid, valid = _with_launch_lock(model, grid, ratio)
-    a, rpm = batch_acceleration(model, g, grid, ratio, masses, launching)
-    v_top = v_top.copy()
-    if shift is not None:
-        # leave the gear when the engine reaches the shift rpm
-        due = rpm >= shift * (1.0 - 1e-9)
-        k = np.argmax(due, axis=1)
-        cut = due.any(axis=1) & (k > 0) & (k < valid - 1)
-        if cut.any():
-            km = np.maximum(k - 1, 0)
-            r0, r1 = take_rows(rpm, km), take_rows(rpm, k)
-            frac = np.where(cut, (shift - r0) / np.where(cut, r1 - r0, 1.0), 0.0)
-            v_cut = take_rows(grid, km) + frac * (take_rows(grid, k) - take_rows(grid, km))
-            a_cut = take_rows(a, km) + frac * (take_rows(a, k) - take_rows(a, km))
-            v_top = np.where(cut, v_cut, v_top)
-            _cut([grid, a, rpm], k, cut, [v_cut, a_cut, np.full(v_in.size, shift)])
-    weak = a < MIN_ACCELERATION
-    kw = np.argmax(weak, axis=1)
-    stuck = weak.any(axis=1) & (kw == 0)
-    stop = weak.any(axis=1) & (kw > 0)
-    if stop.any():
-        # speed where the acceleration falls to the floor, by linear interpolation
-        km = np.maximum(kw - 1, 0)
-        a0, a1 = take_rows(a, km), take_rows(a, kw)
-        frac = np.where(stop, (a0 - MIN_ACCELERATION) / np.where(stop, a0 - a1, 1.0), 0.0)
-        v_stop = take_rows(grid, km) + frac * (take_rows(grid, kw) - take_rows(grid, km))
-        n_stop = take_rows(rpm, km) + frac * (take_rows(rpm, kw) - take_rows(rpm, km))
-        keep = np.sum(grid < v_stop[:, None], axis=1)
-        floor = np.full(v_in.size, MIN_ACCELERATION)
-        _cut([grid, a, rpm], keep, stop, [v_stop, floor, n_stop])
-    inv = 1.0 / (np.where(stuck[:, None], 1.0, a) if stuck.any() else a)
-    step = np.diff(grid, axis=1)
-    t = start[0][:, None] + _cumulative_trapezoid(inv, step)
-    x = start[1][:, None] + _cumulative_trapezoid(grid * inv, step)
-    return _Segment(grid, rpm, t, x, stuck, stop, v_top)
+    def shift(self, block: ShiftBlock) -> None:
+        rows, g = block.rows, block.gear
+        self.events["t"][rows, g] = block.time_s
+        self.events["v"][rows, g] = block.speed_m_s
+        self.events["n0"][rows, g] = block.rpm_before
+        self.events["n1"][rows, g] = np.maximum(block.rpm_after, 0.0)
+        if np.any(block.end_time_s > block.time_s):
+            self.probes.add(
+                rows,
+                block.end_time_s[:, None],
+                block.end_speed_m_s[:, None],
+                block.end_distance_m[:, None],
+                -block.deceleration_m_s2[:, None],
+            )
 
 
 def batch_runs(
@@ -268,103 +181,91 @@ def batch_runs(
     for name, values in (("distances", lengths), ("speeds", rates)):
         if not all(math.isfinite(v) and v >= 0.0 for v in values):
             raise SimulationError(f"`{name}` must be finite and >= 0", parameter=name)
-    gears, count, r = model.drivetrain.gear_count, f.size, model.tire.rolling_radius_m
+    count = f.size
     cover_distance_m = max(lengths[1:], default=0.0) + rollout_m
     target_v = min(max(rates, default=0.0), MAX_SPEED_M_S)
     probes = TraceProbes(count, probe_distances(rollout_m, distances), probe_speeds(speeds))
-    overall = overall_ratios(model, f)
-    mass, decoupled = candidate_masses(model, f)
-    shift_speed = np.append(shifts, model.rev_limit_rpm) * RPM_TO_RAD_S * r / overall
-    ts = model.launch.shift_time_s
-    active, moved = np.ones(count, dtype=np.bool_), np.ones(count, dtype=np.bool_)
-    held = np.full(count, np.nan)
-    held_by: list[str | None] = [None] * count
-    events = {k: np.full((count, gears - 1), np.nan) for k in ("t", "v", "n0", "n1")}
-    left_at_once = np.zeros(count, dtype=np.int64)
-    v_in = np.zeros(count)
-    last_t, last_x = probes.last[0], probes.last[2]
-
-    def settle(rows: IntArray, speeds: FloatArray, how: list[str]) -> None:
-        held[rows] = speeds
-        for c, h in zip(rows.tolist(), how, strict=True):
-            held_by[c] = h
-
-    for g in range(gears):
-        idx = np.flatnonzero(active)
-        if idx.size == 0:
-            break
-        vin = v_in[idx]
-        v_top = shift_speed[idx, g]
-        # a gear entered above its own shift speed is left at once
-        skip = vin >= np.minimum(v_top, MAX_SPEED_M_S) if g < gears - 1 else vin < 0.0
-        left_at_once[idx[skip]] += 1
-        v_out = vin.copy()
-        n_out = vin * overall[idx, g] / (r * RPM_TO_RAD_S)
-        shifting = skip.copy()
-        s = np.flatnonzero(~skip)
-        if s.size:
-            rows = idx[s]
-            seg = _segment(
-                model,
-                g,
-                vin[s],
-                v_top[s],
-                overall[rows, g],
-                (mass[rows, g], decoupled[rows]),
-                float(shifts[g]) if g < gears - 1 else None,
-                (last_t[rows], last_x[rows]),
-            )
-            if g == 0:
-                moved[rows[seg.stuck]] = False
-            else:
-                settle(rows[seg.stuck], vin[s][seg.stuck], ["drag"] * int(seg.stuck.sum()))
-            go = ~seg.stuck
-            probes.add(rows[go], seg.time_s[go], seg.grid[go], seg.distance_m[go])
-            end_v, end_x = seg.grid[:, -1], seg.distance_m[:, -1]
-            limit = end_v >= seg.v_top * (1 - 1e-6)
-            how = ["rev_limit" if lim else "drag" for lim in limit[seg.stop].tolist()]
-            settle(rows[seg.stop], end_v[seg.stop], how)
-            done = seg.stuck | seg.stop
-            tops = ~done & ((g == gears - 1) | (end_v >= MAX_SPEED_M_S))
-            settle(rows[tops], end_v[tops], ["rev_limit"] * int(tops.sum()))
-            finished = ~done & ~tops & (end_x >= cover_distance_m) & (end_v >= target_v)
-            active[rows[done | tops | finished]] = False
-            v_out[s], n_out[s] = end_v, seg.rpm[:, -1]
-            shifting[s] = ~(done | tops | finished)
-        if not shifting.any():
-            continue
-        # the shift: no drive for shift_time_s, slowing at the road-load deceleration
-        rows, vo = idx[shifting], v_out[shifting]
-        t0, x0 = last_t[rows], last_x[rows]
-        decel = model.vehicle.road_load.force_n(vo) / model.vehicle.mass_kg
-        v_after = np.maximum(vo - decel * ts, 0.0)
-        n_after = v_after * overall[rows, g + 1] / (r * RPM_TO_RAD_S)
-        events["t"][rows, g] = t0
-        events["v"][rows, g] = vo
-        events["n0"][rows, g] = n_out[shifting]
-        events["n1"][rows, g] = np.maximum(n_after, 0.0)
-        if ts > 0.0:
-            x_after = x0 + 0.5 * (vo + v_after) * ts
-            probes.add(rows, (t0 + ts)[:, None], v_after[:, None], x_after[:, None])
-        v_in[rows] = v_after
-
-    hold = np.flatnonzero(np.isfinite(held) & (last_x < cover_distance_m))
-    if hold.size:
-        # hold the settled speed for the rest of the distance asked for
-        extra_t = (cover_distance_m - last_x[hold]) / np.maximum(held[hold], 1e-9)
-        end = np.full((hold.size, 1), cover_distance_m)
-        probes.add(hold, (last_t[hold] + extra_t)[:, None], held[hold][:, None], end)
+    sink = _Probing(probes, count, model.drivetrain.gear_count)
+    ends = integrate_runs(
+        model,
+        overall_ratios(model, f),
+        candidate_masses(model, f),
+        shifts,
+        RunStart(0.0, 0, cover_distance_m, target_v),
+        sink,
+    )
+    moved = ends.moved
     return BatchRuns(
         final_drive_ratio=f,
         distances=timed_distances(probes, distances, moved),
         speeds=timed_speeds(probes, speeds, moved),
         moved=moved,
-        held_speed_m_s=held,
-        held_by=tuple(held_by),
+        held_speed_m_s=ends.settled_m_s,
+        held_by=ends.settled_by,
         shift_rpm=shifts,
-        shift_time_s=events["t"],
-        shift_speed_m_s=events["v"],
-        rpm_before=events["n0"],
-        rpm_after=events["n1"],
-        gears_left_at_once=left_at_once,
+        shift_time_s=sink.events["t"],
+        shift_speed_m_s=sink.events["v"],
+        rpm_before=sink.events["n0"],
+        rpm_after=sink.events["n1"],
+        gears_left_at_once=ends.left_at_once.sum(axis=1).astype(np.int64),
     )
+
+
+def batch_finish_times(
+    model: DriveModel,
+    shift_rpm: ArrayLike,
+    *,
+    start_speed_m_s: float,
+    rollout_m: float,
+    finish_distance_m: float | None,
+    finish_speed_m_s: float | None,
+) -> FloatArray:
+    """Time to the finish of one car with each row of shift rpms, all run together.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car.
+    shift_rpm : array_like, shape (k, g - 1)
+        One row of shift rpms per run [rpm], each checked as for a single run.
+    start_speed_m_s : float
+        0 for a standing start, else a rolling start in the default start gear of each
+        row [m/s].
+    rollout_m : float
+        Distance rolled before the clock starts on a standing start [m].
+    finish_distance_m, finish_speed_m_s : float or None
+        The finish: a distance from the clock start [m], or a speed [m/s].
+
+    Returns
+    -------
+    ndarray, shape (k,)
+        Elapsed time [s] as :func:`core.runreport.run_report` times the finish (a speed
+        from the start of the run); NaN where the run does not get there or cannot move.
+    """
+    rows = np.atleast_2d(np.asarray(shift_rpm, dtype=np.float64))
+    shifts = np.array([checked_shift_rpm(model, r) for r in rows]).reshape(rows.shape)
+    k = rows.shape[0]
+    rollout = rollout_m if start_speed_m_s == 0.0 else 0.0
+    distances = [] if finish_distance_m is None else [("finish", finish_distance_m, False)]
+    speeds = [] if finish_speed_m_s is None else [("finish", start_speed_m_s, finish_speed_m_s)]
+    out = np.full(k, np.nan)
+    starts = np.array([default_start_gear(model, r, start_speed_m_s) for r in shifts])
+    for gear in np.unique(starts).tolist():
+        idx = np.flatnonzero(starts == gear)
+        probes = TraceProbes(idx.size, probe_distances(rollout, distances), probe_speeds(speeds))
+        cover = (finish_distance_m or 0.0) + rollout
+        start = RunStart(start_speed_m_s, gear - 1, cover, finish_speed_m_s or 0.0)
+        gears = model.drivetrain.gear_count
+        ratio = np.tile(model.drivetrain.overall_ratios, (idx.size, 1))
+        masses = (
+            np.tile(model.effective_mass_kg, (idx.size, 1)),
+            np.full(idx.size, model.decoupled_mass_kg),
+        )
+        sink = _Probing(probes, idx.size, gears)
+        ends = integrate_runs(model, ratio, masses, shifts[idx], start, sink)
+        if finish_distance_m is not None:
+            timed = timed_distances(probes, distances, ends.moved)[0].elapsed_s
+        else:
+            timed = np.where(ends.moved, probes.reaching(1), np.nan)
+        out[idx] = timed
+    return out

@@ -145,21 +145,25 @@ class TraceProbes:
         self.le = [np.zeros((count, nd)) for _ in range(3)]  # t, v, x
         self.gt = [np.full((count, nd), np.nan) for _ in range(2)]  # t, v
         self.gt_found = np.zeros((count, nd), dtype=np.bool_)
-        self.hit = [np.full((count, ns), np.nan) for _ in range(2)]
-        self.pre = [np.full((count, ns), np.nan) for _ in range(2)]
+        self.hit = [np.full((count, ns), np.nan) for _ in range(3)]  # t, v, a
+        self.pre = [np.full((count, ns), np.nan) for _ in range(3)]
         self.found = np.zeros((count, ns), dtype=np.bool_)
-        self.last = [np.zeros(count) for _ in range(3)]
+        self.last = [np.zeros(count) for _ in range(3)]  # t, v, x
+        self.last_a = np.zeros(count)
         self.started = np.zeros(count, dtype=np.bool_)
 
-    def add(self, rows: IntArray, t: FloatArray, v: FloatArray, x: FloatArray) -> None:
+    def add(
+        self, rows: IntArray, t: FloatArray, v: FloatArray, x: FloatArray, a: FloatArray
+    ) -> None:
         """Read the next block of some traces.
 
         Parameters
         ----------
         rows : ndarray of int, shape (r,)
             The traces the block belongs to, each once.
-        t, v, x : ndarray, shape (r, w)
-            Time [s], speed [m/s] and distance [m] of the block's points.
+        t, v, x, a : ndarray, shape (r, w)
+            Time [s], speed [m/s], distance [m] and acceleration [m/s^2] of the block's
+            points.
         """
         cols = (t, v, x)
         if self.d.size:
@@ -184,9 +188,8 @@ class TraceProbes:
             k = _count_below(v, ri, self.s[ji])
             c = rows[ri]
             inside = k > 0
-            for hit, pre, col, last in zip(
-                self.hit, self.pre, cols[:2], self.last[:2], strict=True
-            ):
+            lasts = [self.last[0], self.last[1], self.last_a]
+            for hit, pre, col, last in zip(self.hit, self.pre, (t, v, a), lasts, strict=True):
                 hit[c, ji] = col[ri, k]
                 pre[c, ji] = np.where(inside, col[ri, np.maximum(k - 1, 0)], last[c])
             # the trace's very first point already reaches the speed
@@ -195,6 +198,7 @@ class TraceProbes:
             self.found[c, ji] = True
         for last, col in zip(self.last, cols, strict=True):
             last[rows] = col[:, -1]
+        self.last_a[rows] = a[:, -1]
         self.started[rows] = True
 
     def passing(self, j: int) -> tuple[FloatArray, FloatArray]:
@@ -220,11 +224,19 @@ class TraceProbes:
         """Time [s] at which each trace first reaches probe speed ``j``, shape (c,), NaN
         where it does not; as :func:`core.milestones.time_at_speed`."""
         s = float(self.s[j])
-        t1, v1 = self.hit[0][:, j], self.hit[1][:, j]
-        t0, v0 = self.pre[0][:, j], self.pre[1][:, j]
+        t1, v1, a1 = (h[:, j] for h in self.hit)
+        t0, v0, a0 = (p[:, j] for p in self.pre)
         first = self.found[:, j] & np.isnan(t0)
         later = self.found[:, j] & ~first
-        frac = np.where(later, (s - v0) / np.where(later, v1 - v0, 1.0), 0.0)
+        dv = np.where(later, v1 - v0, 1.0)
+        ds = s - v0
+        frac = np.where(later, ds / dv, 0.0)
+        # 1/a linear in speed between two accelerating points, as the integrator takes it
+        curved = later & (a0 > 0.0) & (a1 > 0.0) & (t1 > t0)
+        i0 = 1.0 / np.where(curved, a0, 1.0)
+        i1 = 1.0 / np.where(curved, a1, 1.0)
+        shape = (ds * i0 + (i1 - i0) * ds * ds / (2.0 * dv)) / (0.5 * dv * (i0 + i1))
+        frac = np.where(curved, shape, frac)
         time = np.where(later, t0 + frac * (t1 - t0), t1)
         return np.where(self.found[:, j], time, np.nan)
 

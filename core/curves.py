@@ -91,6 +91,7 @@ class TorqueCurve:
     interpolation: Interpolation = Interpolation.PCHIP
     source: CurveSource = CurveSource.ENGINE
     _coef: FloatArray = field(init=False, repr=False, compare=False)
+    _rows: FloatArray = field(init=False, repr=False, compare=False)
     _scalar: Any = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -107,6 +108,7 @@ class TorqueCurve:
             coef[3] = torque[:-1]
         # piecewise cubic on each interval: ((c0*dx + c1)*dx + c2)*dx + c3, dx = n - rpm[i]
         object.__setattr__(self, "_coef", coef)
+        object.__setattr__(self, "_rows", np.ascontiguousarray(coef.T))
         scalar = (rpm.tolist(), coef.T.tolist())
         object.__setattr__(self, "_scalar", scalar)
 
@@ -141,11 +143,18 @@ class TorqueCurve:
         [150.0, 150.0]
         """
         x = self.rpm
-        n = np.minimum(np.maximum(np.asarray(rpm, dtype=np.float64), x[0]), x[-1])
-        i = np.minimum(np.searchsorted(x, n, side="right") - 1, x.size - 2)
+        n = np.clip(np.asarray(rpm, dtype=np.float64), x[0], x[-1])
+        i = np.searchsorted(x, n, side="right")
+        i -= 1
+        np.minimum(i, x.size - 2, out=i)
         dx = n - x[i]
-        c = self._coef
-        out: FloatArray = ((c[0, i] * dx + c[1, i]) * dx + c[2, i]) * dx + c[3, i]
+        c = self._rows[i]  # one gather of each point's four coefficients
+        out: FloatArray = c[..., 0] * dx
+        out += c[..., 1]
+        out *= dx
+        out += c[..., 2]
+        out *= dx
+        out += c[..., 3]
         return np.maximum(out, 0.0)
 
     def torque_scalar(self, rpm: float) -> float:

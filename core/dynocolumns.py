@@ -16,16 +16,30 @@ lbf*ft             ``lb-ft``, ``lbs-ft``, ``lbf-ft``, ``ft-lb``, ``ft-lbs``, ``f
                    ``pound-feet``, ``pound-foot``, ``foot-pound(s)``
 kgf*m              ``kgf-m``, ``kg-m``, ``m-kg``, ``m-kgf``
 W, kW              ``W``, ``watt(s)``, ``kW``, ``kilowatt(s)``
-hp (mechanical)    ``hp``, ``bhp``, ``whp``, ``horsepower``; 745.69987158227022 W
+hp (mechanical)    ``hp``, ``bhp``, ``whp``, ``rwhp``, ``awhp``, ``fwhp``, ``horsepower``;
+                   745.69987158227022 W
 PS (metric hp)     ``PS``, ``CV``; 735.49875 W
+road speed         ``km/h``, ``kph``, ``kmh``, ``mph``, ``mi/h``, ``m/s``
+force              ``N``, ``kN``, ``daN``, ``lbf``, ``lb``, ``lbs``, ``kgf``, ``kp``
 =================  ==========================================================================
 
 Names (words, any case): torque is a name containing ``torque`` or the word ``tq`` or
-``trq``; power a name containing ``power`` or the word ``pwr``; engine speed the word
+``trq``; power a name containing ``power`` or ``pwr``; engine speed the word
 ``rpm`` or ``revs``, or ``engine speed``, ``crank speed``. A name with one of these words
 but a unit of another quantity, or a unit not in the table, is an error; a column with
-neither a known name nor a known unit (``"Boost (psi)"``, ``"Vehicle speed (km/h)"``) is
-ignored. The bare word ``speed`` counts only with an engine-speed unit.
+neither a known name nor a known unit (``"Boost (psi)"``, ``"Oil temp (C)"``) is ignored.
+The bare word ``speed`` names engine speed with an engine-speed unit and road speed with a
+road-speed unit; ``road speed``, ``vehicle speed``, ``roller speed`` and ``velocity`` name
+road speed. Tractive force is a name containing ``force``, ``tractive`` or ``traction``
+(a force unit alone is not enough).
+
+**Wheel figures.** A torque, power or force column whose header says it was measured at the
+wheels makes the curve a chassis curve (already net of driveline losses): a header holding
+``wheel`` or ``whl`` (``"Wheel Torque"``, ``"whl tq"``, ``"WhlPwr"``), or one of the words
+``whp``, ``rwhp``, ``awhp``, ``fwhp``, ``wtq``, ``rwtq``, ``wtrq`` (as a name or as the
+unit, e.g. ``"Power (whp)"``). Tractive force is always a wheel figure. Wheel torque is
+taken as referred to engine speed (wheel power divided by engine angular speed), the usual
+way a chassis dyno reports it.
 
 A header cell without a unit may take it from a units row right under the header: a line
 with at least one known unit and no number (``rpm;Nm;kW``). A unit in the header and a
@@ -43,6 +57,7 @@ __all__ = [
     "ColumnUnit",
     "DynoColumn",
     "HeaderCell",
+    "is_wheel_header",
     "read_header_cell",
     "unit_from_text",
 ]
@@ -54,10 +69,12 @@ class ColumnQuantity(enum.Enum):
     ENGINE_SPEED = "engine_speed"
     TORQUE = "torque"
     POWER = "power"
+    ROAD_SPEED = "road_speed"
+    FORCE = "force"
 
 
 class ColumnUnit(enum.Enum):
-    """The unit of a used column; ``si_factor`` converts to rpm, N*m or W."""
+    """The unit of a used column; ``si_factor`` converts to rpm, N*m, W, m/s or N."""
 
     RPM = "rpm"
     NEWTON_METRE = "N*m"
@@ -67,6 +84,14 @@ class ColumnUnit(enum.Enum):
     KILOWATT = "kW"
     HORSEPOWER = "hp"
     METRIC_HORSEPOWER = "PS"
+    KILOMETRE_PER_HOUR = "km/h"
+    MILE_PER_HOUR = "mph"
+    METRE_PER_SECOND = "m/s"
+    NEWTON = "N"
+    KILONEWTON = "kN"
+    DECANEWTON = "daN"
+    POUND_FORCE = "lbf"
+    KILOGRAM_FORCE = "kgf"
 
     @property
     def quantity(self) -> ColumnQuantity:
@@ -75,7 +100,7 @@ class ColumnUnit(enum.Enum):
 
     @property
     def si_factor(self) -> float:
-        """Multiplier to rpm [rpm], N*m [N*m] or W [W]."""
+        """Multiplier to rpm [rpm], N*m [N*m], W [W], m/s [m/s] or N [N]."""
         return _SI_FACTOR[self]
 
 
@@ -88,6 +113,14 @@ _QUANTITY_OF_UNIT = {
     ColumnUnit.KILOWATT: ColumnQuantity.POWER,
     ColumnUnit.HORSEPOWER: ColumnQuantity.POWER,
     ColumnUnit.METRIC_HORSEPOWER: ColumnQuantity.POWER,
+    ColumnUnit.KILOMETRE_PER_HOUR: ColumnQuantity.ROAD_SPEED,
+    ColumnUnit.MILE_PER_HOUR: ColumnQuantity.ROAD_SPEED,
+    ColumnUnit.METRE_PER_SECOND: ColumnQuantity.ROAD_SPEED,
+    ColumnUnit.NEWTON: ColumnQuantity.FORCE,
+    ColumnUnit.KILONEWTON: ColumnQuantity.FORCE,
+    ColumnUnit.DECANEWTON: ColumnQuantity.FORCE,
+    ColumnUnit.POUND_FORCE: ColumnQuantity.FORCE,
+    ColumnUnit.KILOGRAM_FORCE: ColumnQuantity.FORCE,
 }
 _SI_FACTOR = {
     ColumnUnit.RPM: 1.0,
@@ -98,6 +131,14 @@ _SI_FACTOR = {
     ColumnUnit.KILOWATT: 1000.0,
     ColumnUnit.HORSEPOWER: 745.69987158227022,  # 550 ft*lbf/s
     ColumnUnit.METRIC_HORSEPOWER: 735.49875,  # 75 kgf*m/s
+    ColumnUnit.KILOMETRE_PER_HOUR: 1.0 / 3.6,
+    ColumnUnit.MILE_PER_HOUR: 0.44704,  # 1609.344 m / 3600 s
+    ColumnUnit.METRE_PER_SECOND: 1.0,
+    ColumnUnit.NEWTON: 1.0,
+    ColumnUnit.KILONEWTON: 1000.0,
+    ColumnUnit.DECANEWTON: 10.0,
+    ColumnUnit.POUND_FORCE: 4.4482216152605,  # 0.45359237 kg * 9.80665 m/s^2
+    ColumnUnit.KILOGRAM_FORCE: 9.80665,
 }
 _UNIT_SPELLINGS = {
     ColumnUnit.RPM: ("rpm", "r/min", "rev/min", "revs/min", "1/min", "min1", "u/min"),
@@ -123,14 +164,24 @@ _UNIT_SPELLINGS = {
     ColumnUnit.KILOGRAM_FORCE_METRE: ("kgfm", "kgm", "mkg", "mkgf"),
     ColumnUnit.WATT: ("w", "watt", "watts"),
     ColumnUnit.KILOWATT: ("kw", "kilowatt", "kilowatts"),
-    ColumnUnit.HORSEPOWER: ("hp", "bhp", "whp", "horsepower"),
+    ColumnUnit.HORSEPOWER: ("hp", "bhp", "whp", "rwhp", "awhp", "fwhp", "horsepower"),
     ColumnUnit.METRIC_HORSEPOWER: ("ps", "cv"),
+    ColumnUnit.KILOMETRE_PER_HOUR: ("km/h", "kmh", "kph", "km/hr", "kmph"),
+    ColumnUnit.MILE_PER_HOUR: ("mph", "mi/h", "mi/hr"),
+    ColumnUnit.METRE_PER_SECOND: ("m/s", "mps"),
+    ColumnUnit.NEWTON: ("n", "newton", "newtons"),
+    ColumnUnit.KILONEWTON: ("kn",),
+    ColumnUnit.DECANEWTON: ("dan",),
+    ColumnUnit.POUND_FORCE: ("lbf", "lb", "lbs", "poundforce"),
+    ColumnUnit.KILOGRAM_FORCE: ("kgf", "kp"),
 }
 _UNITS = {spelling: unit for unit, names in _UNIT_SPELLINGS.items() for spelling in names}
 _IGNORED_IN_UNITS = re.compile(r"[\s·⋅∙•×*.\-_^]+")
 _BRACKETED = re.compile(r"\(([^()]*)\)|\[([^\[\]]*)\]|\{([^{}]*)\}")
 _WORD_SEPARATORS = re.compile(r"[\s_]+")
 _NON_WORD = re.compile(r"[^0-9a-z]+")
+_WHEEL_WORDS = frozenset({"whp", "rwhp", "awhp", "fwhp", "wtq", "rwtq", "wtrq"})
+_ROAD_SPEED_NAMES = ("road speed", "vehicle speed", "roller speed", "ground speed", "velocity")
 
 
 @dataclass(frozen=True)
@@ -147,12 +198,15 @@ class DynoColumn:
         Engine speed, torque or power.
     unit : ColumnUnit
         The unit the values were read in.
+    at_wheels : bool
+        Whether the header marks the figures as measured at the wheels.
     """
 
     column: int
     header: str
     quantity: ColumnQuantity
     unit: ColumnUnit
+    at_wheels: bool = False
 
 
 @dataclass(frozen=True)
@@ -170,12 +224,15 @@ class HeaderCell:
         Why the cell cannot be used although it names a quantity (a wrong unit).
     problem_in_units_row : bool
         Whether the problem lies in the units row rather than in the header itself.
+    at_wheels : bool
+        Whether the header marks a wheel figure (see the module docstring).
     """
 
     quantity: ColumnQuantity | None
     unit: ColumnUnit | None
     problem: str | None = None
     problem_in_units_row: bool = False
+    at_wheels: bool = False
 
 
 def unit_from_text(text: str) -> ColumnUnit | None:
@@ -223,14 +280,30 @@ def _split_unit(cell: str) -> tuple[str, str | None, ColumnUnit | None]:
     return cell, None, None
 
 
+def is_wheel_header(cell: str) -> bool:
+    """Whether a header cell marks its figures as measured at the wheels.
+
+    Examples
+    --------
+    >>> is_wheel_header("WHP"), is_wheel_header("whl tq (lb-ft)"), is_wheel_header("BHP")
+    (True, True, False)
+    """
+    plain = _NON_WORD.sub(" ", cell.lower())
+    return "wheel" in plain or "whl" in plain or bool(set(plain.split()) & _WHEEL_WORDS)
+
+
 def _named_quantity(name: str) -> tuple[ColumnQuantity | None, bool]:
     """The quantity a name states, and whether it states it firmly (not just "speed")."""
     plain = _NON_WORD.sub(" ", name.lower()).strip()
     words = set(plain.split())
-    if "torque" in plain or words & {"tq", "trq"}:
+    if "torque" in plain or words & {"tq", "trq", "wtq", "rwtq", "wtrq"}:
         return ColumnQuantity.TORQUE, True
-    if "power" in plain or "pwr" in words:
+    if "power" in plain or "pwr" in plain or words & (_WHEEL_WORDS - {"wtq", "rwtq", "wtrq"}):
         return ColumnQuantity.POWER, True
+    if "force" in plain or "tractive" in plain or "traction" in words:
+        return ColumnQuantity.FORCE, True
+    if any(n in plain for n in _ROAD_SPEED_NAMES):
+        return ColumnQuantity.ROAD_SPEED, True
     if words & {"rpm", "revs"} or "engine speed" in plain or "crank speed" in plain:
         return ColumnQuantity.ENGINE_SPEED, True
     if "speed" in words:
@@ -244,6 +317,8 @@ def _spoken(quantity: ColumnQuantity) -> str:
         ColumnQuantity.ENGINE_SPEED: "an engine-speed",
         ColumnQuantity.TORQUE: "a torque",
         ColumnQuantity.POWER: "a power",
+        ColumnQuantity.ROAD_SPEED: "a road-speed",
+        ColumnQuantity.FORCE: "a force",
     }[quantity]
 
 
@@ -286,6 +361,7 @@ def read_header_cell(cell: str, unit_below: str = "") -> HeaderCell:
             True,
         )
     named, firm = _named_quantity(name)
+    wheels = is_wheel_header(cell) or named is ColumnQuantity.FORCE
     if unit is not None:
         if named is not None and firm and named is not unit.quantity:
             return HeaderCell(
@@ -295,7 +371,9 @@ def read_header_cell(cell: str, unit_below: str = "") -> HeaderCell:
                 f"{unit_text!r} is {_spoken(unit.quantity)} unit",
                 in_row,
             )
-        return HeaderCell(unit.quantity, unit)
+        if unit.quantity is ColumnQuantity.FORCE and named is None:
+            return HeaderCell(None, None)  # "N" or "lb" alone is too vague to use
+        return HeaderCell(unit.quantity, unit, at_wheels=wheels)
     if named is None or not firm:
         return HeaderCell(None, None)
     if unit_text is not None:
@@ -309,4 +387,4 @@ def read_header_cell(cell: str, unit_below: str = "") -> HeaderCell:
         )
     if named is ColumnQuantity.ENGINE_SPEED:
         return HeaderCell(named, ColumnUnit.RPM)
-    return HeaderCell(named, None)
+    return HeaderCell(named, None, at_wheels=wheels)

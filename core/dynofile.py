@@ -1,7 +1,8 @@
 """Reading a delimited dyno export given as text.
 
 The text is a table: a header row naming an engine-speed column and a torque and/or power
-column, then one row per sample. The reader finds, in this order:
+column (or a road-speed column and a power or tractive-force column), then one row per
+sample. The reader finds, in this order:
 
 * **Size and content.** At most :data:`MAX_TEXT_CHARS` characters, :data:`MAX_LINES` lines
   and :data:`MAX_COLUMNS` cells a line. NUL, other control characters (except tab and the
@@ -11,18 +12,28 @@ column, then one row per sample. The reader finds, in this order:
 * **Lines to skip.** Blank lines; comment lines, whose first non-blank characters are
   ``#`` or ``//``; and any lines above the header (reported in a notice).
 * **Header and delimiter.** The header is the first line that, split at tab, semicolon or
-  comma, names an engine-speed column and a torque or power column (spellings in
-  :mod:`core.dynocolumns`). When several delimiters qualify, the one that gives the
-  header's cell count on most of the next 20 lines wins (ties: tab, semicolon, comma).
+  comma, names an engine-speed column and a torque or power column, or a road-speed column
+  and a power or force column (spellings in :mod:`core.dynocolumns`). When several
+  delimiters qualify, the one that gives the header's cell count on most of the next 20
+  lines wins (ties: tab, semicolon, comma). A line that is a header in its own right (it
+  has names, not only units) is never taken as the units row of the line above.
   Cells may be quoted with ``"``; a quoted cell may not span lines. Torque or power named
   without a unit may take it from a units row right under the header (``rpm;Nm;kW``).
 * **Decimal mark.** Point or comma, decided over all the cells read
   (:mod:`core.dynonumbers`); with a semicolon delimiter a decimal comma is common.
 * **Rows.** Every data row must hold a number in each used column; other columns are not
-  read. Rows are sorted by rpm and rows repeating an rpm are averaged, each with a notice.
+  read. Summary rows (max, average, peak ...) and rows with a blank x or curve cell are
+  skipped with a notice (:mod:`core.dynorows`). Rows are sorted by rpm and rows repeating
+  an rpm are averaged, each with a notice.
   Power is turned into torque by ``torque = power / omega``, ``omega = 2*pi*rpm/60``.
   When both torque and power are given, torque is used and a notice reports power that
   disagrees with it by more than 2 %.
+* **Wheel figures.** A torque, power or force column headed as a wheel figure (``WHP``,
+  ``Wheel Torque``, ``whl tq``, ``RWHP``; :mod:`core.dynocolumns`) makes the run a chassis
+  curve (``source`` chassis, net of driveline losses), reported in a notice.
+* **Speed-based exports.** Road speed with power or tractive force and no engine speed is
+  referred to engine rpm with the gear's overall ratio and the tire's rolling radius
+  (:mod:`core.dynoroad`); measured at the rollers, it is a chassis curve.
 * **Options.** Resampling to multiples of ``rpm_step`` with a monotone cubic (PCHIP,
   ``scipy.interpolate.PchipInterpolator``); smoothing with a Savitzky-Golay filter
   (``scipy.signal.savgol_filter``, mode ``"interp"``) whose window is the odd number of
@@ -41,7 +52,6 @@ from scipy.interpolate import PchipInterpolator
 from scipy.signal import savgol_filter
 
 from core.curves import (
-    MAX_TORQUE_NM,
     MIN_CURVE_POINTS,
     RPM_TO_RAD_S,
     CurveSource,
@@ -49,9 +59,11 @@ from core.curves import (
     TorqueCurve,
     torque_curve_from_torque,
 )
-from core.dynocolumns import ColumnQuantity, DynoColumn
-from core.dynonumbers import NumberFormat, number_format_of, parse_number
-from core.dynoparse import MAX_COLUMNS, MAX_LINES, MAX_TEXT_CHARS, Cell, Delimiter, read_table
+from core.dynocolumns import DynoColumn
+from core.dynonumbers import NumberFormat
+from core.dynoparse import MAX_COLUMNS, MAX_LINES, MAX_TEXT_CHARS, Delimiter, read_table
+from core.dynoroad import RoadSpeedConversion, road_speed_conversion
+from core.dynovalues import MAX_RPM, MISMATCH_LIMIT, run_values
 from core.errors import DynoFileError
 from core.plan import Notice
 
@@ -67,8 +79,6 @@ __all__ = [
 
 FloatArray = NDArray[np.float64]
 
-MAX_RPM = 100_000.0  # engine speeds above this are taken as a misread file
-MISMATCH_LIMIT = 0.02  # relative disagreement of power with torque that earns a notice
 _MAX_SMOOTHING_ORDER = 5
 _UNIFORM_SPACING_RTOL = 1e-6
 
@@ -84,12 +94,18 @@ class DynoRun:
     torque_nm : ndarray, shape (n,)
         Torque [N*m] at each speed, non-negative, read-only.
     rpm_column : DynoColumn
-        The engine-speed column used.
+        The engine-speed column used; the road-speed column of a speed-based export.
     torque_column : DynoColumn or None
         The torque column used, if the export has one.
     power_column : DynoColumn or None
         The power column: the source of the torque when there is no torque column, else
         only checked against it.
+    force_column : DynoColumn or None
+        The tractive-force column of a speed-based export without power.
+    source : CurveSource
+        ``CHASSIS`` when the figures were measured at the wheels, else ``ENGINE``.
+    road_speed : RoadSpeedConversion or None
+        The gear and tire a speed-based export was referred to engine rpm with.
     delimiter : Delimiter
         Cell separator found.
     number_format : NumberFormat
@@ -111,6 +127,9 @@ class DynoRun:
     rpm_column: DynoColumn
     torque_column: DynoColumn | None
     power_column: DynoColumn | None
+    force_column: DynoColumn | None
+    source: CurveSource
+    road_speed: RoadSpeedConversion | None
     delimiter: Delimiter
     number_format: NumberFormat
     header_line: int
@@ -127,7 +146,7 @@ class DynoRun:
         self,
         *,
         interpolation: Interpolation = Interpolation.PCHIP,
-        source: CurveSource = CurveSource.ENGINE,
+        source: CurveSource | None = None,
     ) -> TorqueCurve:
         """The run as a :class:`~core.curves.TorqueCurve`.
 
@@ -135,8 +154,8 @@ class DynoRun:
         ----------
         interpolation : Interpolation
             Fill between samples, PCHIP by default.
-        source : CurveSource
-            Engine dyno (default) or chassis dyno.
+        source : CurveSource, optional
+            Engine or chassis dyno; default the run's own ``source``.
 
         Returns
         -------
@@ -148,7 +167,7 @@ class DynoRun:
             When the run has more points than a curve may hold (resample it coarser).
         """
         return torque_curve_from_torque(
-            self.rpm, self.torque_nm, interpolation=interpolation, source=source
+            self.rpm, self.torque_nm, interpolation=interpolation, source=source or self.source
         )
 
 
@@ -169,44 +188,6 @@ def _check_options(
             f"`smoothing_order` must lie in [0, {_MAX_SMOOTHING_ORDER}], got {smoothing_order}",
             parameter="smoothing_order",
         )
-
-
-def _first_bad(bad: NDArray[np.bool_], cells: list[Cell], rule: str) -> None:
-    """Raise for the first cell whose value is flagged bad."""
-    hits = np.flatnonzero(bad)
-    if hits.size:
-        cell = cells[int(hits[0])]
-        raise DynoFileError(
-            f"`text` line {cell.line}, column {cell.column}: {cell.text!r} must be {rule}",
-            line=cell.line,
-            column=cell.column,
-        )
-
-
-def _mismatch(
-    torque: FloatArray, from_power: FloatArray, rpm: FloatArray, lines: NDArray[np.int_]
-) -> Notice | None:
-    """A notice when power disagrees with torque by more than MISMATCH_LIMIT."""
-    scale = np.maximum(torque, from_power)
-    rel = np.abs(from_power - torque) / np.where(scale > 0.0, scale, 1.0)
-    bad = rel > MISMATCH_LIMIT
-    if not bad.any():
-        return None
-    w = int(np.argmax(rel))
-    message = (
-        f"Power disagrees with torque by more than {MISMATCH_LIMIT:.0%} on {int(bad.sum())} "
-        f"of {rel.size} rows (worst {rel[w]:.1%} on line {int(lines[w])}, {rpm[w]:g} rpm); "
-        "the torque column was used."
-    )
-    both = (torque > 0.0) & (from_power > 0.0)
-    ratio = from_power[both] / torque[both]
-    median = float(np.median(ratio)) if ratio.size else 1.0
-    if np.all(np.abs(ratio / median - 1.0) < 0.005) and abs(median - 1.0) > MISMATCH_LIMIT:
-        message += (
-            f" Power is consistently {median:.4f} times torque, which suggests a wrong unit "
-            "in a header."
-        )
-    return Notice("torque_power_mismatch", message, "text")
 
 
 def _sorted_merged(
@@ -301,6 +282,8 @@ def read_dyno_text(
     rpm_step: float | None = None,
     smoothing_window_rpm: float | None = None,
     smoothing_order: int = 2,
+    overall_ratio: float | None = None,
+    rolling_radius_m: float | None = None,
 ) -> DynoRun:
     """Read a torque curve from a delimited dyno export.
 
@@ -317,11 +300,17 @@ def read_dyno_text(
         Savitzky-Golay window [rpm], at least 3 samples and at most the run's length.
     smoothing_order : int
         Savitzky-Golay polynomial order, 0..5 and below the window's sample count.
+    overall_ratio : float, optional
+        Gear * final drive * extra reduction of the gear a speed-based export was run in,
+        in (0, 100]; with ``rolling_radius_m``. Needed for a speed-based export only.
+    rolling_radius_m : float, optional
+        Tire rolling radius [m] of that run, in (0, 2.5]; with ``overall_ratio``.
 
     Returns
     -------
     DynoRun
-        Sorted rpm [rpm] and torque [N*m], the columns and units used, and notices.
+        Sorted rpm [rpm] and torque [N*m], the columns and units used, the curve's source
+        (chassis for wheel figures) and notices.
 
     Raises
     ------
@@ -335,53 +324,25 @@ def read_dyno_text(
     ([2000.0, 3000.0, 4000.0], [180.5, 201.0, 195.5], ',')
     """
     _check_options(rpm_step, smoothing_window_rpm, smoothing_order)
+    conversion = road_speed_conversion(overall_ratio, rolling_radius_m)
     table = read_table(text)
-    if len(table.rows) < MIN_CURVE_POINTS:
+    if len(table.lines) < MIN_CURVE_POINTS:
         raise DynoFileError(
             f"`text` must hold at least {MIN_CURVE_POINTS} data rows below the header on "
-            f"line {table.header_line}, got {len(table.rows)}; is the file truncated?"
+            f"line {table.header_line}, got {len(table.lines)}; is the file truncated?"
         )
-    number_format = number_format_of([c for row in table.rows for c in row])
-    values = np.array([[parse_number(c, number_format) for c in row] for row in table.rows])
-    lines = np.array([row[0].line for row in table.rows])
-    by_quantity = {col.quantity: j for j, col in enumerate(table.columns)}
-    rpm = values[:, 0]
-    rpm_cells = [row[0] for row in table.rows]
-    _first_bad(~(rpm > 0.0), rpm_cells, "> 0 rpm")
-    _first_bad(rpm > MAX_RPM, rpm_cells, f"at most {MAX_RPM:g} rpm")
-    for j in range(1, len(table.columns)):
-        cells = [row[j] for row in table.rows]
-        _first_bad(values[:, j] < 0.0, cells, ">= 0")
-        unit = table.columns[j].unit
-        if unit.quantity is ColumnQuantity.TORQUE:  # converted values must stay finite
-            top = MAX_TORQUE_NM / unit.si_factor
-            _first_bad(~(values[:, j] <= top), cells, f"at most {top:g} {unit.value}")
-    notices = list(table.notices)
-    omega = rpm * RPM_TO_RAD_S
-    power_j = by_quantity.get(ColumnQuantity.POWER)
-    torque_j = by_quantity.get(ColumnQuantity.TORQUE)
-    from_power = None
-    if power_j is not None:
-        with np.errstate(over="ignore"):  # an overflowing cell is refused just below
-            from_power = values[:, power_j] * table.columns[power_j].unit.si_factor / omega
-    if torque_j is not None:
-        torque = values[:, torque_j] * table.columns[torque_j].unit.si_factor
-        if from_power is not None:
-            note = _mismatch(torque, from_power, rpm, lines)
-            notices.extend([note] if note is not None else [])
-    elif from_power is not None:
-        if power_j is not None:  # always, here; the torque it implies must stay finite
-            unit = table.columns[power_j].unit
-            bad = np.flatnonzero(~(from_power <= MAX_TORQUE_NM))
-            limits = MAX_TORQUE_NM * omega / unit.si_factor
-            if bad.size:
-                i = int(bad[0])
-                rule = f"at most {limits[i]:g} {unit.value} at {rpm[i]:g} rpm"
-                _first_bad(bad == i, [row[power_j] for row in table.rows][i : i + 1], rule)
-        torque = from_power
-    else:  # pragma: no cover - read_table always finds torque or power
-        raise DynoFileError("`text` has neither a torque nor a power column")
-    rpm, torque, merge_notices = _sorted_merged(rpm, torque, lines)
+    values = run_values(table, conversion)
+    notices = [*table.notices, *values.notices]
+    if conversion is not None and not table.speed_based:
+        notices.append(
+            Notice(
+                "road_speed_conversion_unused",
+                "The export gives engine speed, so `overall_ratio` and `rolling_radius_m` "
+                "were not used.",
+                "overall_ratio",
+            )
+        )
+    rpm, torque, merge_notices = _sorted_merged(values.rpm, values.torque_nm, values.lines)
     notices.extend(merge_notices)
     if rpm.size < MIN_CURVE_POINTS:
         raise DynoFileError(
@@ -396,16 +357,20 @@ def read_dyno_text(
         torque, samples = _smoothed(rpm, torque, smoothing_window_rpm, smoothing_order)
     rpm.setflags(write=False)
     torque.setflags(write=False)
+    by_quantity = {c.quantity.value: c for c in table.columns[1:]}
     return DynoRun(
         rpm=rpm,
         torque_nm=torque,
         rpm_column=table.columns[0],
-        torque_column=table.columns[torque_j] if torque_j is not None else None,
-        power_column=table.columns[power_j] if power_j is not None else None,
+        torque_column=by_quantity.get("torque"),
+        power_column=by_quantity.get("power"),
+        force_column=by_quantity.get("force"),
+        source=values.source,
+        road_speed=conversion if table.speed_based else None,
         delimiter=table.delimiter,
-        number_format=number_format,
+        number_format=values.number_format,
         header_line=table.header_line,
-        data_rows=len(table.rows),
+        data_rows=len(table.lines),
         rpm_step=None if rpm_step is None else float(rpm_step),
         smoothing_samples=samples,
         notices=tuple(notices),

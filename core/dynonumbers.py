@@ -7,6 +7,10 @@ together with the other mark); a file mixing cells like ``1.250`` and ``3,5`` ta
 mark that only ever appears in three-digit groups as the thousands separator. A number is
 an optional sign, digits with an optional decimal part, and an optional exponent
 (``2.5e3``); ``nan``, ``inf`` and text are rejected with the cell's line and column.
+
+Whole columns are read at once (:func:`number_format_of_texts`, :func:`parse_column`): one
+precompiled regular expression checks the column joined into one string and NumPy converts
+it; a cell is looked at on its own only to name the one at fault.
 """
 
 from __future__ import annotations
@@ -17,10 +21,20 @@ import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 
+import numpy as np
+from numpy.typing import NDArray
+
 from core.dynoparse import Cell
 from core.errors import DynoFileError
 
-__all__ = ["DecimalMark", "NumberFormat", "number_format_of", "parse_number"]
+__all__ = [
+    "DecimalMark",
+    "NumberFormat",
+    "number_format_of",
+    "number_format_of_texts",
+    "parse_column",
+    "parse_number",
+]
 
 
 class DecimalMark(enum.Enum):
@@ -46,9 +60,20 @@ class NumberFormat:
     thousands_separator: str | None = None
 
 
+_GROUPED = {m: re.compile(rf"[+-]?\d{{1,3}}(?:{re.escape(m)}\d{{3}})+") for m in ".,"}
+# a line of a joined column holding both marks; one holding a mark not as thousands groups
+_BOTH_MARKS = re.compile(r"^[^\n]*(?:,[^\n]*\.|\.[^\n]*,)[^\n]*$", re.MULTILINE)
+_UNGROUPED = {
+    m: re.compile(
+        rf"^(?![+-]?\d{{1,3}}(?:{re.escape(m)}\d{{3}})+$)[^\n]*{re.escape(m)}", re.MULTILINE
+    )
+    for m in ".,"
+}
+
+
 def _grouped(text: str, mark: str) -> bool:
     """Whether ``mark`` appears in ``text`` only as a thousands separator."""
-    return re.fullmatch(rf"[+-]?\d{{1,3}}(?:{re.escape(mark)}\d{{3}})+", text) is not None
+    return _GROUPED[mark].fullmatch(text) is not None
 
 
 def number_format_of(cells: Sequence[Cell]) -> NumberFormat:
@@ -101,6 +126,143 @@ def number_format_of(cells: Sequence[Cell]) -> NumberFormat:
     )
 
 
+def number_format_of_texts(
+    columns: Sequence[tuple[Sequence[str], Sequence[int], int]],
+) -> NumberFormat:
+    """The decimal mark of whole columns of number cells (as :func:`number_format_of`).
+
+    Parameters
+    ----------
+    columns : sequence of (texts, lines, column)
+        Each column's cell texts, the 1-based line of each, and its 1-based column number.
+
+    Returns
+    -------
+    NumberFormat
+
+    Raises
+    ------
+    DynoFileError
+        When cells mix decimal points and decimal commas.
+
+    Examples
+    --------
+    >>> number_format_of_texts([(["1.500", "2.000"], [2, 3], 1), (["95,5", "99"], [2, 3], 2)])
+    NumberFormat(decimal_mark=<DecimalMark.COMMA: ','>, thousands_separator='.')
+    """
+    joined = "\n".join("\n".join(texts) for texts, _, _ in columns)
+    if "," not in joined:
+        return NumberFormat(DecimalMark.POINT)
+    if "." not in joined:
+        return NumberFormat(DecimalMark.COMMA)
+    both = _BOTH_MARKS.search(joined)
+    if both is not None:
+        first = both.group()
+        if first.rfind(",") > first.rfind("."):
+            return NumberFormat(DecimalMark.COMMA, ".")
+        return NumberFormat(DecimalMark.POINT, ",")
+    if _UNGROUPED["."].search(joined) is None:
+        return NumberFormat(DecimalMark.COMMA, ".")
+    if _UNGROUPED[","].search(joined) is None:
+        return NumberFormat(DecimalMark.POINT, ",")
+    cells = [
+        Cell(line, column, text)
+        for texts, lines, column in columns
+        for text, line in zip(texts, lines, strict=True)
+        if "," in text or "." in text
+    ]
+    return number_format_of(cells)  # raises, naming the first cell of the mix
+
+
+def _one_number(number_format: NumberFormat) -> str:
+    """The regular expression of one number in a format."""
+    decimal, thousands = number_format.decimal_mark, number_format.thousands_separator
+    d = re.escape(decimal.value)
+    digits = rf"\d{{1,3}}(?:{re.escape(thousands)}\d{{3}})+|\d+" if thousands else r"\d+"
+    return rf"[+-]?(?:(?:{digits})(?:{d}\d*)?|{d}\d+)(?:[eE][+-]?\d+)?"
+
+
+_FORMATS = [
+    NumberFormat(mark, sep)
+    for mark, sep in (
+        (DecimalMark.POINT, None),
+        (DecimalMark.POINT, ","),
+        (DecimalMark.COMMA, None),
+        (DecimalMark.COMMA, "."),
+    )
+]
+_NUMBER = {f: re.compile(_one_number(f)) for f in _FORMATS}
+_COLUMN = {f: re.compile(rf"(?:{_one_number(f)}\n)*{_one_number(f)}") for f in _FORMATS}
+
+
+_NOT_IN_A_NUMBER = re.compile(r"[^0-9.eE+\-\n]")
+
+
+def _fast_column(joined: str, number_format: NumberFormat) -> NDArray[np.float64] | None:
+    """The numbers of a column joined by line breaks, or None when a cell is not one.
+
+    Without a thousands separator, a column holding only digits, signs, exponents and the
+    decimal mark is converted by ``float``, which refuses what the grammar refuses over
+    those characters (a lone sign or mark, two marks, a bare exponent); with one, the
+    column is first matched against the grammar.
+    """
+    if number_format.thousands_separator:
+        if _COLUMN[number_format].fullmatch(joined) is None:
+            return None
+        joined = joined.replace(number_format.thousands_separator, "")
+    if number_format.decimal_mark is DecimalMark.COMMA:
+        joined = joined.replace(",", ".")
+    if _NOT_IN_A_NUMBER.search(joined) is not None:
+        return None
+    try:
+        return np.array(list(map(float, joined.split("\n"))), dtype=np.float64)
+    except ValueError:
+        return None
+
+
+def parse_column(
+    texts: Sequence[str], lines: Sequence[int], column: int, number_format: NumberFormat
+) -> NDArray[np.float64]:
+    """Read a whole column of cells as finite numbers.
+
+    Parameters
+    ----------
+    texts : sequence of str
+        The cells' texts, stripped.
+    lines : sequence of int
+        The 1-based line of each cell, to name a bad one.
+    column : int
+        The 1-based column number, to name a bad cell.
+    number_format : NumberFormat
+        Decimal mark and thousands separator of the file.
+
+    Returns
+    -------
+    ndarray, shape (n,)
+
+    Raises
+    ------
+    DynoFileError
+        At the first cell that is empty, not a number or too large.
+
+    Examples
+    --------
+    >>> fmt = NumberFormat(DecimalMark.COMMA)
+    >>> parse_column(["1,5", "-2", "3e2"], [2, 3, 4], 2, fmt).tolist()
+    [1.5, -2.0, 300.0]
+    """
+    values = _fast_column("\n".join(texts), number_format) if texts else None
+    if values is not None:
+        finite = np.isfinite(values)
+        if finite.all():
+            return values
+        k = int(np.argmin(finite))
+        parse_number(Cell(lines[k], column, texts[k]), number_format)  # raises
+    for text, line in zip(texts, lines, strict=True):
+        parse_number(Cell(line, column, text), number_format)  # raises at the first bad cell
+    return np.zeros(0)
+
+
 def parse_number(cell: Cell, number_format: NumberFormat) -> float:
     """Read one cell as a finite number.
 
@@ -126,10 +288,7 @@ def parse_number(cell: Cell, number_format: NumberFormat) -> float:
     1234.5
     """
     decimal, thousands = number_format.decimal_mark, number_format.thousands_separator
-    d = re.escape(decimal.value)
-    digits = rf"\d{{1,3}}(?:{re.escape(thousands)}\d{{3}})+|\d+" if thousands else r"\d+"
-    pattern = rf"[+-]?(?:(?:{digits})(?:{d}\d*)?|{d}\d+)(?:[eE][+-]?\d+)?"
-    if re.fullmatch(pattern, cell.text) is None:
+    if _NUMBER[number_format].fullmatch(cell.text) is None:
         what = (
             "the cell is empty; every data row needs a number in each used column"
             if not cell.text

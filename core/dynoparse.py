@@ -19,6 +19,7 @@ from core.dynocolumns import (
     read_header_cell,
     unit_from_text,
 )
+from core.dynorows import column_texts, significant_lines, split_rows
 from core.errors import DynoFileError
 from core.plan import Notice
 
@@ -39,7 +40,6 @@ _DELIMITER_PROBE_LINES = 20
 _HEADER_SEARCH_LINES = 100
 
 _FORBIDDEN = re.compile("[\x00-\x08\x0b-\x0c\x0e-\x1f\x7f-\x9f\ufffd\ufffe\uffff\ud800-\udfff]")
-_COMMENT_PREFIXES = ("#", "//")
 
 
 class Delimiter(enum.Enum):
@@ -71,7 +71,7 @@ class Cell:
 
 @dataclass(frozen=True)
 class Table:
-    """The used columns of an export and their cells.
+    """The used columns of an export and their cells, column by column.
 
     Attributes
     ----------
@@ -80,18 +80,30 @@ class Table:
     header_line : int
         1-based line of the header row.
     columns : tuple of DynoColumn
-        The engine-speed column, then torque and/or power, in that order.
-    rows : tuple of tuple of Cell
-        One tuple per data row, a cell for each entry of ``columns``.
+        The x column (engine speed, or road speed in a speed-based export), then the
+        column the curve is read from (torque, else power, else tractive force), then a
+        power column to check torque against, if any.
+    lines : tuple of int
+        1-based line of each data row kept.
+    cells : tuple of tuple of str
+        For each entry of ``columns``, its stripped cell on each kept row; a check column
+        may hold empty cells.
     notices : tuple of Notice
-        Lines skipped above the header, further candidate columns left unused.
+        Lines skipped above the header, summary rows and rows with blank cells skipped,
+        further candidate columns left unused.
     """
 
     delimiter: Delimiter
     header_line: int
     columns: tuple[DynoColumn, ...]
-    rows: tuple[tuple[Cell, ...], ...]
+    lines: tuple[int, ...]
+    cells: tuple[tuple[str, ...], ...]
     notices: tuple[Notice, ...]
+
+    @property
+    def speed_based(self) -> bool:
+        """Whether the x column is road speed rather than engine speed."""
+        return self.columns[0].quantity is ColumnQuantity.ROAD_SPEED
 
 
 def _position(text: str, index: int) -> tuple[int, int]:
@@ -130,34 +142,12 @@ def _check_text(text: object) -> str:
     return text
 
 
-def _split(line: str, number: int, delimiter: Delimiter) -> list[str]:
-    """The stripped cells of one line."""
-    try:
-        cells = next(csv.reader([line], delimiter=delimiter.value, strict=True))
-    except csv.Error as exc:
-        raise DynoFileError(
-            f"`text` line {number} cannot be split into cells: {exc}", line=number
-        ) from exc
-    if len(cells) > MAX_COLUMNS:
-        raise DynoFileError(
-            f"`text` line {number} must have at most {MAX_COLUMNS} cells, got {len(cells)}",
-            line=number,
-            column=MAX_COLUMNS + 1,
-        )
-    return [c.strip() for c in cells]
-
-
-def _significant(text: str) -> list[tuple[int, str]]:
-    """(line number, line) for every line that is neither blank nor a comment."""
-    out = []
-    for number, line in enumerate(text.split("\n"), start=1):
-        stripped = line.strip()
-        if stripped and not stripped.startswith(_COMMENT_PREFIXES):
-            out.append((number, line))
-    return out
-
-
 _NUMBER_LIKE = re.compile(r"[+-]?[\d.,]*\d[\d.,]*(?:[eE][+-]?\d+)?")
+# the x column and the columns a curve may be read from beside it, in order of preference
+_CURVE_COLUMNS = {
+    ColumnQuantity.ENGINE_SPEED: {ColumnQuantity.TORQUE, ColumnQuantity.POWER},
+    ColumnQuantity.ROAD_SPEED: {ColumnQuantity.POWER, ColumnQuantity.FORCE},
+}
 
 
 @dataclass(frozen=True)
@@ -197,19 +187,29 @@ def _header_candidates(
             under is not None
             and any(unit_from_text(u) is not None for u in under)
             and not any(_NUMBER_LIKE.fullmatch(u) for u in under)
+            and not _is_named_header(under)
         )
         if under is None or not is_units:
             under = []
         under += [""] * (len(cells) - len(under))
         pairs = zip(cells[: MAX_COLUMNS + 1], under, strict=False)
         read = [read_header_cell(c, u) for c, u in pairs]
-        kinds = {r.quantity for r in read}
-        if ColumnQuantity.ENGINE_SPEED in kinds and kinds & {
-            ColumnQuantity.TORQUE,
-            ColumnQuantity.POWER,
-        }:
+        if _names_a_curve(read):
             found.append((delimiter, cells, read, is_units))
     return found
+
+
+def _names_a_curve(read: list[HeaderCell]) -> bool:
+    """Whether header cells name an x column and a column a curve may be read from."""
+    kinds = {r.quantity for r in read}
+    return any(x in kinds and kinds & ys for x, ys in _CURVE_COLUMNS.items())
+
+
+def _is_named_header(cells: list[str]) -> bool:
+    """Whether a line is a header in its own right, with names and not only units (so
+    not the units row of the line above, e.g. ``RPM,WHP,Whl Tq (lb-ft)``)."""
+    named = any(c and unit_from_text(c) is None for c in cells)
+    return named and _names_a_curve([read_header_cell(c) for c in cells])
 
 
 def _find_header(significant: list[tuple[int, str]]) -> _Header:
@@ -236,7 +236,9 @@ def _find_header(significant: list[tuple[int, str]]) -> _Header:
     raise DynoFileError(
         f"`text` has no header row (searched {_HEADER_SEARCH_LINES} lines, not counting "
         "blank and comment lines) naming an engine-speed column (e.g. 'RPM') and a torque or "
-        "power column with its unit (e.g. 'Torque (Nm)', 'Power [hp]')"
+        "power column with its unit (e.g. 'Torque (Nm)', 'Power [hp]'), or a road-speed "
+        "column (e.g. 'Speed (km/h)') and a power or tractive-force column (e.g. 'Tractive "
+        "force (N)')"
     )
 
 
@@ -258,9 +260,20 @@ def _pick(quantity: ColumnQuantity, header: _Header) -> tuple[int, HeaderCell] |
 
 
 def _used_columns(header: _Header) -> list[DynoColumn]:
-    """The used columns with their units: engine speed, then torque and/or power."""
+    """The used columns with their units: the x column, the curve's column, a check column.
+
+    An engine-speed column makes an rpm-based export (torque, else power; power beside
+    torque is a check). Without one, a road-speed column makes a speed-based export (power,
+    else tractive force). A power column measured elsewhere than the torque column (one at
+    the wheels, the other not) is not used as a check.
+    """
+    kinds = {r.quantity for r in header.read}
+    x = ColumnQuantity.ENGINE_SPEED
+    if x not in kinds or not kinds & _CURVE_COLUMNS[x]:
+        x = ColumnQuantity.ROAD_SPEED
+    wanted = [x, *sorted(_CURVE_COLUMNS[x], key=lambda q: list(ColumnQuantity).index(q))]
     columns = []
-    for pick in (_pick(q, header) for q in ColumnQuantity):
+    for pick in (_pick(q, header) for q in wanted):
         if pick is None:
             continue
         i, read = pick
@@ -271,7 +284,12 @@ def _used_columns(header: _Header) -> list[DynoColumn]:
                 line=header.line,
                 column=i + 1,
             )
-        columns.append(DynoColumn(i + 1, header.cells[i], read.unit.quantity, read.unit))
+        column = DynoColumn(i + 1, header.cells[i], read.unit.quantity, read.unit, read.at_wheels)
+        columns.append(column)
+    if x is ColumnQuantity.ROAD_SPEED or (
+        len(columns) == 3 and columns[1].at_wheels != columns[2].at_wheels
+    ):
+        columns = columns[:2]
     return columns
 
 
@@ -294,7 +312,7 @@ def read_table(text: str) -> Table:
         On oversize or binary text, a missing header, a header naming a wrong unit, rows
         too short for the used columns (a truncated file) or too long for the header.
     """
-    significant = _significant(_check_text(text))
+    significant = significant_lines(_check_text(text))
     header = _find_header(significant)
     columns = _used_columns(header)
     data = significant[header.index + (2 if header.units_row is not None else 1) :]
@@ -308,46 +326,33 @@ def read_table(text: str) -> Table:
             )
         )
     used = {c.column for c in columns}
+    quiet = (
+        set()
+        if columns[0].quantity is ColumnQuantity.ROAD_SPEED
+        else {ColumnQuantity.ROAD_SPEED, ColumnQuantity.FORCE}
+    )
     unused = [
         repr(header.cells[i])
         for i, r in enumerate(header.read)
-        if r.quantity is not None and i + 1 not in used
+        if r.quantity is not None and r.quantity not in quiet and i + 1 not in used
     ]
     if unused:
         notices.append(
             Notice(
                 "columns_unused",
-                f"Further column(s) {', '.join(unused)} were not used; the first usable "
-                "column of each quantity was.",
+                f"Further column(s) {', '.join(unused)} were not used; the curve was read "
+                f"from {', '.join(repr(c.header) for c in columns)}.",
                 "text",
             )
         )
-    width = len(header.cells)
-    rows = tuple(_row(n, t, header.delimiter, columns, width) for n, t in data)
-    return Table(header.delimiter, header.line, tuple(columns), rows, tuple(notices))
-
-
-def _row(
-    number: int, line: str, delimiter: Delimiter, columns: list[DynoColumn], width: int
-) -> tuple[Cell, ...]:
-    """The used cells of one data row."""
-    cells = _split(line, number, delimiter)
-    extra = [j for j in range(width, len(cells)) if cells[j]]
-    if extra:
-        raise DynoFileError(
-            f"`text` line {number} has {len(cells)} cells but the header has {width}; "
-            "is a decimal comma used in a comma-separated file?",
-            line=number,
-            column=extra[0] + 1,
-        )
-    out = []
-    for col in columns:
-        if col.column > len(cells):
-            raise DynoFileError(
-                f"`text` line {number} ends after {len(cells)} cell(s), before column "
-                f"{col.column} ({col.header!r}); is the file truncated?",
-                line=number,
-                column=col.column,
-            )
-        out.append(Cell(number, col.column, cells[col.column - 1]))
-    return tuple(out)
+    rows = split_rows(data, header.delimiter.value, MAX_COLUMNS)
+    lines, texts, skipped = column_texts(data, rows, columns, len(header.cells))
+    notices.extend(skipped)
+    return Table(
+        header.delimiter,
+        header.line,
+        tuple(columns),
+        tuple(lines),
+        tuple(tuple(t) for t in texts),
+        tuple(notices),
+    )

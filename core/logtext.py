@@ -27,19 +27,20 @@ The rules:
   longitudinal acceleration; other columns are ignored. The first column of each kind is
   used.
 * Numbers: decimal point or decimal comma, decided over the whole file as in
-  :mod:`core.dynonumbers`. Every data row needs a cell in each used column: a short row
-  (a truncated file) is an error naming its line and column.
+  :mod:`core.dynonumbers`, each column checked and converted at once. Every data row
+  needs a cell in each used column: a short row (a truncated file) is an error naming its
+  line and column.
 """
 
 from __future__ import annotations
 
 import csv
-import math
 import re
 from dataclasses import dataclass
 
-from core.dynonumbers import DecimalMark, NumberFormat, number_format_of, parse_number
-from core.dynoparse import Cell, Delimiter
+from core.dynonumbers import number_format_of_texts, parse_column
+from core.dynoparse import Delimiter
+from core.dynorows import significant_lines
 from core.errors import DynoFileError
 from core.logdata import (
     MAX_SAMPLES,
@@ -105,11 +106,7 @@ def _checked(text: str) -> list[tuple[int, str]]:
             parameter="text",
             line=at,
         )
-    out: list[tuple[int, str]] = []
-    for number, line in enumerate(text.split("\n"), start=1):
-        stripped = line.strip()
-        if stripped and not stripped.startswith(_COMMENTS):
-            out.append((number, line))
+    out = significant_lines(text)
     if not out:
         raise LogDataError(
             "`text` must hold a header row and data rows, got none", parameter="text"
@@ -118,10 +115,11 @@ def _checked(text: str) -> list[tuple[int, str]]:
 
 
 def _split_rows(data: list[tuple[int, str]], delimiter: Delimiter) -> list[list[str]]:
-    """The cells of every data line: one reader over all lines, or line by line when a
-    quote could join lines (so each row keeps its own line number)."""
-    if not any('"' in line for _, line in data):
-        return list(csv.reader([line for _, line in data], delimiter=delimiter.value))
+    """The cells of every data line: split at the delimiter, or line by line through a
+    strict CSV reader when a quote could join lines (so each row keeps its own line)."""
+    lines = [line for _, line in data]
+    if '"' not in "\n".join(lines):
+        return [line.split(delimiter.value) for line in lines]
     rows = []
     for number, line in data:
         try:
@@ -172,22 +170,6 @@ def _find_header(
     )
 
 
-def _numbers(cells: list[Cell], number_format: NumberFormat) -> list[float]:
-    """The cells as numbers: one regular-expression check of the whole column when no
-    thousands separator is in use, else (and to locate a bad cell) cell by cell."""
-    texts = [c.text for c in cells]
-    if number_format.thousands_separator is None and texts:
-        mark = re.escape(number_format.decimal_mark.value)
-        one = rf"[+-]?(?:\d+(?:{mark}\d*)?|{mark}\d+)(?:[eE][+-]?\d+)?"
-        if re.fullmatch(rf"(?:{one}\n)*{one}", "\n".join(texts)) is not None:
-            if number_format.decimal_mark is DecimalMark.COMMA:
-                texts = [t.replace(",", ".") for t in texts]
-            values = [float(t) for t in texts]
-            if all(abs(x) < math.inf for x in values):
-                return values
-    return [parse_number(c, number_format) for c in cells]
-
-
 def read_log_text(text: str) -> LogText:
     """Read a logger's delimited text export into a logged pass.
 
@@ -223,21 +205,32 @@ def read_log_text(text: str) -> LogText:
             f"`text` must hold at most {MAX_SAMPLES} data rows, got {len(data)}", parameter="text"
         )
     need = max(c.column for c in columns)
-    cells: list[list[Cell]] = [[] for _ in columns]
-    for (number, _), row in zip(data, _split_rows(data, delimiter), strict=True):
-        if len(row) < need:
-            raise LogDataError(
-                f"`text` line {number} has {len(row)} cell(s), the header {need} or more: "
-                f"column {len(row) + 1} is missing (a truncated file?)",
-                parameter="text",
-                line=number,
-                column=len(row) + 1,
-            )
-        for k, col in enumerate(columns):
-            cells[k].append(Cell(number, col.column, row[col.column - 1].strip()))
+    rows = _split_rows(data, delimiter)
+    lengths = list(map(len, rows))
+    short = (
+        None
+        if min(lengths, default=need) >= need
+        else next(k for k, n in enumerate(lengths) if n < need)
+    )
+    if short is not None:
+        number, row = data[short][0], rows[short]
+        raise LogDataError(
+            f"`text` line {number} has {len(row)} cell(s), the header {need} or more: "
+            f"column {len(row) + 1} is missing (a truncated file?)",
+            parameter="text",
+            line=number,
+            column=len(row) + 1,
+        )
+    numbers = [number for number, _ in data]
+    texts = [[row[col.column - 1].strip() for row in rows] for col in columns]
     try:
-        number_format = number_format_of([c for column in cells for c in column])
-        values = {col.quantity: _numbers(cells[k], number_format) for k, col in enumerate(columns)}
+        number_format = number_format_of_texts(
+            [(t, numbers, col.column) for t, col in zip(texts, columns, strict=True)]
+        )
+        values = {
+            col.quantity: parse_column(t, numbers, col.column, number_format)
+            for t, col in zip(texts, columns, strict=True)
+        }
     except DynoFileError as exc:
         raise LogDataError(
             exc.message, parameter="text", line=exc.line, column=exc.column

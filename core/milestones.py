@@ -85,7 +85,12 @@ def speed_at_distance(run: RunResult, distance_m: float) -> float | None:
 
 
 def time_at_speed(run: RunResult, speed_m_s: float) -> float | None:
-    """Time [s] at which the run first reaches ``speed_m_s`` [m/s], or None."""
+    """Time [s] at which the run first reaches ``speed_m_s`` [m/s], or None.
+
+    Between two trace points that both accelerate, ``1/a`` is taken linear in speed, as
+    the integrator's trapezoid rule does, so the time at a speed between them is
+    quadratic in speed and meets both points; otherwise it is linear.
+    """
     v = run.speed_m_s
     reached = np.flatnonzero(v >= speed_m_s)
     if reached.size == 0:
@@ -93,8 +98,14 @@ def time_at_speed(run: RunResult, speed_m_s: float) -> float | None:
     k = int(reached[0])
     if k == 0:
         return float(run.time_s[0])
-    frac = (speed_m_s - v[k - 1]) / (v[k] - v[k - 1])
-    return float(run.time_s[k - 1] + frac * (run.time_s[k] - run.time_s[k - 1]))
+    v0, v1 = float(v[k - 1]), float(v[k])
+    t0, t1 = float(run.time_s[k - 1]), float(run.time_s[k])
+    a0, a1 = float(run.acceleration_m_s2[k - 1]), float(run.acceleration_m_s2[k])
+    dv, s = v1 - v0, speed_m_s - v0
+    if a0 > 0.0 and a1 > 0.0 and t1 > t0:
+        shape = s / a0 + (1.0 / a1 - 1.0 / a0) * s * s / (2.0 * dv)
+        return t0 + (t1 - t0) * shape / (0.5 * dv * (1.0 / a0 + 1.0 / a1))
+    return t0 + s / dv * (t1 - t0)
 
 
 @dataclass(frozen=True)

@@ -191,8 +191,8 @@ def optimal_shift_rpm(
     max_evaluations: int = 120,
     initial_name: str = "plan",
 ) -> OptimalShifts:
-    """Shift rpms minimising the time to the finish, by ``scipy.optimize.minimize`` (Powell,
-    bounded) over full simulated runs, shift time and traction included, seeded with the
+    """Shift rpms minimising the time to the finish, by a pattern search over full simulated
+    runs run in batches, shift time and traction included, seeded with the
     caller's plan, the rev limit, the wheel-force crossover and the net-acceleration plan
     (:func:`core.shiftsearch.search_shift_rpm`): never slower than any of them.
 
@@ -207,7 +207,8 @@ def optimal_shift_rpm(
     finish_distance_m, finish_speed_m_s : float or None
         The finish: a distance from the clock start [m], or a speed [m/s].
     max_evaluations : int
-        Budget of simulated runs, seeds included.
+        Budget of simulated runs, seeds included; the search's batches take about two
+        runs' time for a dozen runs.
     initial_name : str
         Name reported for ``initial_rpm`` when it wins.
 

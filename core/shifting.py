@@ -9,9 +9,10 @@ range when shifting at speed s is, up to a constant,
 
 so dJ/ds = 1/e_i(s) - 1/e_{i+1}(s): J is stationary where the two efforts cross, and a
 minimum where gear i's effort falls below gear i+1's. This module scans every gear pair at
-once on a fine grid, refines each such crossing with ``scipy.optimize.brentq`` on the
-interpolated curves, adds the ends of the range as candidates, and keeps the candidate with
-the least J (integrated with ``scipy.integrate.cumulative_trapezoid``), so curves that cross
+once on a fine grid, refines each such crossing by bracketed root finding on the
+interpolated curves (an Illinois secant to 1e-7 rpm, the tolerance ``scipy.optimize.brentq``
+was given here; the tests hold the two together), adds the ends of the range as candidates,
+and keeps the candidate with the least J (a cumulative trapezoid), so curves that cross
 more than once still get the quickest shift. Where the efforts coincide over a stretch, J is
 flat there and the band is reported.
 
@@ -22,17 +23,18 @@ speed in a gear without slip, so the argmin is the same.
 from __future__ import annotations
 
 import enum
+import functools
 from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy.integrate import cumulative_trapezoid
-from scipy.optimize import brentq
 
 __all__ = [
     "COINCIDENT_RTOL",
+    "REFINE_STEPS",
     "SCAN_POINTS",
+    "XTOL",
     "ScalarDiff",
     "ShiftChoice",
     "ShiftReason",
@@ -46,6 +48,8 @@ ScalarDiff = Callable[[int, float], float]
 
 COINCIDENT_RTOL = 1e-4
 SCAN_POINTS = 513
+XTOL = 1e-7  # [rpm] width of the bracket a refined crossing is found in
+REFINE_STEPS = 100  # bound on the steps of one refinement (a handful are used)
 
 
 class ShiftReason(enum.Enum):
@@ -120,6 +124,53 @@ def _intersections(grid: FloatArray, diff: FloatArray, band: tuple[float, float]
     return int(np.count_nonzero(signs[1:] != signs[:-1]))
 
 
+def _crossing(f: Callable[[float], float], a: float, b: float, fa: float, fb: float) -> float:
+    """The crossing of ``f`` in ``[a, b]`` [rpm], where ``fa = f(a) > 0 >= f(b) = fb``.
+
+    Bracketed root finding to ``XTOL``, as ``scipy.optimize.brentq(f, a, b, xtol=XTOL)``
+    but without its per-call wrapping: each step takes the Illinois (modified regula falsi)
+    point and, when the crossing is not on its near side, a second point ``XTOL / 2``
+    beyond it, so once the estimate is within half the tolerance the bracket closes on the
+    crossing. The bracket always holds the sign change.
+    """
+    half = 0.5 * XTOL
+    kept = 0  # the end the last step kept: -1 a, +1 b
+    for _ in range(REFINE_STEPS):
+        w = b - a
+        if w <= XTOL:
+            break
+        s = min(max(a + fa / (fa - fb) * w, a + 0.5 * half), b - 0.5 * half)
+        ds = f(s)
+        if ds == 0.0:
+            return s
+        left = ds < 0.0  # the crossing is in [a, s]
+        if left == (s - a < b - s):  # on the short side of s: keep that part
+            s2, d2 = s, ds
+        else:  # on the long side: try just beyond s, to close the bracket
+            s2 = s - half if left else s + half
+            d2 = f(s2)
+            if d2 == 0.0:
+                return s2
+            if (d2 < 0.0) != left:  # between s and s2
+                a, b, fa, fb = (s2, s, d2, ds) if left else (s, s2, ds, d2)
+                break
+        if left:  # replace b; a kept (Illinois: halve it when kept twice)
+            b, fb = s2, d2
+            fa, kept = (0.5 * fa if kept == -1 else fa), -1
+        else:
+            a, fa = s2, d2
+            fb, kept = (0.5 * fb if kept == 1 else fb), 1
+    return min(max(a + fa / (fa - fb) * (b - a), a), b)
+
+
+def _cost(grid: FloatArray, slowness: FloatArray) -> FloatArray:
+    """Cumulative trapezoid along each row from 0, as ``cumulative_trapezoid(initial=0)``."""
+    steps = np.diff(grid, axis=1) * (slowness[:, 1:] + slowness[:, :-1]) / 2.0
+    out = np.zeros_like(grid)
+    np.cumsum(steps, axis=1, out=out[:, 1:])
+    return out
+
+
 def best_shifts(
     efforts: VectorEfforts,
     diff_scalar: ScalarDiff | None,
@@ -137,10 +188,10 @@ def best_shifts(
         each ``n`` means in the current gear; both of shape (p, m). Higher is better.
     diff_scalar : callable or None
         ``diff_scalar(k, n) -> current - next`` for one gear change and one speed, the same
-        function as ``efforts`` without array overhead; each crossing is refined with
-        ``brentq`` on it. None (for efforts too costly to call one point at a time, such as
-        a converter solved by bisection) locates each crossing by linear interpolation in
-        its scan cell, 1/512 of the range wide.
+        function as ``efforts`` without array overhead; each crossing is refined on it by
+        bracketed root finding to ``XTOL`` [rpm]. None (for efforts too costly to call one
+        point at a time, such as a converter solved by bisection) locates each crossing by
+        linear interpolation in its scan cell, 1/512 of the range wide.
     rpm_low : array_like, shape (p,)
         Start of each shared range in current-gear rpm (the next gear's lowest usable speed).
     rpm_high : array_like, shape (p,)
@@ -172,7 +223,7 @@ def best_shifts(
     scale = np.maximum(scale, 1e-300)
     floor = 1e-9 * scale[:, None]
     slowness = 1.0 / np.maximum(e_cur, floor) - 1.0 / np.maximum(e_next, floor)
-    cost = cumulative_trapezoid(slowness, grid, axis=1, initial=0.0)
+    cost = _cost(grid, slowness)
 
     choices = []
     for k in range(lo.size):
@@ -201,7 +252,8 @@ def best_shifts(
             elif diff_scalar is None:
                 root = float(g[j] + d[j] / (d[j] - d[j + 1]) * (g[j + 1] - g[j]))
             else:
-                root = float(brentq(lambda x, k=k: diff_scalar(k, x), g[j], g[j + 1], xtol=1e-7))
+                f = functools.partial(diff_scalar, k)
+                root = _crossing(f, float(g[j]), float(g[j + 1]), float(d[j]), float(d[j + 1]))
             if band is None or not band[0] <= root <= band[1]:
                 roots.append(root)
         candidates = [float(lo[k]), top, *roots]

@@ -1,8 +1,10 @@
 """The time-optimal shift search, seeded with every plan it could otherwise have used.
 
-The search minimises the simulated time to the finish over the shift rpms with
-``scipy.optimize.minimize`` (Powell, bounded) from the quickest of its seeds: the caller's
-plan, shifting at the rev limit, the wheel-force crossover and the net-acceleration plan.
+The search minimises the simulated time to the finish over the shift rpms by a pattern
+search whose trial points run together, one batch of the run integrator per round
+(:func:`core.shiftpattern.pattern_search`, :func:`core.batchrun.batch_finish_times`), from
+the quickest of its seeds: the caller's plan, shifting at the rev limit, the wheel-force
+crossover and the net-acceleration plan.
 Every seed is timed first, so the answer is never slower than any of them, and the one
 that won (or ``"search"`` when the search improved on all of them) is reported.
 """
@@ -14,10 +16,11 @@ from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy.optimize import minimize
 
-from core.milestones import time_at_distance, time_at_speed
-from core.simulate import DriveModel, RunResult, simulate_run
+from core.batchrun import batch_finish_times
+from core.milestones import time_at_distance
+from core.shiftpattern import pattern_search
+from core.simulate import DriveModel, simulate_run
 
 __all__ = ["SEARCH_WON", "OptimalShifts", "search_shift_rpm"]
 
@@ -25,6 +28,9 @@ FloatArray = NDArray[np.float64]
 SEARCH_WON = "search"
 """``OptimalShifts.won_by`` when the search found shifts quicker than every seed."""
 _UNREACHED_S = 1e6
+_SEARCH_STEP = 0.04  # first step of the pattern search, as a share of the rev limit
+_SEARCH_MIN_STEP_RPM = 4.0
+_SEARCH_ROUNDS = 10
 
 
 @dataclass(frozen=True)
@@ -91,39 +97,42 @@ def search_shift_rpm(
     lower = np.minimum(
         np.maximum(model.curve.rpm_min / step, model.curve.rpm_min + 1.0), limit - 1.0
     )
-    cover = (finish_distance_m or 0.0) + rollout_m
-    evaluations = 0
+    rollout = rollout_m if start_speed_m_s == 0.0 else 0.0
+    cover = (finish_distance_m or 0.0) + rollout
 
-    def timed(rpm: FloatArray) -> tuple[float, RunResult]:
-        nonlocal evaluations
-        evaluations += 1
-        run = simulate_run(
+    def time_rows(rows: FloatArray) -> FloatArray:
+        times = batch_finish_times(
             model,
-            rpm,
+            rows,
             start_speed_m_s=start_speed_m_s,
-            cover_distance_m=cover,
-            cover_speed_m_s=finish_speed_m_s or 0.0,
+            rollout_m=rollout_m,
+            finish_distance_m=finish_distance_m,
+            finish_speed_m_s=finish_speed_m_s,
         )
-        if finish_distance_m is not None:
-            t_end = time_at_distance(run, cover)
-            t_start = time_at_distance(run, rollout_m) or 0.0
-        else:
-            t_end = time_at_speed(run, float(finish_speed_m_s or 0.0))
-            t_start = 0.0
-        return (_UNREACHED_S if t_end is None else t_end - t_start), run
+        return np.where(np.isfinite(times), times, _UNREACHED_S)
 
-    tried: list[tuple[str, FloatArray, float, RunResult]] = []
+    named: list[tuple[str, FloatArray]] = []
     for name, rpm in seeds:
         x = np.clip(np.asarray(rpm, dtype=np.float64), lower, limit)
-        if any(np.array_equal(x, t[1]) for t in tried):
-            continue
-        time_s, run = timed(x)
-        tried.append((name, x, time_s, run))
+        if not any(np.array_equal(x, t[1]) for t in named):
+            named.append((name, x))
+    # every seed timed in one batch, as run_report times the finish
+    seed_times = time_rows(np.array([x for _, x in named]))
+    evaluations = len(named)
+    tried = [(n, x, float(t)) for (n, x), t in zip(named, seed_times.tolist(), strict=True)]
     baseline = tried[0][2]
-    won_by, x0, best_time, first = min(tried, key=lambda t: t[2])
+    won_by, x0, best_time = min(tried, key=lambda t: t[2])
     report = tuple((t[0], t[2]) for t in tried)
+    first = simulate_run(
+        model,
+        x0,
+        start_speed_m_s=start_speed_m_s,
+        cover_distance_m=cover,
+        cover_speed_m_s=finish_speed_m_s or 0.0,
+    )
+    evaluations += 1
     # only the shifts made before the finish can change its time
-    finish_at = best_time + (time_at_distance(first, rollout_m) or 0.0)
+    finish_at = best_time + (time_at_distance(first, rollout) or 0.0)
     active = np.array(
         [k for k, s in enumerate(first.shifts) if s.time_s < finish_at], dtype=np.int64
     )
@@ -131,20 +140,20 @@ def search_shift_rpm(
     if active.size == 0 or budget <= 0:
         return OptimalShifts(x0, best_time, baseline, evaluations, won_by, report)
 
-    def run_time(x: FloatArray) -> float:
-        rpm = x0.copy()
-        rpm[active] = np.clip(x, lower[active], limit)
-        return timed(rpm)[0]
-
-    res = minimize(
-        run_time,
-        x0[active],
-        method="Powell",
-        bounds=list(zip(lower[active].tolist(), [limit] * active.size, strict=True)),
-        options={"maxfev": budget, "xtol": 1e-3, "ftol": 1e-6},
+    found = pattern_search(
+        time_rows,
+        x0,
+        best_time,
+        active,
+        (lower, np.full(x0.size, limit)),
+        step_rpm=_SEARCH_STEP * limit,
+        min_step_rpm=_SEARCH_MIN_STEP_RPM,
+        max_rounds=_SEARCH_ROUNDS,
+        max_evaluations=budget,
     )
-    if float(res.fun) < best_time:
-        best = x0.copy()
-        best[active] = np.clip(np.asarray(res.x, dtype=np.float64), lower[active], limit)
-        return OptimalShifts(best, float(res.fun), baseline, evaluations, SEARCH_WON, report)
+    evaluations += found.evaluations
+    if found.time_s < best_time:
+        return OptimalShifts(
+            found.shift_rpm, found.time_s, baseline, evaluations, SEARCH_WON, report
+        )
     return OptimalShifts(x0, best_time, baseline, evaluations, won_by, report)

@@ -1,54 +1,56 @@
-"""Acceleration runs, integrated over road speed rather than stepped in time.
+"""Acceleration runs of one car: the drive model and a run as a batch of one.
 
-In each gear the net acceleration is a function of speed alone (quasi-static engine,
-converter and road load),
+:class:`DriveModel` fixes the car's net acceleration in each gear (quasi-static engine,
+clutch or converter, traction limit with weight transfer, road load and the rotating
+masses, Gillespie ch. 2). :func:`simulate_run` integrates one run with the integrator of
+:mod:`core.integrator`, the same code that integrates many final drive candidates at once
+(:func:`core.batchrun.batch_runs`), and keeps its trace.
 
-    a_g(v) = (min(F_g(v), F_traction) - R(v)) / m_g
-
-with ``F_g`` the drive force through the clutch or converter, ``F_traction`` the closed-form
-traction limit with weight transfer, ``R`` the road load and ``m_g`` the mass plus the
-equivalent mass of the rotating parts in that gear (Gillespie ch. 2). Time and distance
-follow as integrals over speed, ``t = int dv / a`` and ``x = int v dv / a``, evaluated for a
-whole gear at once with ``scipy.integrate.cumulative_trapezoid`` on a speed grid: no Python
-loop per time step. A shift takes ``shift_time_s`` with no drive, during which the car
-slows at the road-load deceleration of the shift speed. Once the net acceleration falls
-below ``MIN_ACCELERATION`` the car is taken to hold its speed (drag or rev limiter).
+A converter's operating point depends on the turbine speed alone, so the model solves it
+once per car on a table of turbine speeds (:attr:`DriveModel.converter_map`) and every
+run reads it by linear interpolation.
 """
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy.integrate import cumulative_trapezoid
 
-from core.converter_drive import ConverterDrive, converter_input
+from core.converter_map import ConverterMap, converter_map
 from core.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
 from core.drivetrain import Drivetrain
 from core.errors import SimulationError
+from core.integrator import (
+    MAX_SPEED_M_S,
+    POINTS_PER_GEAR,
+    GearBlock,
+    RunEnds,
+    RunStart,
+    ShiftBlock,
+    integrate_runs,
+)
 from core.plan import Notice, resolve_rev_limit
 from core.tires import Tire
 from core.vehicle import Coupling, Launch, Vehicle
 
 __all__ = [
     "MAX_SPEED_M_S",
-    "MIN_ACCELERATION",
     "POINTS_PER_GEAR",
     "DriveModel",
     "RunResult",
     "RunShift",
     "checked_shift_rpm",
+    "default_start_gear",
     "drive_model",
     "simulate_run",
 ]
 
 FloatArray = NDArray[np.float64]
-MIN_ACCELERATION = 0.05  # [m/s^2]; below this the car is taken to hold speed
-POINTS_PER_GEAR = 241
-MAX_SPEED_M_S = 150.0  # [m/s], no run integrates beyond this
 
 
 @dataclass(frozen=True)
@@ -160,12 +162,30 @@ class DriveModel:
             floor = self.launch_rpm if launching else curve.rpm_min
             engine = np.maximum(n_in, floor)
             return curve.torque_at(np.minimum(engine, limit)), engine
+        turbine = np.minimum(n_in, limit)
+        table = self.converter_map
+        nodes, engine_map, torque_map = table.turbine_rpm, table.engine_rpm, table.output_torque_nm
+        if gear + 1 not in self.launch.lockup_gears:
+            return np.interp(turbine, nodes, torque_map), np.interp(turbine, nodes, engine_map)
+        engine = turbine.copy()
+        torque = curve.torque_at(turbine)
+        slipping = turbine < curve.rpm_min
+        if slipping.any():
+            engine[slipping] = np.interp(turbine[slipping], nodes, engine_map)
+            torque[slipping] = np.interp(turbine[slipping], nodes, torque_map)
+        return torque, engine
+
+    @functools.cached_property
+    def converter_map(self) -> ConverterMap:
+        """The converter's operating point against turbine speed (lock-up open), from 0 to
+        the rev limit, tabulated once per car by :func:`core.converter_map.converter_map`.
+        """
         converter = self.launch.converter
-        if converter is None:  # Launch.__post_init__ forbids it; kept for the type
+        if converter is None:
             raise SimulationError("`converter` is missing", parameter="converter")
-        drive = ConverterDrive(converter, self.launch.lockup_gears)
-        out = converter_input(drive, curve, limit, gear, n_in)
-        return out.torque_nm, out.engine_rpm
+        return converter_map(
+            converter, self.curve.torque_at, rpm_min=self.curve.rpm_min, rpm_max=self.rev_limit_rpm
+        )
 
     def acceleration(
         self, gear: int, speed_m_s: FloatArray, *, launching: bool = False
@@ -288,10 +308,14 @@ class RunResult:
         Every upshift.
     shift_rpm : ndarray, shape (g - 1,)
         Shift rpm used for each gear change.
+    start_gear : int
+        Gear the run started in (1 = first).
     held_speed_m_s : float or None
-        Speed the car settled at when it stopped accelerating (drag or rev limiter), if it did.
+        The drag-limited speed the run approaches (it follows the approach to within a
+        part per million, then carries on at it) or the speed it is held at by the rev
+        limiter in top gear [m/s]; None when it did neither.
     held_by : str or None
-        ``"drag"`` or ``"rev_limit"`` when the car settled.
+        ``"drag"`` or ``"rev_limit"`` accordingly.
     notices : tuple of Notice
         Warnings about the run.
     """
@@ -305,6 +329,7 @@ class RunResult:
     traction_limited: NDArray[np.bool_]
     shifts: tuple[RunShift, ...]
     shift_rpm: FloatArray
+    start_gear: int
     held_speed_m_s: float | None
     held_by: str | None
     notices: tuple[Notice, ...]
@@ -337,11 +362,156 @@ def checked_shift_rpm(model: DriveModel, shift_rpm: ArrayLike) -> FloatArray:
     return shifts
 
 
-def _start_gear(model: DriveModel, v0: float, shift_speed: FloatArray) -> int:
-    for g in range(shift_speed.size):
-        if v0 < shift_speed[g]:
-            return g
-    return int(shift_speed.size) - 1
+def default_start_gear(model: DriveModel, shift_rpm: FloatArray, start_speed_m_s: float) -> int:
+    """The lowest gear that can pull the start speed below its shift rpm (1 = first).
+
+    The top gear, which has no shift rpm, takes anything below its rev-limit speed.
+    """
+    gears = model.drivetrain.gear_count
+    for g in range(gears - 1):
+        if start_speed_m_s < model.speed_at_rpm(g, float(shift_rpm[g])):
+            return g + 1
+    return gears
+
+
+def _checked_start(
+    model: DriveModel, shifts: FloatArray, start_speed_m_s: float, start_gear: int | None
+) -> int:
+    """The start gear number, checked against the start speed."""
+    gears = model.drivetrain.gear_count
+    if not 0.0 <= start_speed_m_s < MAX_SPEED_M_S:
+        raise SimulationError(
+            f"`start_speed_m_s` must lie in [0, {MAX_SPEED_M_S:g}), got {start_speed_m_s}",
+            parameter="start_speed_m_s",
+        )
+    top_speed = model.speed_at_rpm(gears - 1, model.rev_limit_rpm)
+    if start_speed_m_s >= top_speed:
+        raise SimulationError(
+            f"`start_speed_m_s` ({start_speed_m_s:.1f} m/s) must be below the top gear's "
+            f"rev-limit speed ({top_speed:.1f} m/s)",
+            parameter="start_speed_m_s",
+        )
+    if start_gear is None:
+        return default_start_gear(model, shifts, start_speed_m_s)
+    if not 1 <= start_gear <= gears:
+        raise SimulationError(
+            f"`start_gear` must name a gear from 1 to {gears}, got {start_gear}",
+            parameter="start_gear",
+        )
+    rpm = float(model.coupled_rpm(start_gear - 1, np.array([start_speed_m_s]))[0])
+    if rpm >= model.rev_limit_rpm:
+        raise SimulationError(
+            f"`start_gear` {start_gear} would turn {rpm:.0f} rpm at the start speed, at or "
+            f"above the rev limit ({model.rev_limit_rpm:.0f} rpm)",
+            parameter="start_gear",
+        )
+    return start_gear
+
+
+class _Trace:
+    """A :class:`core.integrator.RunSink` keeping the one run's trace."""
+
+    def __init__(self) -> None:
+        self.parts: list[tuple[FloatArray, ...]] = []
+        self.gears: list[NDArray[np.int64]] = []
+        self.limited: list[NDArray[np.bool_]] = []
+        self.shifts: list[RunShift] = []
+
+    def gear(self, block: GearBlock) -> None:
+        t, v = block.time_s[0], block.speed_m_s[0]
+        keep = np.ones(t.size, dtype=np.bool_)  # drop the padding that repeats a point
+        keep[1:] = (np.diff(t) > 0.0) | (np.diff(v) != 0.0)
+        cols = (t, v, block.distance_m[0], block.engine_rpm[0], block.acceleration_m_s2[0])
+        self.parts.append(tuple(c[keep] for c in cols))
+        self.gears.append(np.full(int(keep.sum()), block.gear + 1, dtype=np.int64))
+        self.limited.append(block.traction_limited[0][keep])
+
+    def shift(self, block: ShiftBlock) -> None:
+        g, decel = block.gear, float(block.deceleration_m_s2[0])
+        self.shifts.append(
+            RunShift(
+                g + 1,
+                g + 2,
+                float(block.time_s[0]),
+                float(block.speed_m_s[0]),
+                float(block.distance_m[0]),
+                float(block.rpm_before[0]),
+                max(float(block.rpm_after[0]), 0.0),
+            )
+        )
+        if block.end_time_s[0] <= block.time_s[0]:
+            return  # an instant shift adds no points
+        # the coast through the shift: decelerating from its first instant
+        pair = (
+            np.array([block.time_s[0], block.end_time_s[0]]),
+            np.array([block.speed_m_s[0], block.end_speed_m_s[0]]),
+            np.array([block.distance_m[0], block.end_distance_m[0]]),
+            np.array([block.rpm_before[0], max(float(block.rpm_after[0]), 0.0)]),
+            np.array([-decel, -decel]),
+        )
+        self.parts.append(pair)
+        self.gears.append(np.array([g + 1, g + 2], dtype=np.int64))
+        self.limited.append(np.zeros(2, dtype=np.bool_))
+
+
+def _run_notices(
+    model: DriveModel, shifts: FloatArray, ends: RunEnds, trace: _Trace, start_speed: float
+) -> list[Notice]:
+    notes: list[Notice] = []
+    gears = model.drivetrain.gear_count
+    if (
+        start_speed == 0.0
+        and model.launch.coupling is Coupling.CLUTCH
+        and gears > 1
+        and model.launch_rpm >= shifts[0]
+    ):
+        notes.append(
+            Notice(
+                "launch_above_shift",
+                f"The launch rpm ({model.launch_rpm:.0f}) is at or above the first shift rpm "
+                f"({shifts[0]:.0f}): first gear is left while the clutch still slips.",
+                "launch_rpm",
+            )
+        )
+    for g in np.flatnonzero(ends.left_at_once[0]).tolist():
+        notes.append(
+            Notice(
+                "gear_left_at_once",
+                f"Gear {g + 1} lands above its shift rpm ({shifts[g]:.0f}); it is "
+                "left as soon as it is entered.",
+                f"shift_rpm[{g}]",
+            )
+        )
+    stalled = int(ends.stalled_gear[0])
+    if stalled >= 0:
+        notes.append(
+            Notice(
+                "gear_cannot_pull",
+                f"Gear {stalled + 1} cannot accelerate the car at the speed it is entered "
+                "with; the run ends there and later distances and speeds are not reached.",
+                f"shift_rpm[{stalled - 1}]",
+            )
+        )
+    settled = float(ends.settled_m_s[0])
+    if ends.settled_by[0] == "drag":
+        notes.append(
+            Notice(
+                "drag_limited_speed",
+                f"The car approaches its drag-limited speed of {settled:.1f} m/s in gear "
+                f"{int(trace.gears[-1][-1])} and never quite reaches it; the run follows "
+                "the approach to within a part per million and carries on at that speed.",
+            )
+        )
+    elif ends.settled_by[0] == "rev_limit":
+        notes.append(
+            Notice(
+                "rev_limit_held",
+                f"The car reaches the rev limit in gear {int(trace.gears[-1][-1])} at "
+                f"{settled:.1f} m/s and is held there (no acceleration) for the rest of the "
+                "run.",
+            )
+        )
+    return notes
 
 
 def simulate_run(
@@ -349,10 +519,11 @@ def simulate_run(
     shift_rpm: Sequence[float] | FloatArray,
     *,
     start_speed_m_s: float = 0.0,
+    start_gear: int | None = None,
     cover_distance_m: float,
     cover_speed_m_s: float = 0.0,
 ) -> RunResult:
-    """Simulate a full-throttle run.
+    """Simulate a full-throttle run: the integrator of :mod:`core.integrator` with one row.
 
     Parameters
     ----------
@@ -362,7 +533,10 @@ def simulate_run(
         Engine speed at which to leave each gear [rpm], at most the rev limit.
     start_speed_m_s : float
         0 for a standing start (the launch gear slips its clutch or converter), else a
-        rolling start in the lowest gear whose shift speed lies above it [m/s].
+        rolling start [m/s].
+    start_gear : int, optional
+        Gear to start in (1 = first); by default the lowest gear that can pull the start
+        speed below its shift rpm (:func:`default_start_gear`).
     cover_distance_m : float
         The run continues at least this far from the start [m].
     cover_speed_m_s : float
@@ -371,186 +545,42 @@ def simulate_run(
     Returns
     -------
     RunResult
+        A car that cannot reach its next shift goes on towards its drag-limited speed; one
+        whose next gear cannot pull it ends early, and its trace stops there.
 
     Raises
     ------
     SimulationError
-        When the car cannot move off, or the shift rpm list does not fit the gears.
+        When the car cannot move off, or the shift rpm list, start speed or start gear do
+        not fit the gears.
     """
-    gears = model.drivetrain.gear_count
-    shifts_in = checked_shift_rpm(model, shift_rpm)
-    if not 0.0 <= start_speed_m_s < MAX_SPEED_M_S:
+    shifts = checked_shift_rpm(model, shift_rpm)
+    gear = _checked_start(model, shifts, start_speed_m_s, start_gear)
+    trace = _Trace()
+    start = RunStart(start_speed_m_s, gear - 1, cover_distance_m, cover_speed_m_s)
+    ratio = model.drivetrain.overall_ratios[None, :]
+    masses = (model.effective_mass_kg[None, :], np.array([model.decoupled_mass_kg]))
+    ends = integrate_runs(model, ratio, masses, shifts, start, trace)
+    if not ends.moved[0]:
         raise SimulationError(
-            f"`start_speed_m_s` must lie in [0, {MAX_SPEED_M_S:g}), got {start_speed_m_s}",
+            "The car cannot move off: road load and grade exceed the drive force at the start.",
             parameter="start_speed_m_s",
         )
-    notes: list[Notice] = []
-    shift_speed = np.array(
-        [model.speed_at_rpm(g, float(n)) for g, n in enumerate(shifts_in.tolist())]
-        + [model.speed_at_rpm(gears - 1, model.rev_limit_rpm)]
-    )
-    if start_speed_m_s >= shift_speed[-1]:
-        raise SimulationError(
-            f"`start_speed_m_s` ({start_speed_m_s:.1f} m/s) must be below the top gear's "
-            f"rev-limit speed ({shift_speed[-1]:.1f} m/s)",
-            parameter="start_speed_m_s",
-        )
-    if (
-        start_speed_m_s == 0.0
-        and model.launch.coupling is Coupling.CLUTCH
-        and gears > 1
-        and model.launch_rpm >= shifts_in[0]
-    ):
-        notes.append(
-            Notice(
-                "launch_above_shift",
-                f"The launch rpm ({model.launch_rpm:.0f}) is at or above the first shift rpm "
-                f"({shifts_in[0]:.0f}): first gear is left while the clutch still slips.",
-                "launch_rpm",
-            )
-        )
-    g = _start_gear(model, start_speed_m_s, shift_speed)
-    launching = start_speed_m_s == 0.0
-    v_in, t0, x0 = start_speed_m_s, 0.0, 0.0
-    parts: dict[str, list[FloatArray]] = {k: [] for k in ("t", "v", "x", "n", "a")}
-    gear_parts: list[NDArray[np.int64]] = []
-    limited_parts: list[NDArray[np.bool_]] = []
-    events: list[RunShift] = []
-    held: float | None = None
-    held_by: str | None = None
-    target_v = min(max(cover_speed_m_s, 0.0), MAX_SPEED_M_S)
-
-    def shift(g: int, v_out: float, rpm_before: float) -> float:
-        """No drive for shift_time_s, slowing at the road-load deceleration."""
-        nonlocal t0, x0
-        ts = model.launch.shift_time_s
-        decel = float(model.vehicle.road_load.force_n(np.array([v_out]))[0])
-        decel /= model.vehicle.mass_kg
-        v_after = max(v_out - decel * ts, 0.0)
-        n_after = float(model.coupled_rpm(g + 1, np.array([v_after]))[0])
-        events.append(RunShift(g + 1, g + 2, t0, v_out, x0, rpm_before, max(n_after, 0.0)))
-        if ts > 0.0:
-            parts["t"].append(np.array([t0 + ts]))
-            parts["v"].append(np.array([v_after]))
-            parts["x"].append(np.array([x0 + 0.5 * (v_out + v_after) * ts]))
-            parts["n"].append(np.array([n_after]))
-            parts["a"].append(np.array([-decel]))
-            gear_parts.append(np.array([g + 2], dtype=np.int64))
-            limited_parts.append(np.array([False]))
-            t0, x0 = t0 + ts, x0 + 0.5 * (v_out + v_after) * ts
-        return v_after
-
-    while True:
-        v_top = float(shift_speed[g])
-        v_end = min(v_top, MAX_SPEED_M_S)
-        if g < gears - 1 and v_in >= v_end:
-            # entered above its own shift speed: the gear is left at once
-            notes.append(
-                Notice(
-                    "gear_left_at_once",
-                    f"Gear {g + 1} lands above its shift rpm ({shifts_in[g]:.0f}); it is "
-                    "left as soon as it is entered.",
-                    f"shift_rpm[{g}]",
-                )
-            )
-            rpm_in = float(model.coupled_rpm(g, np.array([v_in]))[0])
-            g, v_in, launching = g + 1, shift(g, v_in, rpm_in), False
-            continue
-        grid = np.linspace(v_in, v_end, POINTS_PER_GEAR)
-        if launching and model.launch.coupling is Coupling.CLUTCH:
-            v_lock = model.speed_at_rpm(g, model.launch_rpm)
-            if v_in < v_lock < v_end:
-                grid = np.union1d(grid, [v_lock])
-        a, rpm, limited = model.acceleration(g, grid, launching=launching)
-        if g < gears - 1:
-            # leave the gear when the engine reaches the shift rpm: with a slipping
-            # converter that comes before the coupled speed of the shift rpm
-            due = np.flatnonzero(rpm >= shifts_in[g] * (1.0 - 1e-9))
-            if due.size and 0 < int(due[0]) < grid.size - 1:
-                k = int(due[0])
-                frac = (shifts_in[g] - rpm[k - 1]) / (rpm[k] - rpm[k - 1])
-                v_cut = float(grid[k - 1] + frac * (grid[k] - grid[k - 1]))
-                v_top = v_cut
-                grid = np.append(grid[:k], v_cut)
-                a = np.append(a[:k], a[k - 1] + frac * (a[k] - a[k - 1]))
-                rpm = np.append(rpm[:k], shifts_in[g])
-                limited = np.append(limited[:k], limited[k - 1])
-        weak = np.flatnonzero(a < MIN_ACCELERATION)
-        stop = weak.size > 0
-        if stop:
-            k = int(weak[0])
-            if k == 0:
-                if not parts["t"]:
-                    raise SimulationError(
-                        "The car cannot move off: road load and grade exceed the drive "
-                        "force at the start.",
-                        parameter="start_speed_m_s",
-                    )
-                held, held_by = v_in, "drag"
-                break
-            # speed where the acceleration falls to the floor, by linear interpolation
-            frac = (a[k - 1] - MIN_ACCELERATION) / (a[k - 1] - a[k])
-            v_stop = float(grid[k - 1] + frac * (grid[k] - grid[k - 1]))
-            keep = grid < v_stop
-            grid = np.append(grid[keep], v_stop)
-            a = np.append(a[keep], MIN_ACCELERATION)
-            rpm = np.append(rpm[keep], rpm[k - 1] + frac * (rpm[k] - rpm[k - 1]))
-            limited = np.append(limited[keep], False)
-        inv = 1.0 / a
-        t = t0 + cumulative_trapezoid(inv, grid, initial=0.0)
-        x = x0 + cumulative_trapezoid(grid * inv, grid, initial=0.0)
-        for key, arr in (("t", t), ("v", grid), ("x", x), ("n", rpm), ("a", a)):
-            parts[key].append(arr)
-        gear_parts.append(np.full(grid.size, g + 1, dtype=np.int64))
-        limited_parts.append(limited)
-        t0, x0, v_out = float(t[-1]), float(x[-1]), float(grid[-1])
-        if stop:
-            held = v_out
-            held_by = "rev_limit" if v_out >= v_top * (1 - 1e-6) else "drag"
-            break
-        if g == gears - 1 or v_out >= MAX_SPEED_M_S:
-            held, held_by = v_out, "rev_limit"
-            break
-        if x0 >= cover_distance_m and v_out >= target_v:
-            break
-        g, v_in, launching = g + 1, shift(g, v_out, float(rpm[-1])), False
-
-    time = np.concatenate(parts["t"])
-    speed = np.concatenate(parts["v"])
-    dist = np.concatenate(parts["x"])
-    rpm_all = np.concatenate(parts["n"])
-    accel = np.concatenate(parts["a"])
-    gear_all = np.concatenate(gear_parts)
-    limited_all = np.concatenate(limited_parts)
-    if held is not None and dist[-1] < cover_distance_m:
-        # hold the settled speed for the rest of the distance asked for
-        extra_t = (cover_distance_m - dist[-1]) / max(held, 1e-9)
-        time = np.append(time, time[-1] + extra_t)
-        speed = np.append(speed, held)
-        dist = np.append(dist, cover_distance_m)
-        rpm_all = np.append(rpm_all, rpm_all[-1])
-        accel = np.append(accel, 0.0)
-        gear_all = np.append(gear_all, gear_all[-1])
-        limited_all = np.append(limited_all, False)
-        where = "the rev limit in top gear" if held_by == "rev_limit" else "its drag limit"
-        notes.append(
-            Notice(
-                "speed_held",
-                f"The car reached {where} at {held:.1f} m/s after {time[-2]:.1f} s and is "
-                "taken to hold that speed for the rest of the run.",
-            )
-        )
+    columns = [np.concatenate(c) for c in zip(*trace.parts, strict=True)]
+    notes = _run_notices(model, shifts, ends, trace, start_speed_m_s)
+    settled = float(ends.settled_m_s[0])
     return RunResult(
-        time_s=time,
-        speed_m_s=speed,
-        distance_m=dist,
-        gear=gear_all,
-        engine_rpm=rpm_all,
-        acceleration_m_s2=accel,
-        traction_limited=limited_all,
-        shifts=tuple(events),
-        shift_rpm=shifts_in,
-        held_speed_m_s=held,
-        held_by=held_by,
+        time_s=columns[0],
+        speed_m_s=columns[1],
+        distance_m=columns[2],
+        gear=np.concatenate(trace.gears),
+        engine_rpm=columns[3],
+        acceleration_m_s2=columns[4],
+        traction_limited=np.concatenate(trace.limited),
+        shifts=tuple(trace.shifts),
+        shift_rpm=shifts,
+        start_gear=gear,
+        held_speed_m_s=settled if math.isfinite(settled) else None,
+        held_by=ends.settled_by[0],
         notices=tuple(model.notices) + tuple(notes),
     )

@@ -12,7 +12,6 @@ diameter [in] / (overall ratio * 336.135) inverted (common practice).
 
 from __future__ import annotations
 
-import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -27,7 +26,7 @@ from core.errors import SimulationError
 from core.milestones import FOOT_M
 from core.plan import Notice, resolve_rev_limit, shift_plan
 from core.simulate import drive_model
-from core.sweepopt import SweepOptimum, continuous_optimum, objective_at, top_gear_rpm
+from core.sweepopt import SweepOptimum, continuous_optimum, top_gear_rpm
 from core.sweepspec import (
     SWEEP_DISTANCES,
     SWEEP_SPEEDS,
@@ -209,14 +208,23 @@ def sweep_final_drives(
         top = batch_top_speed(model, f)
     setting = (drivetrain, tire, cruise_target)
 
-    def evaluate(ratio: float) -> float:
-        one = None
-        if vehicle is not None:
-            changed = dataclasses.replace(drivetrain, final_drive_ratio=ratio)
-            one = drive_model(
-                curve, changed, tire, vehicle, launch or Launch(), rev_limit_rpm=limit
-            )
-        return objective_at(objective, one, shifts, ratio, setting, rollout_m)
+    def evaluate(ratios: FloatArray) -> FloatArray:
+        """The objective at many ratios, by one batch of runs or top speeds."""
+        if objective is SweepObjective.CRUISE_RPM_TARGET or model is None:
+            return _values(objective, None, None, setting, ratios)
+        if objective is SweepObjective.TOP_SPEED:
+            return _values(objective, None, batch_top_speed(model, ratios), setting, ratios)
+        # only the objective's own timer: the runs stop once it is read
+        name = _TIMED[objective]
+        more = batch_runs(
+            model,
+            ratios,
+            shifts,
+            distances=[d for d in SWEEP_DISTANCES if d[0] == name],
+            speeds=[v for v in SWEEP_SPEEDS if v[0] == name],
+            rollout_m=rollout_m,
+        )
+        return _values(objective, more, None, setting, ratios)
 
     values = _values(objective, runs, top, setting, f)
     order, rank = _ranking(objective, values)
@@ -243,6 +251,14 @@ def sweep_final_drives(
     )
 
 
+_TIMED = {
+    SweepObjective.QUARTER_MILE_ET: "1/4 mile",
+    SweepObjective.EIGHTH_MILE_ET: "1/8 mile",
+    SweepObjective.ZERO_TO_60_MPH: "0-60 mph",
+    SweepObjective.ZERO_TO_100_KMH: "0-100 km/h",
+}
+
+
 def _values(
     objective: SweepObjective,
     runs: BatchRuns | None,
@@ -258,12 +274,10 @@ def _values(
         return np.where(top.speed_m_s > 0.0, top.speed_m_s, np.nan)
     if runs is None:  # checked by the caller
         raise SimulationError(f"`{objective.value}` needs the vehicle", parameter="vehicle")
-    return {
-        SweepObjective.QUARTER_MILE_ET: runs.distance("1/4 mile").elapsed_s,
-        SweepObjective.EIGHTH_MILE_ET: runs.distance("1/8 mile").elapsed_s,
-        SweepObjective.ZERO_TO_60_MPH: runs.speed("0-60 mph").elapsed_s,
-        SweepObjective.ZERO_TO_100_KMH: runs.speed("0-100 km/h").elapsed_s,
-    }[objective]
+    name = _TIMED[objective]
+    if objective in (SweepObjective.QUARTER_MILE_ET, SweepObjective.EIGHTH_MILE_ET):
+        return runs.distance(name).elapsed_s
+    return runs.speed(name).elapsed_s
 
 
 def _rejections(

@@ -1,10 +1,13 @@
 """The objective of a final-drive sweep at one ratio, and its continuous optimum.
 
-The optimum is found by ``scipy.optimize.minimize_scalar`` (bounded) between the listed
-ratios either side of the best listed one: the sampled candidates locate the basin, the
-search refines it, so a local minimum elsewhere in the span is not mistaken for it. Each
-evaluation is one run of the one-car model (:func:`core.simulate.simulate_run`), which the
-batched sweep equals to rounding.
+The optimum is searched between the listed ratios either side of the best listed one: the
+sampled candidates locate the basin, the search refines it, so a local minimum elsewhere
+in the span is not mistaken for it. The search is a nested grid: up to ``_OPTIMUM_GRID``
+evenly spaced ratios across the bracket are evaluated together, in one batch of runs
+(:func:`core.batchrun.batch_runs`, the integrator of the single run), and the bracket
+narrows to the neighbours of the best of them, until it is narrower than
+``_OPTIMUM_XATOL``. The objective of a run is not smooth in the ratio everywhere (a shift
+moves across a timing line), which a grid takes in its stride.
 """
 
 from __future__ import annotations
@@ -15,7 +18,6 @@ from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.optimize import minimize_scalar
 
 from core.curves import RPM_TO_RAD_S
 from core.drivetrain import Drivetrain
@@ -30,10 +32,10 @@ __all__ = ["SweepOptimum", "continuous_optimum", "objective_at", "top_gear_rpm"]
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
-Evaluate = Callable[[float], float]
+Evaluate = Callable[[FloatArray], FloatArray]
 _OPTIMUM_XATOL = 2e-3  # [-] in final drive ratio; axles are sold in steps of 0.05 or more
-_OPTIMUM_MAXITER = 30
-_PENALTY = 1e9
+_OPTIMUM_GRID = 33  # most ratios evaluated together in each narrowing of the bracket
+_OPTIMUM_ROUNDS = 6
 
 
 @dataclass(frozen=True)
@@ -183,7 +185,8 @@ def continuous_optimum(
     order : ndarray of int, shape (c,)
         Candidate indices, best first.
     evaluate : callable
-        The objective at any ratio in the span, NaN where not reached.
+        The objective at an array of ratios in the span, evaluated together; NaN where not
+        reached.
 
     Returns
     -------
@@ -199,20 +202,22 @@ def continuous_optimum(
     lo = float(listed[max(at - 1, 0)])
     hi = float(listed[min(at + 1, listed.size - 1)])
     sign = -1.0 if objective is SweepObjective.TOP_SPEED else 1.0
+    found, found_cost = float(f[best]), sign * float(values[best])
     if hi <= lo:
-        return SweepOptimum(float(f[best]), float(values[best]), (lo, hi), 0)
-
-    def cost(ratio: float) -> float:
-        value = evaluate(ratio)
-        return sign * value if math.isfinite(value) else _PENALTY
-
-    res = minimize_scalar(
-        cost,
-        bounds=(lo, hi),
-        method="bounded",
-        options={"xatol": _OPTIMUM_XATOL, "maxiter": _OPTIMUM_MAXITER},
-    )
-    found, found_cost = float(res.x), float(res.fun)
-    if found_cost >= _PENALTY or found_cost > sign * float(values[best]):
-        found, found_cost = float(f[best]), sign * float(values[best])
-    return SweepOptimum(found, sign * found_cost, (lo, hi), int(res.nfev))
+        return SweepOptimum(found, float(values[best]), (lo, hi), 0)
+    left, right, spent = lo, hi, 0
+    for _ in range(_OPTIMUM_ROUNDS):
+        # fine enough to end the search in this round where that takes few ratios
+        count = min(_OPTIMUM_GRID, max(5, math.ceil((right - left) / _OPTIMUM_XATOL) + 1))
+        grid = np.linspace(left, right, count)
+        cost = sign * evaluate(grid)
+        spent += grid.size
+        cost = np.where(np.isfinite(cost), cost, np.inf)
+        k = int(np.argmin(cost))
+        if cost[k] < found_cost:
+            found, found_cost = float(grid[k]), float(cost[k])
+        step = grid[1] - grid[0]
+        left, right = max(float(grid[k]) - step, lo), min(float(grid[k]) + step, hi)
+        if step <= _OPTIMUM_XATOL:
+            break
+    return SweepOptimum(found, sign * found_cost, (lo, hi), spent)

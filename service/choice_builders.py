@@ -71,6 +71,7 @@ _REPLACED = {
     "rev_limit_rpm": "engine.rev_limit_rpm",
     "mass": "vehicle.mass",
     "converter": "launch.converter",
+    "curve": "engine.curve",
 }
 
 FloatArray = NDArray[np.float64]
@@ -118,7 +119,8 @@ def renamed_fields(renames: Mapping[str, str]) -> Iterator[None]:
 
 
 def _setup(body: ComparisonRequest, variant: VariantIn | None, units: UnitSystem) -> Setup:
-    curve = build_curve(body.engine.curve, units)
+    own_curve = None if variant is None else variant.curve
+    curve = build_curve(own_curve or body.engine.curve, units)
     drive_in, vehicle_in, launch_in = body.drivetrain, body.vehicle, body.launch
     rev_limit = body.engine.rev_limit_rpm
     if variant is not None:

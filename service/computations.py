@@ -72,9 +72,10 @@ RUN_FIELDS = {
     **LAUNCH_FIELDS,
     "shift_rpm": "shifts.rpm",
     "start_speed_m_s": "run.start_speed",
+    "start_gear": "run.start_gear",
 }
 # simulated runs the shift search may spend: fixed, so the same request gets the same answer
-SEARCH_BUDGET = {Coupling.CLUTCH: 120, Coupling.CONVERTER: 60}
+SEARCH_BUDGET = {Coupling.CLUTCH: 160, Coupling.CONVERTER: 160}
 
 
 @dataclass(frozen=True)
@@ -200,6 +201,7 @@ def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
             model,
             [] if rpm is None else rpm,
             start_speed_m_s=start,
+            start_gear=run.start_gear,
             rollout_m=rollout,
             finish_distance_m=finish_d,
             finish_speed_m_s=finish_v,

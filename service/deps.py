@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from email.message import Message
 from typing import Annotated
 
 from fastapi import Depends, Request
@@ -10,7 +9,23 @@ from fastapi import Depends, Request
 from service.problems import ProblemError
 from service.settings import Settings, get_settings
 
-__all__ = ["JsonBody", "SettingsDep", "require_json_body"]
+__all__ = ["JsonBody", "SettingsDep", "declares_json", "require_json_body"]
+
+
+def declares_json(content_type: str) -> bool:
+    """Whether a Content-Type value (RFC 9110, section 8.3) names JSON: ``application/json``
+    or a ``+json`` suffix, any case, parameters ignored. A value that is not one
+    ``type/subtype`` reads as ``text/plain``, as the standard library's ``email`` parser
+    reads it (the tests hold the two together).
+
+    >>> declares_json("Application/JSON; charset=utf-8"), declares_json("text/json")
+    (True, False)
+    """
+    media = content_type.split(";", 1)[0].strip().lower()
+    if media.count("/") != 1:
+        return False
+    maintype, subtype = media.split("/")
+    return maintype == "application" and (subtype == "json" or subtype.endswith("+json"))
 
 
 async def require_json_body(request: Request) -> None:
@@ -18,12 +33,7 @@ async def require_json_body(request: Request) -> None:
     declared = request.headers.get("content-type")
     if not declared:
         return
-    msg = Message()
-    msg["content-type"] = declared
-    subtype = msg.get_content_subtype()
-    if msg.get_content_maintype() == "application" and (
-        subtype == "json" or subtype.endswith("+json")
-    ):
+    if declares_json(declared):
         return
     raise ProblemError(
         415,

@@ -116,21 +116,21 @@ def shift_plan_document(
         {
             "from_gear": s.from_gear,
             "to_gear": s.to_gear,
-            "shift_rpm": rounded(s.shift_rpm, 1),
-            "shift_speed": rounded(from_si(s.shift_speed_m_s, speed, units), 2),
+            "shift_rpm": round(s.shift_rpm, 1),
+            "shift_speed": round(from_si(s.shift_speed_m_s, speed, units), 2),
             "reason": s.reason.value,
-            "rpm_after": rounded(s.rpm_after, 1),
-            "rpm_drop": rounded(s.rpm_drop, 1),
-            "force_before": rounded(from_si(s.force_before_n, force, units), 1),
-            "force_after": rounded(from_si(s.force_after_n, force, units), 1),
+            "rpm_after": round(s.rpm_after, 1),
+            "rpm_drop": round(s.rpm_drop, 1),
+            "force_before": round(from_si(s.force_before_n, force, units), 1),
+            "force_after": round(from_si(s.force_after_n, force, units), 1),
             "crossings": s.crossings,
             "intersections": s.intersections,
             "overtake_rpm": [rounded(x, 1) for x in s.overtake_rpm],
             "coincident_rpm": None
             if s.coincident_rpm is None
-            else [rounded(s.coincident_rpm[0], 1), rounded(s.coincident_rpm[1], 1)],
+            else [round(s.coincident_rpm[0], 1), round(s.coincident_rpm[1], 1)],
         }
-        for s in plan.shifts
+        for s in plan.shifts  # plain floats (core's fields), rounded without a helper
     ]
     t_peak, p_peak = plan.peak_torque_nm, plan.peak_power_w
     return {

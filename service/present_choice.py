@@ -14,6 +14,7 @@ from core.setups import SetupFigures
 from service.cautions import CAUTIONS
 from service.choice_builders import NamedSetup
 from service.present import notices_out, rounded, tire_document
+from service.present_curves import curve_notices, curves_summary, engine_document, peak_numbers
 from service.sheets import WIDTH, summary_sheet, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
@@ -89,6 +90,7 @@ def _numbers(fig: SetupFigures, units: UnitSystem) -> dict[str, Any]:
         if quarter_trap is None
         else from_si(quarter_trap, speed, units),
         "zero_to_60_mph": z60,
+        **peak_numbers(fig, units),
     }
 
 
@@ -144,7 +146,8 @@ def comparison_document(
     """The body of a comparison response, without reference, criterion and summary."""
     base = _numbers(figures[0], units)
     out = []
-    for named, fig in zip(setups, figures, strict=True):
+    own_notices = curve_notices(setups)
+    for named, fig, own in zip(setups, figures, own_notices, strict=True):
         s, numbers = named.setup, _numbers(fig, units)
         ratios = s.drivetrain.overall_ratios.tolist()
         out.append(
@@ -154,6 +157,7 @@ def comparison_document(
                 "final_drive_ratio": s.drivetrain.final_drive_ratio,
                 "gear_ratios": s.drivetrain.gear_ratios.tolist(),
                 "rev_limit_rpm": round(fig.plan.rev_limit_rpm, 1),
+                "engine": engine_document(named, fig, units),
                 "tire": tire_document(s.tire, units),
                 "gears": [
                     {
@@ -188,7 +192,8 @@ def comparison_document(
                 ],
                 "run": _run(fig, numbers),
                 "delta": None if not named.changes else _delta(numbers, base),
-                "warnings": _renamed(notices_out(fig.notices, fields), named.renames),
+                "warnings": _renamed(notices_out(fig.notices, fields), named.renames)
+                + notices_out(own, fields),
             }
         )
     return {"units": unit_labels(units), "setups": out, "cautions": list(CAUTIONS)}
@@ -250,6 +255,7 @@ def comparison_summary(
                 f"{named.name[:25]:<25}"
                 + "".join(f" {cell(get(d), w, f, signed=True)}" for _, w, f, get in columns)
             )
+    body += curves_summary(setups, figures, units)
     body += ["", "Shifts 1-2, 2-3, ... (rpm at the shift > rpm after it):"]
     for named, fig in zip(setups, figures, strict=True):
         text = "  ".join(f"{p.shift_rpm:.0f}>{p.rpm_after:.0f}" for p in fig.shifts)
@@ -259,6 +265,6 @@ def comparison_summary(
             subsequent_indent=" " * 13,
         )
     notices: list[Notice] = []
-    for fig in figures:
-        notices += [x for x in fig.notices if x not in notices]
+    for fig, own in zip(figures, curve_notices(setups), strict=True):
+        notices += [x for x in (*fig.notices, *own) if x not in notices]
     return summary_sheet("GEARWORK SETUP COMPARISON", reference, body, notices)

@@ -8,6 +8,7 @@ from typing import Any
 import numpy as np
 
 from core import OptimalShifts, RunReport, TimedDistance, TimedSpeed, sample_trace
+from core.runreport import QUARTER_MILE_M
 from core.simulate import DriveModel
 from service.cautions import CAUTIONS, SHORT_CAUTION
 from service.present import notices_out, rounded
@@ -64,6 +65,7 @@ def run_document(
         "units": unit_labels(units),
         "shift_criterion": criterion,
         "shift_rpm": rounded(run.shift_rpm, 1),
+        "start_gear": run.start_gear,
         "finish": finish,
         "distances": [_distance(d, units) for d in report.distances],
         "speeds": [_interval(s, units) for s in report.speeds],
@@ -110,27 +112,78 @@ def run_document(
     }
 
 
+def _finish_lines(report: RunReport, units: UnitSystem) -> list[str]:
+    """The finish, first of all."""
+    spd = unit_labels(units)["speed"]
+    finish = report.finish
+    if isinstance(finish, TimedDistance):
+        length = from_si(finish.distance_m, Quantity.DISTANCE, units)
+        where = f"{length:.6g} {unit_labels(units)['distance']}"
+        if abs(finish.distance_m - QUARTER_MILE_M) < 1e-9:
+            where = "the 1/4 mile"
+        if finish.elapsed_s is None:
+            return [f"Finish at {where}: not reached."]
+        trap = (
+            ""
+            if finish.trap_speed_m_s is None
+            else f", trap {_speed(finish.trap_speed_m_s, units):.1f} {spd}"
+        )
+        return [
+            f"Finish at {where}: {finish.elapsed_s:.3f} s, "
+            f"{_speed(finish.speed_m_s, units):.1f} {spd} at the line{trap}."
+        ]
+    target = f"{_speed(finish.to_m_s, units):.1f} {spd}"
+    if finish.elapsed_s is None:
+        return [f"Finish at {target}: not reached."]
+    return [f"Finish at {target}: {finish.elapsed_s:.3f} s."]
+
+
+def _before_finish(report: RunReport) -> tuple[list[TimedDistance], list[TimedSpeed]]:
+    """The timed distances and speed intervals reached, none past the finish."""
+    finish = report.finish
+    distances = [d for d in report.distances if d.elapsed_s is not None]
+    speeds = [s for s in report.speeds if s.elapsed_s is not None]
+    if isinstance(finish, TimedDistance):
+        distances = [d for d in distances if d.distance_m <= finish.distance_m * (1 + 1e-12)]
+        line = finish.speed_m_s
+        speeds = [s for s in speeds if line is not None and s.to_m_s <= line]
+    else:
+        distances = [
+            d for d in distances if d.speed_m_s is not None and d.speed_m_s <= finish.to_m_s
+        ]
+        speeds = [s for s in speeds if s.to_m_s <= finish.to_m_s * (1 + 1e-12)]
+    return distances, speeds
+
+
 def run_summary(
     report: RunReport, optimal: OptimalShifts | None, units: UnitSystem, reference: str | None
 ) -> str:
     """The run as a printable sheet of at most 80 columns."""
     spd = unit_labels(units)["speed"]
     lines = [title_line("GEARWORK ACCELERATION RUN", reference), ""]
+    lines += _finish_lines(report, units)
+    run = report.run
+    if run.speed_m_s[0] > 0.0:
+        lines.append(
+            f"Rolling start at {_speed(float(run.speed_m_s[0]), units):.1f} {spd} "
+            f"in gear {run.start_gear}."
+        )
+    lines.append("")
+    distances, speeds = _before_finish(report)
     lines.append(f"{'Distance':<10} {'Elapsed s':>9} {'Speed':>9} {'Trap':>9}  ({spd})")
-    for d in report.distances:
-        if d.elapsed_s is None:
-            continue
+    for d in distances:
         trap = "" if d.trap_speed_m_s is None else f"{_speed(d.trap_speed_m_s, units):9.1f}"
         lines.append(
             f"{d.name:<10} {d.elapsed_s:>9.2f} {_speed(d.speed_m_s, units) or 0.0:>9.1f} {trap:>9}"
         )
     lines.append("")
-    for s in report.speeds:
-        if s.elapsed_s is not None:
-            extra = "" if s.less_rollout_s is None else f" ({s.less_rollout_s:.2f} s less rollout)"
-            lines.append(f"{s.name:<14} {s.elapsed_s:6.2f} s{extra}")
+    for s in speeds:
+        extra = "" if s.less_rollout_s is None else f" ({s.less_rollout_s:.2f} s less rollout)"
+        lines.append(f"{s.name:<14} {s.elapsed_s:6.2f} s{extra}")
     lines.append("")
     for sh in report.run.shifts:
+        if sh.time_s > report.finish_time_s:
+            break  # past the finish
         lines.append(
             f"Shift {sh.from_gear}-{sh.to_gear} at {sh.rpm_before:5.0f} rpm, "
             f"{_speed(sh.speed_m_s, units):6.1f} {spd}, {sh.time_s:5.2f} s; "

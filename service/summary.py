@@ -10,6 +10,8 @@ from service.units import Quantity, UnitSystem, from_si, unit_labels
 __all__ = ["WIDTH", "shift_plan_summary"]
 
 WIDTH = 80
+_WHY = {"crossover": "crossover", "rev_limit": "rev limit", "traction_limit": "both on grip"}
+_CAUTION_LINES = ("", *wrap_text("Caution: " + SHORT_CAUTION))  # wrapped once
 
 
 def shift_plan_summary(
@@ -80,11 +82,7 @@ def shift_plan_summary(
         )
         for s in plan.shifts:
             v = from_si(s.shift_speed_m_s, Quantity.SPEED, units)
-            why = {
-                "crossover": "crossover",
-                "rev_limit": "rev limit",
-                "traction_limit": "both on grip",
-            }.get(s.reason.value, "tops out")
+            why = _WHY.get(s.reason.value, "tops out")
             lines.append(
                 f"{s.from_gear:>3}-{s.to_gear:<1}  {s.shift_rpm:>6.0f}  {v:>8.1f} {spd:<5}  "
                 f"{s.rpm_after:>8.0f}  {s.rpm_drop:>5.0f}  {why}"
@@ -94,6 +92,5 @@ def shift_plan_summary(
         lines.append("Warnings:")
         for n in plan.notices:
             lines += wrap_text(n.message, "- ")
-    lines.append("")
-    lines += wrap_text("Caution: " + SHORT_CAUTION)
+    lines += _CAUTION_LINES
     return printable(lines)

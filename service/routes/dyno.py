@@ -4,9 +4,7 @@ from __future__ import annotations
 
 from typing import Annotated
 
-import numpy as np
 from fastapi import APIRouter, Query, Request
-from starlette.datastructures import UploadFile as StarletteUpload
 from starlette.responses import Response
 
 from core import (
@@ -16,8 +14,17 @@ from core import (
     correction_factors,
     read_dyno_text,
 )
+from core.dynoroad import MAX_OVERALL_RATIO
 from service.builders import ENGINE_FIELDS, build_curve, core_fields
 from service.deps import JsonBody
+from service.dyno_import import (
+    GEAR_FIELDS,
+    decoded_text,
+    dyno_problem,
+    imported_document,
+    road_speed_gear,
+    uploaded_file,
+)
 from service.openapi import PROBLEM_RESPONSES
 from service.present import notices_out, rounded
 from service.problems import ProblemError
@@ -32,6 +39,15 @@ from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 __all__ = ["router"]
 
 router = APIRouter(prefix="/v1", tags=["dyno"])
+_RATIO = (
+    "Speed-based export only: overall ratio (gear * final drive * extra reduction) of the "
+    "gear it was run in; with the tire (one of `tire_size`, `tire_diameter`, "
+    "`tire_revs_per_mile`, `tire_revs_per_km`). Also accepted as a multipart field."
+)
+_TIRE = "Speed-based export only: the driven tire's size, e.g. `245/40R18`."
+_DIA = "Speed-based export only: the driven tire's overall diameter [mm | in]."
+_REVS = "Speed-based export only: the tire maker's revolutions per mile or per km."
+_ROLLING = "Speed-based export only: rolling radius as a fraction of the free radius."
 AMBIENT_FIELDS = {
     "temperature_k": "ambient.temperature",
     "relative_humidity": "ambient.relative_humidity",
@@ -99,20 +115,6 @@ async def create_dyno_correction(body: DynoCorrectionRequest, _json: JsonBody) -
     )
 
 
-async def _uploaded_file(request: Request) -> bytes:
-    """The one file of a multipart upload (field ``file``, or the only file sent)."""
-    try:
-        form = await request.form(max_files=1, max_fields=4)
-    except Exception as exc:  # the multipart parser raises several kinds on bad input
-        raise ProblemError(422, "The multipart body cannot be read.", field="body") from exc
-    files = [v for v in form.values() if isinstance(v, StarletteUpload)]
-    if not files:
-        raise ProblemError(422, "The multipart body holds no file.", field="file")
-    data = await files[0].read()
-    await form.close()
-    return data
-
-
 @router.post(
     "/torque-curves/import",
     operation_id="import_torque_curve",
@@ -127,7 +129,10 @@ async def _uploaded_file(request: Request) -> bytes:
                 "multipart/form-data": {
                     "schema": {
                         "type": "object",
-                        "properties": {"file": {"type": "string", "format": "binary"}},
+                        "properties": {
+                            "file": {"type": "string", "format": "binary"},
+                            **{name: {"type": "string"} for name in GEAR_FIELDS},
+                        },
                         "required": ["file"],
                     }
                 },
@@ -137,52 +142,55 @@ async def _uploaded_file(request: Request) -> bytes:
 )
 async def import_torque_curve(
     request: Request,
-    units: Annotated[UnitSystem, Query(description="Units of the curve returned.")] = (
-        UnitSystem.METRIC
-    ),
+    units: Annotated[
+        UnitSystem,
+        Query(description="Units of the curve returned and of `tire_diameter`."),
+    ] = UnitSystem.METRIC,
     rpm_step: Annotated[float | None, Query(ge=1, le=5000)] = None,
     smoothing_rpm: Annotated[float | None, Query(ge=10, le=5000)] = None,
+    overall_ratio: Annotated[
+        float | None, Query(gt=0, le=MAX_OVERALL_RATIO, description=_RATIO)
+    ] = None,
+    tire_size: Annotated[str | None, Query(description=_TIRE)] = None,
+    tire_diameter: Annotated[float | None, Query(description=_DIA)] = None,
+    tire_revs_per_mile: Annotated[float | None, Query(description=_REVS)] = None,
+    tire_revs_per_km: Annotated[float | None, Query(description=_REVS)] = None,
+    tire_rolling_factor: Annotated[float | None, Query(description=_ROLLING)] = None,
 ) -> Response:
-    """Comma, semicolon or tab separated text with a header naming rpm and torque and/or
-    power with units (lbf*ft, N*m, hp, kW, PS); errors name the line and column."""
+    """Comma, semicolon or tab separated text (UTF-8 or UTF-16, with or without a byte-order
+    mark) with a header naming rpm and torque and/or power with units (lbf*ft, N*m, hp, kW,
+    PS); wheel columns (WHP, wheel torque, RWHP ...) give a chassis curve; summary rows and
+    blank cells are skipped with a warning; a speed-based export (road speed with power or
+    tractive force) needs `overall_ratio` and the tire, as query parameters or multipart
+    fields. Errors name the line and column."""
     kind = request.headers.get("content-type", "").split(";")[0].strip().lower()
+    form: dict[str, str] = {}
     if kind == "multipart/form-data":
-        raw = await _uploaded_file(request)
+        raw, form = await uploaded_file(request)
     elif kind in {"text/csv", "text/plain", "text/tab-separated-values", ""}:
         raw = await request.body()
     else:
         raise ProblemError(
             415, "Send the dyno file as text/csv (or text/plain), or as a multipart upload."
         )
+    text, encoding = decoded_text(raw)
+    query = {
+        "overall_ratio": overall_ratio,
+        "tire_size": tire_size,
+        "tire_diameter": tire_diameter,
+        "tire_revs_per_mile": tire_revs_per_mile,
+        "tire_revs_per_km": tire_revs_per_km,
+        "tire_rolling_factor": tire_rolling_factor,
+    }
+    ratio, radius = road_speed_gear(query, form, units)
     try:
-        text = raw.decode("utf-8")
-    except UnicodeDecodeError as exc:
-        raise ProblemError(
-            422, f"The file is not UTF-8 text (byte {exc.start + 1}).", field="body"
-        ) from exc
-    try:
-        run = read_dyno_text(text, rpm_step=rpm_step, smoothing_window_rpm=smoothing_rpm)
-    except DynoFileError as exc:
-        where = (
-            "body"
-            if exc.line is None
-            else f"body:line {exc.line}" + ("" if exc.column is None else f", column {exc.column}")
+        run = read_dyno_text(
+            text,
+            rpm_step=rpm_step,
+            smoothing_window_rpm=smoothing_rpm,
+            overall_ratio=ratio,
+            rolling_radius_m=radius,
         )
-        raise ProblemError(422, exc.message, field=where) from exc
-    return FastJSONResponse(
-        {
-            "units": unit_labels(units),
-            "curve": {
-                "rpm": rounded(np.asarray(run.rpm), 1),
-                "torque": rounded(from_si(np.asarray(run.torque_nm), Quantity.TORQUE, units), 3),
-            },
-            "columns": {
-                "rpm": run.rpm_column.header,
-                "torque": run.torque_column.header if run.torque_column else None,
-                "power": run.power_column.header if run.power_column else None,
-            },
-            "delimiter": run.delimiter.value,
-            "rows": run.data_rows,
-            "warnings": notices_out(run.notices, {}),
-        }
-    )
+    except DynoFileError as exc:
+        raise dyno_problem(exc) from exc
+    return FastJSONResponse(imported_document(run, units, encoding))

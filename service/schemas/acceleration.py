@@ -53,6 +53,14 @@ class RunOptions(ApiModel):
     start_speed: float = Field(
         0.0, ge=0, le=400, description="0 for a standing start, else a rolling start [km/h | mph]."
     )
+    start_gear: int | None = Field(
+        None,
+        ge=1,
+        le=12,
+        description="Gear to start in (1 = first), at most the top gear, and one that is "
+        "below its rev limit at the start speed; default the lowest gear that can pull the "
+        "start speed below its shift rpm.",
+    )
     rollout: float | None = Field(
         None,
         ge=0,
@@ -180,7 +188,10 @@ class TraceOut(ApiModel):
     distance: list[float] = Field(description="[m | ft]")
     gear: list[int]
     rpm: list[float] = Field(description="Engine speed [rpm].")
-    acceleration: list[float] = Field(description="Net acceleration [g].")
+    acceleration: list[float] = Field(
+        description="Net acceleration at each instant [g]: negative while coasting through "
+        "a shift, zero while the rev limiter holds the car."
+    )
 
 
 class SeedOut(ApiModel):
@@ -214,6 +225,7 @@ class AccelerationRunResponse(ApiModel):
     units: UnitLabels
     shift_criterion: Literal["net_acceleration", "tractive_force", "custom"]
     shift_rpm: list[float] = Field(description="Shift rpm used for each gear change.")
+    start_gear: int = Field(description="Gear the run started in (1 = first).")
     finish: DistanceOut | SpeedOut
     distances: list[DistanceOut]
     speeds: list[SpeedOut]
@@ -225,7 +237,8 @@ class AccelerationRunResponse(ApiModel):
         "taken at rest."
     )
     traction_limited_to: float | None = Field(
-        description="Highest speed at which the tires limited the drive [km/h | mph]."
+        description="Highest speed at which the tires limited the drive, where the drive "
+        "force falls to the traction limit (found by root finding) [km/h | mph]."
     )
     trace: TraceOut
     optimal_shifts: OptimalShiftsOut | None

@@ -15,6 +15,7 @@ __all__ = [
     "DynoCorrectionRequest",
     "DynoCorrectionResponse",
     "ImportedCurveResponse",
+    "RoadSpeedConversionOut",
 ]
 
 Standard = Literal["sae_j1349_1990", "sae_j1349_2004", "sae_j607", "din_70020", "iso_1585"]
@@ -78,12 +79,30 @@ class DynoCorrectionResponse(ApiModel):
     warnings: list[NoticeOut]
 
 
+class RoadSpeedConversionOut(ApiModel):
+    """The gear a speed-based export was referred to engine rpm with."""
+
+    overall_ratio: float = Field(description="Gear * final drive * extra reduction.")
+    rolling_radius: float = Field(description="Tire rolling radius used [mm | in].")
+    rpm_per_speed: float = Field(description="Engine speed per road speed [rpm per km/h | mph].")
+
+
 class ImportedCurveResponse(ApiModel):
     """A dyno file read into a curve every other endpoint accepts."""
 
     units: UnitLabels
-    curve: CurveIn = Field(description="rpm and torque in the caller's units.")
-    columns: dict[str, str | None] = Field(description="Columns used, as headed in the file.")
+    curve: CurveIn = Field(
+        description="rpm and torque in the caller's units; `source` is `chassis` when the "
+        "file's figures were measured at the wheels (wheel columns, or a speed-based export)."
+    )
+    columns: dict[str, str | None] = Field(
+        description="Columns used, as headed in the file: `rpm` (or `road_speed`), then "
+        "`torque`, `power` and `force` where used."
+    )
     delimiter: str
-    rows: int = Field(description="Data rows read.")
+    encoding: str = Field(description="How the file's text was stored (UTF-8, UTF-16 ...).")
+    rows: int = Field(description="Data rows read (summary and blank rows not counted).")
+    road_speed_conversion: RoadSpeedConversionOut | None = Field(
+        description="For a speed-based export: the gear and tire used; else null."
+    )
     warnings: list[NoticeOut]

@@ -16,7 +16,7 @@ from service.schemas.common import (
     UnitsField,
     with_default_shift_criterion,
 )
-from service.schemas.inputs import DrivetrainIn, EngineIn, TireIn
+from service.schemas.inputs import CurveIn, DrivetrainIn, EngineIn, TireIn
 from service.schemas.shift_plan import TireOut
 from service.schemas.vehicle import ConverterIn, LaunchIn, VehicleIn
 
@@ -28,8 +28,10 @@ __all__ = [
     "ComparisonRunOut",
     "ComparisonShiftOut",
     "CruiseSpeed",
+    "CurvePointsOut",
     "GearReachOut",
     "SetupDeltaOut",
+    "SetupEngineOut",
     "SetupOut",
     "StripTimeOut",
     "VariantIn",
@@ -51,7 +53,15 @@ Label = Annotated[
         examples=["3.91 gears"],
     ),
 ]
-OVERRIDES = ("final_drive_ratio", "gear_ratios", "tire", "rev_limit_rpm", "mass", "converter")
+OVERRIDES = (
+    "final_drive_ratio",
+    "gear_ratios",
+    "tire",
+    "rev_limit_rpm",
+    "mass",
+    "converter",
+    "curve",
+)
 
 
 class VariantIn(ApiModel):
@@ -78,6 +88,12 @@ class VariantIn(ApiModel):
         description="Launch through this torque converter instead (keeping the lock-up "
         "gears and shift time of `launch`).",
     )
+    curve: CurveIn | None = Field(
+        None,
+        description="Replaces the engine curve: a pull after a tune, or another dyno "
+        "session, set beside the base's (before) curve. The rev limit stays the base's "
+        "unless `rev_limit_rpm` is given.",
+    )
 
     @model_validator(mode="after")
     def _changes_something(self) -> Self:
@@ -87,7 +103,8 @@ class VariantIn(ApiModel):
 
 
 class ComparisonRequest(ApiModel):
-    """A base setup and the variants to set beside it."""
+    """A base setup and the variants to set beside it (another axle, tire or gear set, or
+    another engine curve: before and after a tune)."""
 
     units: UnitsField
     reference: Reference
@@ -177,8 +194,37 @@ class ComparisonRunOut(ApiModel):
     top_speed: TopSpeedOut
 
 
+class CurvePointsOut(ApiModel):
+    """A setup's own engine curve, to draw beside the base's."""
+
+    rpm: list[float] = Field(description="Engine speed [rpm].")
+    torque: list[float] = Field(description="Torque [N*m | lbf*ft].")
+    power: list[float] = Field(description="Power [kW | hp].")
+
+
+class SetupEngineOut(ApiModel):
+    """The engine curve a setup uses, by its peaks."""
+
+    source: Literal["engine", "chassis"] = Field(
+        description="Measured at the crankshaft or at the wheels."
+    )
+    peak_torque: float = Field(description="[N*m | lbf*ft]")
+    peak_torque_rpm: float = Field(description="[rpm]")
+    peak_power: float = Field(description="[kW | hp]")
+    peak_power_rpm: float = Field(description="[rpm]")
+    curve: CurvePointsOut | None = Field(
+        description="The curve's points: for the base, and for a variant with its own "
+        "`curve`; null for a variant using the base's curve."
+    )
+
+
 class SetupDeltaOut(ApiModel):
     """This setup minus the base; null where either lacks the figure."""
+
+    peak_torque: float = Field(description="[N*m | lbf*ft]")
+    peak_torque_rpm: float = Field(description="[rpm]")
+    peak_power: float = Field(description="[kW | hp]")
+    peak_power_rpm: float = Field(description="[rpm]")
 
     speed_at_rev_limit: list[float | None] = Field(description="Per gear [km/h | mph].")
     shift_rpm: list[float | None] = Field(description="Per gear change [rpm].")
@@ -201,6 +247,7 @@ class SetupOut(ApiModel):
     final_drive_ratio: float
     gear_ratios: list[float]
     rev_limit_rpm: float = Field(description="Rev limit used [rpm].")
+    engine: SetupEngineOut
     tire: TireOut
     gears: list[GearReachOut]
     shifts: list[ComparisonShiftOut]

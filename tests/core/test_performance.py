@@ -96,15 +96,16 @@ def test_top_gear_that_reaches_the_rev_limit_before_drag_reports_rev_limit() -> 
 
 
 def test_top_speed_agrees_with_the_speed_a_run_settles_at() -> None:
-    # simulate_run holds the speed where the net acceleration falls to MIN_ACCELERATION,
-    # a little below the force balance top_speed finds
+    # simulate_run approaches the speed where the net acceleration falls to zero (found by
+    # root finding on the force balance), the balance top_speed finds; the trace itself
+    # stays below it
     model = flat_model(coast_down_car(150.0, 0.5), [3.0, 2.0, 1.0])
     run = simulate_run(model, [7000.0, 7000.0], cover_distance_m=4000.0)
     assert run.held_by == "drag"
     assert run.held_speed_m_s is not None
     top = top_speed(model)
-    assert run.held_speed_m_s < top.speed_m_s
-    assert_allclose(run.held_speed_m_s, top.speed_m_s, rtol=0.02)
+    assert np.all(run.speed_m_s < run.held_speed_m_s)
+    assert_allclose(run.held_speed_m_s, top.speed_m_s, rtol=1e-4)
 
 
 def test_top_speed_counts_a_gear_that_is_weak_only_at_the_bottom_of_its_curve() -> None:

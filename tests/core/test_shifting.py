@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import itertools
 from collections.abc import Callable
 
@@ -9,12 +10,14 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 from scipy.integrate import simpson
+from scipy.optimize import brentq
 
 from core import (
     CurveError,
     CurveSource,
     Interpolation,
     ShiftReason,
+    TorqueCurve,
     best_shifts,
     make_drivetrain,
     shift_plan,
@@ -22,6 +25,7 @@ from core import (
     torque_curve_from_power,
     torque_curve_from_torque,
 )
+from core.shifting import SCAN_POINTS, XTOL
 
 T0, C = 520.0, 0.06  # T = T0 - C * n [N*m], invented linear curve
 RPM = np.linspace(1000.0, 7000.0, 13)
@@ -151,6 +155,35 @@ def test_wide_gap_warns_when_engine_lands_below_curve() -> None:
     plan = shift_plan(curve, make_drivetrain([4.0, 1.5], 3.5), TIRE)
     assert plan.shifts[0].reason is ShiftReason.REV_LIMIT
     assert any(n.code == "gear_gap" for n in plan.notices)
+
+
+def _force_gap(curve: TorqueCurve, g1: float, g2: float, n: float) -> float:
+    return g1 * curve.torque_scalar(n) - g2 * curve.torque_scalar(n * g2 / g1)
+
+
+def test_refined_crossings_agree_with_scipy_brentq_on_random_curves() -> None:
+    # reference: scipy.optimize.brentq with xtol=1e-7 on the same bracketing scan cell; both
+    # promise the crossing to 1e-7 rpm, so they agree to twice that (invented random curves)
+    rng = np.random.default_rng(12)
+    checked = 0
+    for _ in range(60):
+        rpm = np.unique(np.round(rng.uniform(800.0, 9000.0, int(rng.integers(4, 60)))))
+        torque = np.abs(300.0 + np.cumsum(rng.normal(0.0, 25.0, rpm.size)))
+        curve = torque_curve_from_torque(rpm, torque)
+        ratios = np.sort(rng.uniform(0.6, 4.5, int(rng.integers(2, 8))))[::-1].tolist()
+        plan = shift_plan(curve, make_drivetrain(ratios, 3.5), TIRE)
+        for s, (g1, g2) in zip(plan.shifts, itertools.pairwise(ratios), strict=True):
+            if s.reason is not ShiftReason.CROSSOVER or s.coincident_rpm is not None:
+                continue
+            gap = functools.partial(_force_gap, curve, g1, g2)
+            grid = np.linspace(curve.rpm_min * g1 / g2, plan.rev_limit_rpm, SCAN_POINTS)
+            j = int(np.clip(np.searchsorted(grid, s.shift_rpm) - 1, 0, SCAN_POINTS - 2))
+            if not gap(grid[j]) > 0.0 >= gap(grid[j + 1]):
+                continue  # the shift sits on a scan point
+            expected = brentq(gap, grid[j], grid[j + 1], xtol=XTOL)
+            assert_allclose(s.shift_rpm, expected, rtol=0.0, atol=2.0 * XTOL)
+            checked += 1
+    assert checked > 40
 
 
 def test_intersections_count_both_ways_and_overtakes_are_the_falling_roots() -> None:

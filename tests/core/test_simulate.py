@@ -30,7 +30,7 @@ from core.drivetrain import make_drivetrain
 from core.errors import SimulationError
 from core.milestones import time_at_distance, time_at_speed
 from core.roadload import RoadLoad
-from core.simulate import MIN_ACCELERATION, DriveModel, drive_model, simulate_run
+from core.simulate import DriveModel, drive_model, simulate_run
 from core.tires import tire_from_diameter
 from core.traction import AxleGeometry, DriveLayout
 from core.vehicle import Coupling, Launch, RotatingInertia, Vehicle
@@ -143,14 +143,12 @@ def test_constant_power_with_quadratic_drag_matches_the_closed_form_distance(
 ) -> None:
     # closed form (REFERENCES.md, Newton's second law with F = P/v - k*v^2), from a rolling
     # start at v0: x(v) = (m/(3k))*ln((P - k*v0^3)/(P - k*v^3)). The single gear's rev limit
-    # (55 m/s) ends the run below 0.9 of the terminal speed (P/k)^(1/3), well before the
-    # net acceleration falls to MIN_ACCELERATION, where simulate_run stops accelerating.
+    # (55 m/s) ends the run below 0.9 of the terminal speed (P/k)^(1/3).
     k, m, p, v0 = drag_n_s2_m2, POWER_MASS_KG, POWER_W, POWER_V0
     model = single_gear_model(constant_power_curve(p), bare_car(m, f2_n_s2_m2=k), 4.0)
     run = simulate_run(model, [], start_speed_m_s=v0, cover_distance_m=10.0)
     assert run.held_by == "rev_limit"
     assert run.speed_m_s[-1] <= 0.9 * (p / k) ** (1.0 / 3.0)
-    assert run.acceleration_m_s2[-1] > 5.0 * MIN_ACCELERATION
     v = run.speed_m_s
     expected = m / (3.0 * k) * np.log((p - k * v0**3) / (p - k * v**3))
     assert_allclose(run.distance_m, expected, rtol=CLOSED_FORM_RTOL)
@@ -219,23 +217,28 @@ def test_clutch_launch_holds_the_launch_rpm_until_the_wheels_catch_up() -> None:
     assert_allclose(run.engine_rpm[~slipping], coupled, rtol=1e-12)
 
 
-def test_car_that_cannot_reach_its_rev_limit_holds_its_drag_limited_speed() -> None:
-    # simulate_run takes the car to hold its speed once the net acceleration falls to
-    # MIN_ACCELERATION; with constant force F and road load F0 + k*v^2 that speed is
-    # sqrt((F - F0 - m*MIN_ACCELERATION)/k) (closed form, Newton's second law)
-    m, f0, k = 1000.0, 200.0, 2.5
+def test_car_that_cannot_reach_its_rev_limit_approaches_its_drag_limited_speed() -> None:
+    # closed form (Newton's second law, constant force F against F0 + k*v^2, rolling start
+    # at v0): with F' = F - F0 and vt = sqrt(F'/k), x(v) = (m/(2k))*ln((F' - k*v0^2)/(F' -
+    # k*v^2)) and t(v) = (m/sqrt(F'*k))*(artanh(v/vt) - artanh(v0/vt)); the speed tends
+    # to vt and never reaches it
+    m, f0, k, v0 = 1000.0, 200.0, 2.5, 5.0
     vehicle = bare_car(m, f0_n=f0, f2_n_s2_m2=k)
     model = single_gear_model(flat_curve(FORCE_TORQUE_NM), vehicle, FORCE_RATIO)
-    run = simulate_run(model, [], start_speed_m_s=5.0, cover_distance_m=3000.0)
-    force = FORCE_TORQUE_NM * FORCE_RATIO / TIRE.rolling_radius_m
-    expected = math.sqrt((force - f0 - m * MIN_ACCELERATION) / k)
-    assert expected < model.speed_at_rpm(0, model.rev_limit_rpm)
+    run = simulate_run(model, [], start_speed_m_s=v0, cover_distance_m=3000.0)
+    drive = FORCE_TORQUE_NM * FORCE_RATIO / TIRE.rolling_radius_m - f0
+    vt = math.sqrt(drive / k)
+    assert vt < model.speed_at_rpm(0, model.rev_limit_rpm)
     assert run.held_by == "drag"
-    assert run.held_speed_m_s is not None
-    assert_allclose(run.held_speed_m_s, expected, rtol=1e-4)
-    assert_allclose(run.distance_m[-1], 3000.0, rtol=1e-12)
-    assert_allclose(run.speed_m_s[-1], run.held_speed_m_s, rtol=0)
-    assert any(n.code == "speed_held" for n in run.notices)
+    assert_allclose(reached(run.held_speed_m_s), vt, rtol=1e-9)
+    assert np.all(np.diff(run.speed_m_s) >= 0.0)
+    assert np.all(run.speed_m_s < vt)
+    for x in (100.0, 1000.0, 3000.0):
+        v = math.sqrt((drive - (drive - k * v0**2) * math.exp(-2.0 * k * x / m)) / k)
+        t = m / math.sqrt(drive * k) * (math.atanh(v / vt) - math.atanh(v0 / vt))
+        assert_allclose(reached(time_at_distance(run, x)), t, rtol=CLOSED_FORM_RTOL)
+        assert_allclose(np.interp(x, run.distance_m, run.speed_m_s), v, rtol=CLOSED_FORM_RTOL)
+    assert any(n.code == "drag_limited_speed" for n in run.notices)
 
 
 # --- traction limit --------------------------------------------------------------------
@@ -290,7 +293,7 @@ def test_traction_limited_acceleration_is_the_limit_less_road_load_over_mass() -
     assert_allclose(run.acceleration_m_s2[0], (RWD_LIMIT_N - rolling_n) / EXAMPLE_KG, 1e-12)
     limited = run.traction_limited
     assert limited[0]
-    assert np.all(limited[run.gear == 1])
+    assert np.all(limited[(run.gear == 1) & (run.acceleration_m_s2 > 0.0)])
     assert not np.any(limited[run.gear == 3])
     v = run.speed_m_s[limited]
     expected = (vehicle.traction_limit_n() - vehicle.road_load.force_n(v)) / EXAMPLE_KG
@@ -418,7 +421,8 @@ def test_each_shift_follows_the_constant_deceleration_closed_form() -> None:
     run = simulate_run(model, SHIFT_RPM, cover_distance_m=402.0)
     assert [(s.from_gear, s.to_gear) for s in run.shifts] == [(1, 2), (2, 3), (3, 4)]
     for s, requested in zip(run.shifts, SHIFT_RPM, strict=True):
-        i = int(np.argmin(np.abs(run.time_s - s.time_s)))
+        # the shift's first instant is in the trace twice: driving, then coasting
+        i = int(np.searchsorted(run.time_s, s.time_s, side="right")) - 1
         decel = float(model.vehicle.road_load.force_n([s.speed_m_s])[0]) / model.vehicle.mass_kg
         v_after = s.speed_m_s - decel * SHIFT_TIME_S
         next_ratio = float(model.drivetrain.overall_ratios[s.to_gear - 1])
@@ -437,6 +441,7 @@ def test_each_shift_follows_the_constant_deceleration_closed_form() -> None:
         assert_allclose(s.rpm_after, expected_after, rtol=1e-12)
         assert_allclose(run.engine_rpm[i + 1], s.rpm_after, rtol=1e-12)
         assert run.gear[i + 1] == s.to_gear
+        assert_allclose(run.acceleration_m_s2[i], -decel, rtol=1e-12)
         assert_allclose(run.acceleration_m_s2[i + 1], -decel, rtol=1e-12)
 
 

@@ -469,3 +469,30 @@ def test_bad_sweeps_are_rejected(
 def test_bad_ranges_are_rejected(low: float, high: float, step: float, match: str) -> None:
     with pytest.raises(DrivetrainError, match=match):
         final_drive_range(low, high, step)
+
+
+@pytest.mark.parametrize(
+    "launch", [LAUNCHES[0].values[0], LAUNCHES[1].values[0]], ids=["clutch", "converter"]
+)
+def test_optimum_value_equals_the_one_car_run_at_the_ratio_found(launch: Launch) -> None:
+    # the optimum is searched with batches of runs; the one-car run at the ratio it found
+    # times the quarter mile the same, to rounding
+    dt = make_drivetrain(GEARS, 3.55, efficiency=0.88)
+    vehicle = car(inertia=RotatingInertia(0.3, 0.03, 5.0))
+    sweep = sweep_final_drives(
+        CURVE,
+        dt,
+        TIRE,
+        final_drive_range(2.8, 4.6, 0.2),
+        SweepObjective.QUARTER_MILE_ET,
+        vehicle=vehicle,
+        launch=launch,
+    )
+    opt = sweep.optimum
+    assert opt is not None
+    assert opt.bounds[0] <= opt.final_drive_ratio <= opt.bounds[1]
+    assert opt.objective_value <= float(np.nanmin(sweep.objective_value))
+    model = model_with(opt.final_drive_ratio, vehicle, launch)
+    elapsed = run_report(model, sweep.shift_rpm).finish.elapsed_s
+    assert elapsed is not None
+    assert_allclose(opt.objective_value, elapsed, rtol=BATCH_RTOL)

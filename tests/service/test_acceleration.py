@@ -191,3 +191,42 @@ def test_net_acceleration_plan_without_vehicle_is_422(
     coupe_us["shift_criterion"] = "net_acceleration"
     r = api.post("/v1/shift-plan", json=coupe_us)
     assert r.status_code == 422
+
+
+@pytest.mark.parametrize("demo", ["demo_sedan_run_metric", "demo_wagon_converter_us"])
+def test_rolling_start_in_a_chosen_gear_summarises_the_finish_first(
+    api: ApiClient, demo: str
+) -> None:
+    body = load_demo(demo)
+    body.setdefault("shifts", {})["optimise"] = False
+    body["run"] = {**body.get("run", {}), "start_speed": 60, "start_gear": 3}
+    body["run"]["finish_distance"] = 1000
+    r = api.post(URL, json=body)
+    assert r.status_code == 200, r.text
+    doc = r.json()
+    assert doc["start_gear"] == 3
+    assert doc["trace"]["gear"][0] == 3
+    assert all(s["from_gear"] >= 3 for s in doc["shifts"])
+    lines = [line for line in doc["summary"].splitlines()[1:] if line.strip()]
+    assert lines[0].startswith("Finish at 1000 ")
+    assert "in gear 3" in lines[1]
+    finish = doc["finish"]["elapsed"]
+    listed = [line.split()[0] for line in lines if line.split()[0] in {"1000", "1/4", "400"}]
+    # nothing past the finish: a 1000 ft or m finish lists no longer distance
+    unit = "ft" if doc["units"]["distance"] == "ft" else "m"
+    if unit == "ft":
+        assert "1/4" not in listed and "400" not in listed
+    for line in lines:
+        if line.startswith("Shift "):
+            assert float(line.split(";")[0].split(",")[-1].split()[0]) <= finish
+
+
+def test_start_gear_above_its_rev_limit_is_refused_naming_the_field(
+    api: ApiClient, sedan: dict[str, Any]
+) -> None:
+    sedan["run"] = {**sedan.get("run", {}), "start_speed": 100, "start_gear": 1}
+    r = api.post(URL, json=sedan)
+    assert r.status_code == 422
+    problem = r.json()
+    assert problem["field"] == "run.start_gear"
+    assert "rev limit" in problem["detail"]
