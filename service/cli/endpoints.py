@@ -231,18 +231,31 @@ async def _problem(request: Request, exc: Exception) -> Response:
     return await result if inspect.isawaitable(result) else result
 
 
-def _run(make: Callable[[], Coroutine[Any, Any, Response]]) -> Response:
+class _NeedsLoopError(Exception):
+    """A handler failed unexpectedly while stepped without an event loop: run it on one."""
+
+
+def _run(make: Callable[[bool], Coroutine[Any, Any, Response]]) -> Response:
     """Run a handler coroutine to its end: stepped directly when it never suspends (the
     JSON endpoints compute without awaiting anything), else on a fresh event loop."""
-    coro = make()
+    coro = make(True)
     try:
         coro.send(None)
     except StopIteration as done:
         response: Response = done.value
         return response
-    coro.close()
+    except _NeedsLoopError:
+        pass
+    else:
+        coro.close()
     with asyncio.Runner() as runner:
-        return runner.run(make())
+        return runner.run(make(False))
+
+
+def _handled(exc: Exception) -> bool:
+    """True when the app has a handler for this error other than the catch-all."""
+    handlers = _app().exception_handlers
+    return any(kind in handlers for kind in type(exc).__mro__ if kind is not Exception)
 
 
 def _decode(raw: bytes) -> Any:
@@ -265,7 +278,13 @@ def _decode(raw: bytes) -> Any:
 
 
 async def _answer(
-    ep: Endpoint, path: str, data: Any, raw: bytes, fmt: str, query: Mapping[str, str]
+    ep: Endpoint,
+    path: str,
+    data: Any,
+    raw: bytes,
+    fmt: str,
+    query: Mapping[str, str],
+    stepped: bool,
 ) -> Response:
     accept = FORMAT_MEDIA.get(fmt, "application/json")
     kind = "text/csv" if ep.raw_body else "application/json"
@@ -275,6 +294,8 @@ async def _answer(
             data = _decode(raw) if data is None else data
         return await _handler(path)(**_arguments(path, data, request, query))
     except Exception as exc:  # every error becomes the service's problem details
+        if stepped and not _handled(exc):
+            raise _NeedsLoopError from exc  # e.g. work sent to a thread needs a loop
         return await _problem(request, exc)
 
 
@@ -317,6 +338,6 @@ def call_endpoint(
         path = ep.chart or ep.path
     else:
         path = ep.path
-    response = _run(lambda: _answer(ep, path, data, raw, fmt, query))
+    response = _run(lambda stepped: _answer(ep, path, data, raw, fmt, query, stepped))
     media = (response.media_type or "").split(";")[0]
     return Answer(response.status_code, media, bytes(response.body))
