@@ -19,15 +19,19 @@ import math
 
 from core.errors import CorrectionError
 
-__all__ = ["station_pressure_from_altimeter_pa"]
+__all__ = ["ALTIMETER_RANGE_PA", "ELEVATION_RANGE_M", "station_pressure_from_altimeter_pa"]
 
 _ISO_P0_PA = 101325.0
 _ISO_T0_K = 288.15
 _ISO_LAPSE_K_PER_M = 0.0065
 _ISO_EXPONENT = 287.05287 * _ISO_LAPSE_K_PER_M / 9.80665  # n = R*L/g0
 
-_ALTIMETER_RANGE_PA = (85_000.0, 110_000.0)
-_ELEVATION_RANGE_M = (-500.0, 6000.0)
+ALTIMETER_RANGE_PA = (85_000.0, 110_000.0)
+"""Altimeter setting accepted [Pa]."""
+ELEVATION_RANGE_M = (-500.0, 6000.0)
+"""Station elevation accepted [m]."""
+_ALTIMETER_RANGE_PA = ALTIMETER_RANGE_PA
+_ELEVATION_RANGE_M = ELEVATION_RANGE_M
 
 
 def _check_between(value: float, name: str, low: float, high: float) -> None:

@@ -24,6 +24,9 @@ from numpy.typing import NDArray
 from core.errors import VehicleError
 
 __all__ = [
+    "AIR_PRESSURE_RANGE_PA",
+    "AIR_TEMPERATURE_RANGE_K",
+    "ALTITUDE_RANGE_M",
     "AirState",
     "air_density_kg_m3",
     "air_state",
@@ -42,9 +45,15 @@ _ISO_LAPSE_RATE_K_PER_M = 0.0065
 _ISO_GAS_CONSTANT = 287.05287  # [J/(kg K)]
 _STANDARD_GRAVITY = 9.80665  # [m/s^2]
 
-_TEMPERATURE_RANGE_K = (200.0, 350.0)
-_PRESSURE_RANGE_PA = (30_000.0, 120_000.0)
-_ALTITUDE_RANGE_M = (-500.0, 8000.0)
+AIR_TEMPERATURE_RANGE_K = (200.0, 350.0)
+"""Air temperature accepted [K]."""
+AIR_PRESSURE_RANGE_PA = (30_000.0, 120_000.0)
+"""Station pressure accepted [Pa]."""
+ALTITUDE_RANGE_M = (-500.0, 8000.0)
+"""Altitude accepted for the ISO 2533 standard pressure [m]."""
+_TEMPERATURE_RANGE_K = AIR_TEMPERATURE_RANGE_K
+_PRESSURE_RANGE_PA = AIR_PRESSURE_RANGE_PA
+_ALTITUDE_RANGE_M = ALTITUDE_RANGE_M
 
 
 @dataclass(frozen=True)

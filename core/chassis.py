@@ -142,6 +142,8 @@ class ChassisConversion:
     wheel_power_by_gear_w : ndarray, shape (g, n) or None
         Wheel power in each gear at the same rpm [W].
     notices : tuple of Notice
+    fixed_loss_w : float
+        Fixed part of the driveline loss [W]; 0 for a loss by efficiency alone.
     """
 
     rpm: FloatArray
@@ -155,6 +157,7 @@ class ChassisConversion:
     gear_efficiency: FloatArray | None
     wheel_power_by_gear_w: FloatArray | None
     notices: tuple[Notice, ...]
+    fixed_loss_w: float = 0.0
 
 
 def _curve(
@@ -200,8 +203,13 @@ def chassis_conversion(
     torque_nm: ArrayLike | None = None,
     power_w: ArrayLike | None = None,
     measured_gear: int | None = None,
+    fixed_loss_w: float = 0.0,
 ) -> ChassisConversion:
     """Convert a curve between wheels and engine, and re-express it for every gear.
+
+    With a fixed loss the driveline takes a fixed part plus a share of the engine's power,
+    ``wheel = engine * efficiency - fixed`` (the common chassis-dyno convention, common
+    practice), so ``engine = (wheel + fixed) / efficiency``.
 
     Parameters
     ----------
@@ -217,6 +225,8 @@ def chassis_conversion(
         exactly one.
     measured_gear : int, optional
         Gear of the run (1 = first), with and only with per-gear efficiencies.
+    fixed_loss_w : float, optional
+        Fixed part of the loss [W], 0 to 500 kW, with a single efficiency only.
 
     Returns
     -------
@@ -237,6 +247,16 @@ def chassis_conversion(
     200000
     """
     n, power = _curve(rpm, torque_nm, power_w)
+    if not (math.isfinite(fixed_loss_w) and 0.0 <= fixed_loss_w <= 500e3):
+        raise DrivetrainError(
+            f"`fixed_loss_w` must lie in [0, 500000], got {fixed_loss_w:g}",
+            parameter="fixed_loss_w",
+        )
+    if fixed_loss_w > 0.0 and not isinstance(efficiency, (int, float)):
+        raise DrivetrainError(
+            "`fixed_loss_w` goes with a single efficiency, not per-gear ones",
+            parameter="fixed_loss_w",
+        )
     notes: list[Notice] = []
     per_gear = None
     if isinstance(efficiency, (int, float)):
@@ -262,9 +282,19 @@ def chassis_conversion(
             )
         eta = float(per_gear[measured_gear - 1])
     if measured_at is MeasuredAt.WHEELS:
-        wheel, engine = power, engine_from_wheel(power, eta)
+        wheel, engine = power, engine_from_wheel(power + fixed_loss_w, eta)
     else:
-        engine, wheel = power, wheel_from_engine(power, eta)
+        engine, wheel = power, wheel_from_engine(power, eta) - fixed_loss_w
+        if np.any(wheel < 0.0):
+            notes.append(
+                Notice(
+                    "fixed_loss_exceeds_power",
+                    "The fixed loss exceeds the engine's power at some rpm; the wheel power "
+                    "there is taken as 0.",
+                    "fixed_loss_w",
+                )
+            )
+            wheel = np.maximum(wheel, 0.0)
     omega = n * RPM_TO_RAD_S
     by_gear = None
     if per_gear is not None:
@@ -278,10 +308,11 @@ def chassis_conversion(
                     "efficiency",
                 )
             )
+    model = f"engine x {eta:.3g}" + (" - the fixed loss" if fixed_loss_w > 0.0 else "")
     notes.append(
         Notice(
             "estimate",
-            f"Estimate: wheel = engine x {eta:.3g} at the same rpm. Real losses vary with "
+            f"Estimate: wheel = {model} at the same rpm. Real losses vary with "
             "gear, speed, temperature, tires and the dyno itself.",
             "efficiency",
         )
@@ -298,4 +329,5 @@ def chassis_conversion(
         gear_efficiency=per_gear,
         wheel_power_by_gear_w=by_gear,
         notices=tuple(notes),
+        fixed_loss_w=float(fixed_loss_w),
     )

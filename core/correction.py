@@ -43,6 +43,8 @@ from core.errors import CorrectionError
 from core.plan import Notice
 
 __all__ = [
+    "CELL_TEMPERATURE_RANGE_K",
+    "STATION_PRESSURE_RANGE_PA",
     "Correction",
     "CorrectionStandard",
     "PressureBasis",
@@ -59,8 +61,12 @@ _PA_PER_MBAR = 100.0
 _PA_PER_INHG = 3386.388640341
 _KELVIN_AT_0_C = 273.15
 
-_TEMPERATURE_RANGE_K = (240.0, 330.0)
-_STATION_PRESSURE_RANGE_PA = (50_000.0, 110_000.0)
+CELL_TEMPERATURE_RANGE_K = (233.15, 333.15)
+"""Intake-air temperature accepted [K]: -40 degC (-40 degF) to 60 degC (140 degF)."""
+STATION_PRESSURE_RANGE_PA = (50_000.0, 110_000.0)
+"""Station pressure accepted [Pa]."""
+_TEMPERATURE_RANGE_K = CELL_TEMPERATURE_RANGE_K
+_STATION_PRESSURE_RANGE_PA = STATION_PRESSURE_RANGE_PA
 _FACTOR_RANGE = (0.0, 3.0)
 _ISO_1585_VALID_BAND = (0.93, 1.07)  # memory
 

@@ -25,7 +25,7 @@ from core import (
 )
 from service.problems import ProblemError
 from service.schemas.inputs import CurveIn, DrivetrainIn, TireIn
-from service.units import Quantity, UnitSystem, to_si
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_label
 
 __all__ = ["build_curve", "build_drivetrain", "build_tire", "core_fields", "request_field"]
 
@@ -65,9 +65,29 @@ def request_field(parameter: str | None, fields: Mapping[str, str]) -> str | Non
     return fields[m["name"]] + m["index"]
 
 
+_SI_FIGURE = re.compile(r"(?<![\w.])(-?\d+(?:\.\d+)?(?:e[+-]?\d+)?) (m/s|Pa|N\*m)(?![\w*/^])")
+_SI_QUANTITY = {"m/s": Quantity.SPEED, "Pa": Quantity.PRESSURE, "N*m": Quantity.TORQUE}
+
+
+def in_callers_units(message: str, units: UnitSystem) -> str:
+    """A core message with its SI speeds, pressures and torques in the caller's units.
+
+    >>> in_callers_units("speed (26.8224 m/s) too high", UnitSystem.US)
+    'speed (60 mph) too high'
+    """
+
+    def convert(m: re.Match[str]) -> str:
+        quantity = _SI_QUANTITY[m[2]]
+        value = from_si(float(m[1]), quantity, units)
+        return f"{value:.4g} {unit_label(quantity, units)}"
+
+    return _SI_FIGURE.sub(convert, message)
+
+
 @contextmanager
-def core_fields(fields: Mapping[str, str]) -> Iterator[None]:
-    """Turn a core error inside the block into a 422 problem naming the request field."""
+def core_fields(fields: Mapping[str, str], units: UnitSystem | None = None) -> Iterator[None]:
+    """Turn a core error inside the block into a 422 problem naming the request field (and,
+    given ``units``, quoting its SI speeds, pressures and torques in the caller's units)."""
     try:
         yield
     except GearworkError as exc:
@@ -75,6 +95,8 @@ def core_fields(fields: Mapping[str, str]) -> Iterator[None]:
         message = exc.message
         for name, path in fields.items():  # speak the caller's field names, not the core's
             message = re.sub(rf"`{name}(?=[`\[])", f"`{path}", message)
+        if units is not None:
+            message = in_callers_units(message, units)
         raise ProblemError(422, message, field=field) from exc
 
 

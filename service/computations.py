@@ -41,10 +41,10 @@ from service.builders import (
 )
 from service.present import performance_document, shift_plan_document
 from service.present_run import run_document
-from service.schemas.acceleration import AccelerationRunRequest
+from service.schemas.acceleration import AccelerationRunRequest, RunOptions
 from service.schemas.shift_plan import ShiftPlanRequest
 from service.schemas.vehicle import LaunchIn
-from service.units import Quantity, to_si
+from service.units import Quantity, UnitSystem, to_si, unit_label
 from service.vehicle_builders import LAUNCH_FIELDS, VEHICLE_FIELDS, build_launch, build_vehicle
 
 __all__ = [
@@ -172,6 +172,23 @@ def compute_shift_plan(body: ShiftPlanRequest) -> PlanOutcome:
     return PlanOutcome(body, curve, drivetrain, tire, plan, model, document)
 
 
+def caller_named(report: RunReport, run: RunOptions, units: UnitSystem) -> RunReport:
+    """The report with the caller's extra distances and speed intervals named in their units
+    (``1320 ft``, ``50-70 mph``) rather than in SI; they follow the standard ones."""
+    d_unit, v_unit = unit_label(Quantity.DISTANCE, units), unit_label(Quantity.SPEED, units)
+    dists, speeds = list(report.distances), list(report.speeds)
+    first_d, first_v = (
+        len(dists) - len(run.extra_distances),
+        len(speeds) - len(run.extra_speed_intervals),
+    )
+    for k, d in enumerate(run.extra_distances):
+        dists[first_d + k] = dataclasses.replace(dists[first_d + k], name=f"{d:g} {d_unit}")
+    for k, i in enumerate(run.extra_speed_intervals):
+        name = f"{i.start:g}-{i.end:g} {v_unit}"
+        speeds[first_v + k] = dataclasses.replace(speeds[first_v + k], name=name)
+    return dataclasses.replace(report, distances=tuple(dists), speeds=tuple(speeds))
+
+
 def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
     """What POST /v1/acceleration-run computes, kept whole (core errors become 422s)."""
     u, run = body.units, body.run
@@ -181,7 +198,7 @@ def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
     speed = Quantity.SPEED
     rollout = 0.3048 if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
     start = to_si(run.start_speed, speed, u)
-    with core_fields(RUN_FIELDS):
+    with core_fields(RUN_FIELDS, u):
         model = drive_model(
             curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
         )
@@ -211,6 +228,7 @@ def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
                 for i in run.extra_speed_intervals
             ],
         )
+        report = caller_named(report, run, u)
         optimal = None
         if body.shifts.optimise:
             optimal = optimal_shift_rpm(

@@ -15,6 +15,7 @@ from starlette.requests import Request
 from core.dynoencoding import decode_export
 from core.dynofile import DynoRun
 from core.errors import DynoFileError
+from service.bounds import bound_violations
 from service.builders import build_tire
 from service.choice_builders import renamed_fields
 from service.present import notices_out, rounded
@@ -124,6 +125,11 @@ def road_speed_gear(
             raise ProblemError(422, f"`{name}`: {first['msg']}", field=name) from exc
         message = f"give exactly one of {_TIRE_ONE_OF.removeprefix('the tire ')}"
         raise ProblemError(422, message, field="tire") from exc
+    limits = bound_violations(tire_in, units)  # the diameter's limit, in the caller's units
+    if limits:
+        name = "tire_" + limits[0]["field"]
+        message = limits[0]["message"].replace(f"`{limits[0]['field']}`", f"`{name}`", 1)
+        raise ProblemError(422, message, field=name)
     with renamed_fields(_TIRE_NAMES):
         tire = build_tire(tire_in, units)
     return gear.overall_ratio, tire.rolling_radius_m

@@ -7,6 +7,7 @@ from typing import Any
 from fastapi import FastAPI
 from fastapi.openapi.utils import get_openapi
 
+from service.openapi_docs import describe_properties
 from service.schemas.common import Problem
 
 __all__ = ["PROBLEM_RESPONSES", "build_openapi"]
@@ -40,5 +41,6 @@ def build_openapi(app: FastAPI) -> dict[str, Any]:
                 content = response.get("content", {})
                 if status.startswith(("4", "5")) and "application/json" in content:
                     content["application/problem+json"] = content.pop("application/json")
+    describe_properties(doc)
     app.openapi_schema = doc
     return doc

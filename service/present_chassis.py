@@ -51,6 +51,7 @@ def chassis_document(
         "measured_gear": c.measured_gear,
         "efficiency": round(c.efficiency, 6),
         "loss_percent": round(100.0 * (1.0 - c.efficiency), 4),
+        "fixed_loss": round(from_si(c.fixed_loss_w, p, units), 4),
         "curve": {
             "rpm": rounded(c.rpm, 1),
             "engine_torque": rounded(from_si(c.engine_torque_nm, t, units), 3),
@@ -79,9 +80,14 @@ def chassis_summary(c: ChassisConversion, units: UnitSystem, reference: str | No
     lines = [title_line("GEARWORK CHASSIS DYNO CONVERSION", reference)]
     where = "the wheels" if c.measured_at.value == "wheels" else "the engine"
     gear = "" if c.measured_gear is None else f" in gear {c.measured_gear}"
+    fixed = (
+        f" plus a fixed {from_si(c.fixed_loss_w, p, units):.1f} {pw}"
+        if c.fixed_loss_w > 0.0
+        else ""
+    )
     lines += wrap_text(
         f"Measured at {where}{gear}; driveline efficiency {c.efficiency:.3f} "
-        f"({100.0 * (1.0 - c.efficiency):.1f} % loss)."
+        f"({100.0 * (1.0 - c.efficiency):.1f} % loss{fixed})."
     )
     kp, kt = int(np.argmax(c.wheel_power_w)), int(np.argmax(c.wheel_torque_nm))
     lines.append(

@@ -62,24 +62,38 @@ class ProblemError(Exception):
     """Raised at the edge to answer with a problem document."""
 
     def __init__(
-        self, status: int, detail: str, *, field: str | None = None, slug: str | None = None
+        self,
+        status: int,
+        detail: str,
+        *,
+        field: str | None = None,
+        slug: str | None = None,
+        errors: Sequence[Mapping[str, Any]] = (),
     ) -> None:
         super().__init__(detail)
         self.status = status
         self.detail = detail
         self.field = field
         self.slug = slug
+        self.errors = list(errors)
 
 
 def field_path(loc: Sequence[int | str]) -> str:
     """Dotted path with ``[i]`` indexes from a validation location, without ``body``.
 
+    Union members that pydantic puts in a location (``constrained-float``, a tag such as
+    ``per-gear``) are not fields and are left out.
+
     >>> field_path(("body", "engine", "curve", "rpm", 3))
     'engine.curve.rpm[3]'
+    >>> field_path(("body", "drivetrain", "efficiency", "per-gear", 2))
+    'drivetrain.efficiency[2]'
     """
     out = ""
     for part in loc:
         if part == "body" and not out:
+            continue
+        if isinstance(part, str) and not part.isidentifier():
             continue
         if isinstance(part, int):
             out += f"[{part}]"
@@ -129,11 +143,15 @@ async def _on_validation(request: Request, exc: Exception) -> Response:
         ctx = errs[0].get("ctx") or {}
         reason = ctx.get("error", "invalid JSON")
         return problem_response(400, f"The body is not valid JSON: {reason}.", request.url.path)
-    items = [{"field": field_path(e.get("loc", ())), "message": _message(e)} for e in errs[:20]]
+    items: list[dict[str, str]] = []
+    for e in errs:  # one message per field: a union's other members add nothing
+        field = field_path(e.get("loc", ()))
+        if len(items) < 20 and all(i["field"] != field for i in items):
+            items.append({"field": field, "message": _message(e)})
     first = items[0] if items else {"field": "", "message": "invalid input"}
     detail = f"`{first['field']}`: {first['message']}" if first["field"] else first["message"]
-    if len(errs) > 1:
-        detail += f" (and {len(errs) - 1} more)"
+    if len(items) > 1:
+        detail += f" (and {len(items) - 1} more)"
     return problem_response(422, detail, request.url.path, errors=items)
 
 
@@ -148,7 +166,12 @@ async def _on_problem(request: Request, exc: Exception) -> Response:
     if not isinstance(exc, ProblemError):  # pragma: no cover - registration guard
         raise exc
     return problem_response(
-        exc.status, exc.detail, request.url.path, field=exc.field, slug=exc.slug
+        exc.status,
+        exc.detail,
+        request.url.path,
+        field=exc.field,
+        slug=exc.slug,
+        errors=exc.errors,
     )
 
 

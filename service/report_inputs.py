@@ -111,10 +111,9 @@ def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
     load = vehicle.road_load
     if load.coast_down is not None:
         f0, f1, f2 = load.coast_down
-        spd = lab["speed"]
         text = (
-            f"coast-down F0 {f0:g} {lab['force']}, F1 {f1:g} {lab['force']}/{spd}, "
-            f"F2 {f2:g} {lab['force']}/{spd}^2"
+            f"coast-down F0 {f0:g} {lab['force']}, F1 {f1:g} {lab['force_per_speed']}, "
+            f"F2 {f2:g} {lab['force_per_speed_squared']}"
         )
     else:
         area = lab["area"]
@@ -124,8 +123,9 @@ def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
             else f"Cd {fmt(load.drag_coefficient, 3)} x frontal area "
             f"{fmt(load.frontal_area, 2)} {area}"
         )
+        per_speed = 0.000041 * from_si(0.44704, Quantity.SPEED, units)  # Gillespie: per mph
         rolling = (
-            "rolling 0.0041 + 0.000041 per mph"
+            f"rolling 0.0041 + {per_speed:.3g} per {lab['speed']}"
             if load.rolling_coefficient is None
             else f"rolling coefficient {load.rolling_coefficient:g}"
         )
@@ -137,8 +137,11 @@ def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
         if air.pressure is not None
         else f"altitude {air.altitude or 0.0:g} {lab['distance']}"
     )
+    standard = from_si(288.15, Quantity.TEMPERATURE, units)  # ISO 2533 sea level, 15 degC
     temperature = (
-        "15 degC (standard)" if air.temperature is None else f"{air.temperature:g} {temp}"
+        f"{standard:g} {temp} (standard)"
+        if air.temperature is None
+        else f"{air.temperature:g} {temp}"
     )
     facts.append(("Air", f"{temperature}, {where}, {air.relative_humidity:g} % humidity"))
     if vehicle.inertia is not None:
@@ -146,7 +149,8 @@ def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
         facts.append(
             (
                 "Inertia",
-                f"engine {i.engine:g}, driveshaft {i.driveshaft:g}, wheels {i.wheels:g} kg*m^2",
+                f"engine {i.engine:g}, driveshaft {i.driveshaft:g}, wheels {i.wheels:g} "
+                f"{lab['inertia']}",
             )
         )
     else:

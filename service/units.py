@@ -1,9 +1,12 @@
 """Unit systems of the API and the one place where quantities are converted to and from SI.
 
-``metric``: N*m, kW, km/h, N, mm, kg, m (distance), m^2, kPa, degC.
-``us``: lbf*ft, hp (550 ft*lbf/s), mph, lbf, in, lb, ft (distance), ft^2, inHg, degF.
-Engine speed is rpm in both. Factors are exact by definition (scipy.constants agrees);
-temperature converts with its offset (to kelvin).
+``metric``: N*m, kW, km/h, N, mm, kg, m (distance), m^2, kPa, degC, kg*m^2 (inertia),
+rpm/sqrt(N*m) (converter K-factor), N/(km/h) and N/(km/h)^2 (coast-down terms), km (odometer).
+``us``: lbf*ft, hp (550 ft*lbf/s), mph, lbf, in, lb, ft (distance), ft^2, inHg, degF,
+lb*ft^2, rpm/sqrt(lbf*ft), lbf/mph and lbf/mph^2, mi (odometer).
+Engine speed is rpm in both. Log channels may name their own unit (`NAMED_UNITS`).
+Factors are exact by definition (scipy.constants agrees); temperature converts with its
+offset (to kelvin).
 """
 
 from __future__ import annotations
@@ -15,7 +18,18 @@ from typing import overload
 import numpy as np
 from numpy.typing import NDArray
 
-__all__ = ["Quantity", "UnitSystem", "from_si", "to_si", "unit_labels"]
+__all__ = [
+    "NAMED_UNITS",
+    "Quantity",
+    "UnitSystem",
+    "from_named",
+    "from_si",
+    "si_label",
+    "to_named",
+    "to_si",
+    "unit_label",
+    "unit_labels",
+]
 
 FloatArray = NDArray[np.float64]
 
@@ -40,6 +54,11 @@ class Quantity(enum.StrEnum):
     AREA = "area"
     PRESSURE = "pressure"
     TEMPERATURE = "temperature"
+    INERTIA = "inertia"
+    K_FACTOR = "k_factor"
+    FORCE_PER_SPEED = "force_per_speed"
+    FORCE_PER_SPEED_SQUARED = "force_per_speed_squared"
+    ODOMETER = "odometer"
 
 
 @dataclass(frozen=True)
@@ -62,6 +81,11 @@ _TABLE: dict[UnitSystem, dict[Quantity, _Unit]] = {
         Quantity.AREA: _Unit("m^2", 1.0),
         Quantity.PRESSURE: _Unit("kPa", 1000.0),
         Quantity.TEMPERATURE: _Unit("degC", 1.0),
+        Quantity.INERTIA: _Unit("kg*m^2", 1.0),
+        Quantity.K_FACTOR: _Unit("rpm/sqrt(N*m)", 1.0),
+        Quantity.FORCE_PER_SPEED: _Unit("N/(km/h)", 3.6),
+        Quantity.FORCE_PER_SPEED_SQUARED: _Unit("N/(km/h)^2", 3.6**2),
+        Quantity.ODOMETER: _Unit("km", 1000.0),
     },
     UnitSystem.US: {
         Quantity.TORQUE: _Unit("lbf*ft", _LBF_N * _FOOT_M),
@@ -75,8 +99,40 @@ _TABLE: dict[UnitSystem, dict[Quantity, _Unit]] = {
         # inch of mercury at 32 degF (NIST SP 811): 3386.389 Pa
         Quantity.PRESSURE: _Unit("inHg", 3386.389),
         Quantity.TEMPERATURE: _Unit("degF", 5.0 / 9.0),
+        Quantity.INERTIA: _Unit("lb*ft^2", 0.45359237 * _FOOT_M**2),
+        # K = rpm / sqrt(torque): a K in rpm/sqrt(lbf*ft) is K / sqrt(1.3558...) in SI
+        Quantity.K_FACTOR: _Unit("rpm/sqrt(lbf*ft)", (_LBF_N * _FOOT_M) ** -0.5),
+        Quantity.FORCE_PER_SPEED: _Unit("lbf/mph", _LBF_N / 0.44704),
+        Quantity.FORCE_PER_SPEED_SQUARED: _Unit("lbf/mph^2", _LBF_N / 0.44704**2),
+        Quantity.ODOMETER: _Unit("mi", 1609.344),
     },
 }
+_SI_LABELS: dict[Quantity, str] = {
+    Quantity.TORQUE: "N*m",
+    Quantity.POWER: "W",
+    Quantity.SPEED: "m/s",
+    Quantity.FORCE: "N",
+    Quantity.LENGTH: "m",
+    Quantity.MASS: "kg",
+    Quantity.DISTANCE: "m",
+    Quantity.AREA: "m^2",
+    Quantity.PRESSURE: "Pa",
+    Quantity.TEMPERATURE: "K",
+    Quantity.INERTIA: "kg*m^2",
+    Quantity.K_FACTOR: "rpm/sqrt(N*m)",
+    Quantity.FORCE_PER_SPEED: "N/(m/s)",
+    Quantity.FORCE_PER_SPEED_SQUARED: "N/(m/s)^2",
+    Quantity.ODOMETER: "m",
+}
+
+NAMED_UNITS: dict[str, float] = {
+    "km/h": 1000.0 / 3600.0,
+    "mph": 0.44704,
+    "m/s": 1.0,
+    "g": 9.80665,  # standard gravity (ISO 80000-3)
+    "m/s^2": 1.0,
+}
+"""SI per unit of the units a logged channel may name for itself (speed, acceleration)."""
 
 
 @overload
@@ -102,6 +158,26 @@ def from_si(
     if quantity is Quantity.TEMPERATURE:
         value = value - (273.15 if system is UnitSystem.METRIC else 273.15 - 32.0 * 5.0 / 9.0)
     return value / _TABLE[system][quantity].si_per_unit
+
+
+def from_named(value: float, unit: str) -> float:
+    """A value in a unit of :data:`NAMED_UNITS` (``km/h``, ``mph``, ``m/s``, ``g``) in SI."""
+    return value * NAMED_UNITS[unit]
+
+
+def to_named(value: float, unit: str) -> float:
+    """An SI value in a unit of :data:`NAMED_UNITS`."""
+    return value / NAMED_UNITS[unit]
+
+
+def unit_label(quantity: Quantity, system: UnitSystem) -> str:
+    """The caller's unit of a quantity, e.g. ``ft^2``."""
+    return _TABLE[system][quantity].label
+
+
+def si_label(quantity: Quantity) -> str:
+    """The SI unit of a quantity, e.g. ``m^2``."""
+    return _SI_LABELS[quantity]
 
 
 def unit_labels(system: UnitSystem) -> dict[str, str]:

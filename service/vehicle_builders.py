@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping
 
 import numpy as np
@@ -64,7 +63,7 @@ LAUNCH_FIELDS: Mapping[str, str] = {
 
 def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
     """The core vehicle of a request's vehicle."""
-    with core_fields(VEHICLE_FIELDS):
+    with core_fields(VEHICLE_FIELDS, units):
         mass = to_si(body.mass, Quantity.MASS, units)
         air = body.air
         temperature_k = (
@@ -85,13 +84,11 @@ def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
         load = body.road_load
         if load.coast_down is not None:
             f0, f1, f2 = load.coast_down
-            force_si = to_si(1.0, Quantity.FORCE, units)
-            speed_si = to_si(1.0, Quantity.SPEED, units)
             road = RoadLoad.from_coast_down(
                 mass,
-                f0 * force_si,
-                f1 * force_si / speed_si,
-                f2 * force_si / speed_si**2,
+                to_si(f0, Quantity.FORCE, units),
+                to_si(f1, Quantity.FORCE_PER_SPEED, units),
+                to_si(f2, Quantity.FORCE_PER_SPEED_SQUARED, units),
                 grade_percent=load.grade_percent,
             )
         else:
@@ -120,8 +117,11 @@ def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
         )
         inertia = None
         if body.inertia is not None:
+            j = Quantity.INERTIA
             inertia = RotatingInertia(
-                body.inertia.engine, body.inertia.driveshaft, body.inertia.wheels
+                to_si(body.inertia.engine, j, units),
+                to_si(body.inertia.driveshaft, j, units),
+                to_si(body.inertia.wheels, j, units),
             )
         return Vehicle(
             mass_kg=mass,
@@ -140,17 +140,18 @@ def build_launch(body: LaunchIn, curve: TorqueCurve, units: UnitSystem) -> Launc
         converter = None
         if body.converter is not None:
             c = body.converter
-            k_unit = 1.0 / math.sqrt(to_si(1.0, Quantity.TORQUE, units))  # K in rpm/sqrt(N*m)
             if c.speed_ratio is not None:
                 converter = TorqueConverter(
                     speed_ratio=np.asarray(c.speed_ratio, dtype=np.float64),
-                    k_factor=np.asarray(c.k_factor_table, dtype=np.float64) * k_unit,
+                    k_factor=to_si(
+                        np.asarray(c.k_factor_table, dtype=np.float64), Quantity.K_FACTOR, units
+                    ),
                     torque_ratio=np.asarray(c.torque_ratio_table, dtype=np.float64),
                 )
             elif c.k_factor is not None:
                 converter = TorqueConverter.from_stall(
                     c.stall_torque_ratio,
-                    stall_k_factor=c.k_factor * k_unit,
+                    stall_k_factor=to_si(c.k_factor, Quantity.K_FACTOR, units),
                     coupling_speed_ratio=c.coupling_speed_ratio,
                     lockup=False,
                 )

@@ -27,6 +27,7 @@ FIELDS = {
     "power_w": "curve.power",
     "loss_percent": "driveline.loss_percent",
     "measured_gear": "driveline.measured_gear",
+    "fixed_loss_w": "driveline.fixed_loss",
 }
 
 
@@ -45,6 +46,9 @@ async def create_chassis_conversion(body: ChassisConversionRequest, _json: JsonB
 
     def si(values: list[float] | None, quantity: Quantity) -> np.ndarray | None:
         return None if values is None else to_si(np.asarray(values, np.float64), quantity, u)
+
+    def si_one(value: float) -> float:
+        return to_si(value, Quantity.POWER, u)
 
     per_gear = loss.gear_efficiencies is not None
     fields = {
@@ -66,6 +70,7 @@ async def create_chassis_conversion(body: ChassisConversionRequest, _json: JsonB
             torque_nm=si(curve.torque, Quantity.TORQUE),
             power_w=si(curve.power, Quantity.POWER),
             measured_gear=loss.measured_gear,
+            fixed_loss_w=0.0 if loss.fixed_loss is None else si_one(loss.fixed_loss),
         )
     doc = chassis_document(result, u, fields)
     summary = chassis_summary(result, u, body.reference)

@@ -1,7 +1,8 @@
 """Reference web page at GET /demo: static HTML, JavaScript and CSS from service/static.
 
-The page calls POST /v1/shift-plan from the browser and draws the answer itself; it needs
-no build step and loads nothing from elsewhere (its Content-Security-Policy allows only
+The page calls POST /v1/shift-plan, /v1/acceleration-run and /v1/speedometer-correction
+from the browser and draws the answers itself; it needs no build step, has no inline script,
+style or handler, and loads nothing from elsewhere (its Content-Security-Policy allows only
 this origin). The routes are left out of the OpenAPI document: they serve a page, not
 the API.
 """
@@ -25,6 +26,7 @@ STATIC = Path(__file__).resolve().parent.parent / "static"
 _TYPES = {
     "demo.html": "text/html; charset=utf-8",
     "demo.js": "text/javascript; charset=utf-8",
+    "demo-form.js": "text/javascript; charset=utf-8",
     "demo.css": "text/css; charset=utf-8",
 }
 _CSP = (
@@ -56,13 +58,13 @@ def _serve(name: str, request: Request) -> Response:
 
 @router.get("/demo", include_in_schema=False)
 async def demo_page(request: Request) -> Response:
-    """The page: a torque curve and drivetrain in, the force chart and shift table out."""
+    """The page: a curve, drivetrain and car in; chart, shifts, run and speedometer out."""
     return _serve("demo.html", request)
 
 
 @router.get("/demo/{name}", include_in_schema=False)
 async def demo_asset(name: str, request: Request) -> Response:
-    """The page's script and style sheet."""
+    """The page's scripts and style sheet."""
     if name not in _TYPES or name == "demo.html":
         raise ProblemError(404, f"No such demo asset: {name[:60]!r}.")
     return _serve(name, request)

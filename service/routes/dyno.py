@@ -69,7 +69,7 @@ async def create_dyno_correction(body: DynoCorrectionRequest, _json: JsonBody) -
     """Correction factors under SAE J1349 (1990 and 2004), SAE J607, DIN 70020 and ISO 1585
     for the cell's air, and the chosen standard applied to a curve if one is sent."""
     u, amb, p = body.units, body.ambient, Quantity.PRESSURE
-    with core_fields(AMBIENT_FIELDS):
+    with core_fields(AMBIENT_FIELDS, u):
         factors = correction_factors(
             to_si(amb.temperature, Quantity.TEMPERATURE, u),
             amb.relative_humidity / 100.0,

@@ -12,10 +12,16 @@ from service.schemas.common import (
     NoticeOut,
     Reference,
     UnitLabels,
-    UnitsField,
+    UnitsRequest,
 )
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.quantities import (
+    RoadSpeed,
+    RoadSpeedOrZero,
+    Rollout,
+    RunDistance,
+)
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -37,8 +43,8 @@ __all__ = [
 class SpeedIntervalIn(ApiModel):
     """An extra speed interval to time, e.g. 50-70 mph passing."""
 
-    start: float = Field(ge=0, le=500, description="From speed [km/h | mph].")
-    end: float = Field(gt=0, le=500, description="To speed [km/h | mph].")
+    start: RoadSpeedOrZero = Field(description="From speed [km/h | mph].")
+    end: RoadSpeed = Field(description="To speed [km/h | mph].")
 
     @model_validator(mode="after")
     def _ordered(self) -> Self:
@@ -50,8 +56,8 @@ class SpeedIntervalIn(ApiModel):
 class RunOptions(ApiModel):
     """Start, finish and what to report."""
 
-    start_speed: float = Field(
-        0.0, ge=0, le=400, description="0 for a standing start, else a rolling start [km/h | mph]."
+    start_speed: RoadSpeedOrZero = Field(
+        0.0, description="0 for a standing start, else a rolling start [km/h | mph]."
     )
     start_gear: int | None = Field(
         None,
@@ -61,27 +67,24 @@ class RunOptions(ApiModel):
         "below its rev limit at the start speed; default the lowest gear that can pull the "
         "start speed below its shift rpm.",
     )
-    rollout: float | None = Field(
+    rollout: Rollout | None = Field(
         None,
-        ge=0,
-        le=2000,
         description="Standing start: distance rolled before the clock starts [mm | in]; "
         "default one foot (304.8 mm, 12 in), about what a tire rolls before the beam clears "
         "(common practice).",
     )
-    finish_distance: float | None = Field(
+    finish_distance: RunDistance | None = Field(
         None,
-        gt=0,
-        le=5000,
-        description="Finish distance from the clock start [m | ft]; default 1/4 mile.",
+        description="Finish distance from the clock start [m | ft]; default 1/4 mile "
+        "(a standing mile is 1609.344 m, 5280 ft).",
     )
-    finish_speed: float | None = Field(
-        None, gt=0, le=500, description="Finish at this speed instead [km/h | mph]."
+    finish_speed: RoadSpeed | None = Field(
+        None, description="Finish at this speed instead [km/h | mph]."
     )
-    extra_distances: list[float] = Field(
+    extra_distances: list[RunDistance] = Field(
         default_factory=list,
         max_length=10,
-        description="More distances to time [m | ft], each at most 5000.",
+        description="More distances to time [m | ft], each at most 5000 m (16404 ft).",
     )
     extra_speed_intervals: list[SpeedIntervalIn] = Field(default_factory=list, max_length=10)
     trace_points: int = Field(200, ge=10, le=2000, description="Points in the sampled trace.")
@@ -90,8 +93,6 @@ class RunOptions(ApiModel):
     def _finish(self) -> Self:
         if self.finish_distance is not None and self.finish_speed is not None:
             raise ValueError("give `finish_distance` or `finish_speed`, not both")
-        if any(not 0 < d <= 5000 for d in self.extra_distances):
-            raise ValueError("`extra_distances` must each lie in (0, 5000]")
         return self
 
 
@@ -125,12 +126,11 @@ class ShiftChoiceIn(ApiModel):
         return self
 
 
-class AccelerationRunRequest(ApiModel):
+class AccelerationRunRequest(UnitsRequest):
     """A curve, a drivetrain, a vehicle and a launch."""
 
     model_config = ConfigDict(json_schema_extra={"examples": [ACCELERATION_RUN_EXAMPLE]})
 
-    units: UnitsField
     reference: Reference
     engine: EngineIn
     drivetrain: DrivetrainIn
@@ -224,7 +224,7 @@ class AccelerationRunResponse(ApiModel):
     reference: str | None
     units: UnitLabels
     shift_criterion: Literal["net_acceleration", "tractive_force", "custom"]
-    shift_rpm: list[float] = Field(description="Shift rpm used for each gear change.")
+    shift_rpm: list[float] = Field(description="Shift rpm used for each gear change [rpm].")
     start_gear: int = Field(description="Gear the run started in (1 = first).")
     finish: DistanceOut | SpeedOut
     distances: list[DistanceOut]

@@ -4,9 +4,18 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsRequest,
+    schema_rules,
+)
+from service.schemas.quantities import CurvePower, CurveTorque, FixedLoss
+from service.schemas.request_examples import CHASSIS_EXAMPLE
 
 __all__ = [
     "ChassisConversionRequest",
@@ -22,12 +31,13 @@ MAX_POINTS = 2000
 MAX_GEARS = 12
 
 Rpm = Annotated[float, Field(ge=1, le=30000)]
-CurveValue = Annotated[float, Field(ge=0, le=100000)]
 GearEfficiency = Annotated[float, Field(ge=0.4, le=1)]
 
 
 class ChassisCurveIn(ApiModel):
     """A curve against engine rpm, at the wheels or at the engine."""
+
+    model_config = ConfigDict(json_schema_extra=schema_rules(("torque",), ("power",)))
 
     rpm: list[Rpm] = Field(
         min_length=1,
@@ -35,13 +45,13 @@ class ChassisCurveIn(ApiModel):
         description="Engine speed [rpm], strictly increasing, 1 to 2000 points (one point "
         "converts a single figure, e.g. a peak).",
     )
-    torque: list[CurveValue] | None = Field(
+    torque: list[CurveTorque] | None = Field(
         None,
         max_length=MAX_POINTS,
         description="Torque at each rpm [N*m | lbf*ft]; at the wheels, as chassis dynos "
         "report it: wheel power over engine angular speed. Give `torque` or `power`.",
     )
-    power: list[CurveValue] | None = Field(
+    power: list[CurvePower] | None = Field(
         None, max_length=MAX_POINTS, description="Power at each rpm [kW | hp]."
     )
     measured_at: Literal["wheels", "engine"] = Field(
@@ -58,7 +68,14 @@ class ChassisCurveIn(ApiModel):
 
 
 class DrivelineLossIn(ApiModel):
-    """The driveline's loss: as a per cent, as an efficiency, or per gear."""
+    """The driveline's loss: as a per cent, as an efficiency, or per gear; optionally plus a
+    fixed part."""
+
+    model_config = ConfigDict(
+        json_schema_extra=schema_rules(
+            ("loss_percent",), ("efficiency",), ("gear_efficiencies", "measured_gear")
+        )
+    )
 
     loss_percent: float | None = Field(
         None,
@@ -80,6 +97,12 @@ class DrivelineLossIn(ApiModel):
     measured_gear: int | None = Field(
         None, ge=1, le=MAX_GEARS, description="Gear the curve was measured in (1 = first)."
     )
+    fixed_loss: FixedLoss | None = Field(
+        None,
+        description="Fixed part of the loss [kW | hp], with `loss_percent` or `efficiency`: "
+        "wheel = engine x (1 - loss_percent/100) - fixed_loss, the common chassis-dyno "
+        "convention of a fixed part plus a percentage (common practice).",
+    )
 
     @model_validator(mode="after")
     def _one_form(self) -> Self:
@@ -94,13 +117,16 @@ class DrivelineLossIn(ApiModel):
             )
         if (self.gear_efficiencies is None) != (self.measured_gear is None):
             raise ValueError("`measured_gear` goes with, and only with, `gear_efficiencies`")
+        if self.fixed_loss is not None and self.gear_efficiencies is not None:
+            raise ValueError("`fixed_loss` goes with `loss_percent` or `efficiency`")
         return self
 
 
-class ChassisConversionRequest(ApiModel):
+class ChassisConversionRequest(UnitsRequest):
     """A curve and the driveline loss."""
 
-    units: UnitsField
+    model_config = ConfigDict(json_schema_extra=schema_rules(example=CHASSIS_EXAMPLE))
+
     reference: Reference
     curve: ChassisCurveIn
     driveline: DrivelineLossIn
@@ -149,6 +175,7 @@ class ChassisConversionResponse(ApiModel):
     measured_gear: int | None
     efficiency: float = Field(description="Efficiency of the run's gear [-].")
     loss_percent: float = Field(description="100 * (1 - efficiency) [%].")
+    fixed_loss: float = Field(description="Fixed part of the loss [kW | hp]; 0 if none.")
     curve: ConvertedCurveOut
     peaks: PeaksOut
     gears: list[GearCurveOut] | None

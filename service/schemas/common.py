@@ -2,10 +2,13 @@
 
 from __future__ import annotations
 
-from typing import Annotated, Any
+import typing
+from collections.abc import Callable, Mapping
+from typing import Annotated, Any, Self
 
-from pydantic import BaseModel, ConfigDict, Field
+from pydantic import BaseModel, ConfigDict, Field, model_validator
 
+from service.bounds import check_bounds
 from service.units import UnitSystem
 
 __all__ = [
@@ -17,6 +20,8 @@ __all__ = [
     "Reference",
     "UnitLabels",
     "UnitsField",
+    "UnitsRequest",
+    "schema_rules",
     "with_default_shift_criterion",
 ]
 
@@ -34,10 +39,72 @@ def with_default_shift_criterion(data: Any, field: str = "shift_criterion") -> A
     return data
 
 
+def schema_rules(
+    *forms: tuple[str, ...], example: Mapping[str, Any] | None = None
+) -> Callable[[dict[str, Any]], None]:
+    """A ``json_schema_extra`` stating in the schema what a model validator enforces.
+
+    Each form is a set of fields given together; exactly one form may be given (``oneOf``):
+    a form's fields are present and not null, every other form's fields absent or null.
+    ``example`` adds an example request.
+    """
+    fields = sorted({name for form in forms for name in form})
+
+    def extra(schema: dict[str, Any]) -> None:
+        if forms:
+            schema["oneOf"] = [
+                {
+                    "required": list(form),
+                    "properties": {
+                        name: {"not": {"type": "null"}} if name in form else {"type": "null"}
+                        for name in fields
+                    },
+                }
+                for form in forms
+            ]
+        if example is not None:
+            schema["examples"] = [dict(example)]
+
+    return extra
+
+
+def _numeric(annotation: Any) -> bool:
+    """Whether a field's type holds numbers (float or int, in a list or a union)."""
+    if annotation in (float, int):
+        return True
+    return any(_numeric(arg) for arg in typing.get_args(annotation))
+
+
+def _unbool(value: Any) -> Any:
+    """JSON `true`/`false` as text, so a number field reports them as not numbers."""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, list):
+        return [_unbool(v) for v in value]
+    return value
+
+
 class ApiModel(BaseModel):
-    """Base of every request and response model: unknown fields rejected, finite numbers."""
+    """Base of every request and response model: unknown fields rejected, finite numbers,
+    and `true`/`false` never taken for 1 and 0."""
 
     model_config = ConfigDict(extra="forbid", allow_inf_nan=False, frozen=True)
+
+    @model_validator(mode="before")
+    @classmethod
+    def _no_bool_numbers(cls, data: Any) -> Any:
+        if not isinstance(data, dict):
+            return data
+        fixed = None
+        for name, info in cls.model_fields.items():
+            value = data.get(name)
+            has_bool = isinstance(value, bool) or (
+                isinstance(value, list) and any(isinstance(v, bool) for v in value)
+            )
+            if has_bool and _numeric(info.annotation):
+                fixed = dict(data) if fixed is None else fixed
+                fixed[name] = _unbool(value)
+        return data if fixed is None else fixed
 
 
 Reference = Annotated[
@@ -56,10 +123,28 @@ UnitsField = Annotated[
     UnitSystem,
     Field(
         UnitSystem.METRIC,
-        description="Unit system of every input and output quantity: `metric` (N*m, kW, "
-        "km/h, N, mm, kg) or `us` (lbf*ft, hp, mph, lbf, in, lb). Engine speed is rpm.",
+        description="Unit system of every input and output quantity, limits and messages "
+        "included: `metric` (N*m, kW, km/h, N, mm, kg, m, m^2, kPa, degC, kg*m^2) or `us` "
+        "(lbf*ft, hp, mph, lbf, in, lb, ft, ft^2, inHg, degF, lb*ft^2). Engine speed is rpm "
+        "in both. Every limit is one physical limit, checked after conversion to SI.",
     ),
 ]
+
+
+class UnitsRequest(ApiModel):
+    """Base of a request body that carries `units`: every SI limit is checked in them.
+
+    A value outside its limit raises :class:`service.bounds.BoundsError` (a 422 naming each
+    field with its index and quoting the limit in the caller's unit) once every field has
+    validated.
+    """
+
+    units: UnitsField
+
+    @model_validator(mode="after")
+    def _si_limits(self) -> Self:
+        check_bounds(self, self.units)
+        return self
 
 
 class UnitLabels(ApiModel):
@@ -76,6 +161,15 @@ class UnitLabels(ApiModel):
     area: str = Field(description="Unit of areas.", examples=["m^2"])
     pressure: str = Field(description="Unit of pressures.", examples=["kPa"])
     temperature: str = Field(description="Unit of temperatures.", examples=["degC"])
+    inertia: str = Field(description="Unit of rotating inertias.", examples=["kg*m^2"])
+    k_factor: str = Field(description="Unit of converter K-factors.", examples=["rpm/sqrt(N*m)"])
+    force_per_speed: str = Field(
+        description="Unit of the coast-down term F1.", examples=["N/(km/h)"]
+    )
+    force_per_speed_squared: str = Field(
+        description="Unit of the coast-down term F2.", examples=["N/(km/h)^2"]
+    )
+    odometer: str = Field(description="Unit of odometer distances.", examples=["km"])
 
 
 class NoticeOut(ApiModel):

@@ -4,10 +4,24 @@ from __future__ import annotations
 
 from typing import Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsRequest,
+    schema_rules,
+)
 from service.schemas.inputs import CurveIn
+from service.schemas.quantities import (
+    AltimeterSetting,
+    CellTemperature,
+    Elevation,
+    StationPressure,
+)
+from service.schemas.request_examples import DYNO_CORRECTION_EXAMPLE
 
 __all__ = [
     "AmbientIn",
@@ -22,18 +36,23 @@ Standard = Literal["sae_j1349_1990", "sae_j1349_2004", "sae_j607", "din_70020", 
 
 
 class AmbientIn(ApiModel):
-    """Air in the dyno cell during the run."""
+    """Air in the dyno cell during the run: station pressure, or an altimeter setting with
+    the elevation."""
 
-    temperature: float = Field(ge=-40, le=140, description="Intake air temperature [degC | degF].")
+    model_config = ConfigDict(
+        json_schema_extra=schema_rules(("station_pressure",), ("altimeter_setting", "elevation"))
+    )
+
+    temperature: CellTemperature = Field(description="Intake air temperature [degC | degF].")
     relative_humidity: float = Field(ge=0, le=100, description="Relative humidity [%].")
-    station_pressure: float | None = Field(
-        None, gt=50, le=120, description="Absolute barometric pressure [kPa | inHg]."
+    station_pressure: StationPressure | None = Field(
+        None, description="Absolute barometric pressure [kPa | inHg]."
     )
-    altimeter_setting: float | None = Field(
-        None, gt=50, le=120, description="Altimeter setting (sea-level reduced) [kPa | inHg]."
+    altimeter_setting: AltimeterSetting | None = Field(
+        None, description="Altimeter setting (sea-level reduced) [kPa | inHg]."
     )
-    elevation: float | None = Field(
-        None, ge=-500, le=30000, description="Elevation, with `altimeter_setting` [m | ft]."
+    elevation: Elevation | None = Field(
+        None, description="Elevation, with `altimeter_setting` [m | ft]."
     )
 
     @model_validator(mode="after")
@@ -45,10 +64,11 @@ class AmbientIn(ApiModel):
         return self
 
 
-class DynoCorrectionRequest(ApiModel):
+class DynoCorrectionRequest(UnitsRequest):
     """Ambient conditions, and optionally the curve to correct."""
 
-    units: UnitsField
+    model_config = ConfigDict(json_schema_extra=schema_rules(example=DYNO_CORRECTION_EXAMPLE))
+
     reference: Reference
     ambient: AmbientIn
     standard: Standard = Field(

@@ -4,12 +4,21 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
 from service.schemas.acceleration import TopSpeedOut
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsRequest,
+    schema_rules,
+)
 from service.schemas.gear_choice import StripTimeOut
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.quantities import RoadSpeed, Rollout
+from service.schemas.request_examples import SWEEP_EXAMPLE
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -29,7 +38,7 @@ __all__ = [
 MAX_CANDIDATES = 200
 
 Ratio = Annotated[float, Field(ge=0.01, le=50)]
-Speed = Annotated[float, Field(gt=0, le=500, description="Road speed [km/h | mph].")]
+Speed = Annotated[RoadSpeed, Field(description="Road speed [km/h | mph].")]
 Rpm = Annotated[float, Field(gt=0, le=30000, description="Engine speed [rpm].")]
 Objective = Literal[
     "quarter_mile_et",
@@ -82,8 +91,8 @@ class SweepConstraintsIn(ApiModel):
     cruise: CruiseLimitIn | None = Field(
         None, description="Top-gear rpm at most `max_rpm` at `speed`."
     )
-    min_top_speed: float | None = Field(
-        None, gt=0, le=500, description="Top speed at least this [km/h | mph]; needs `vehicle`."
+    min_top_speed: RoadSpeed | None = Field(
+        None, description="Top speed at least this [km/h | mph]; needs `vehicle`."
     )
     min_rpm_after_shift: float | None = Field(
         None,
@@ -95,10 +104,13 @@ class SweepConstraintsIn(ApiModel):
     )
 
 
-class FinalDriveSweepRequest(ApiModel):
+class FinalDriveSweepRequest(UnitsRequest):
     """A car and the final drive ratios to try in it."""
 
-    units: UnitsField
+    model_config = ConfigDict(
+        json_schema_extra=schema_rules(("ratios",), ("ratio_range",), example=SWEEP_EXAMPLE)
+    )
+
     reference: Reference
     engine: EngineIn
     drivetrain: DrivetrainIn = Field(
@@ -134,10 +146,8 @@ class FinalDriveSweepRequest(ApiModel):
         description="Engine rpm at which to leave each gear; default the wheel-force "
         "crossover plan (the same for every final drive).",
     )
-    rollout: float | None = Field(
+    rollout: Rollout | None = Field(
         None,
-        ge=0,
-        le=2000,
         description="Distance rolled before the clock starts [mm | in]; default one foot.",
     )
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Annotated, Any, Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
 from service.schemas.acceleration import TopSpeedOut
 from service.schemas.common import (
@@ -13,10 +13,13 @@ from service.schemas.common import (
     NoticeOut,
     Reference,
     UnitLabels,
-    UnitsField,
+    UnitsRequest,
+    schema_rules,
     with_default_shift_criterion,
 )
 from service.schemas.inputs import CurveIn, DrivetrainIn, EngineIn, TireIn
+from service.schemas.quantities import Mass, RoadSpeed
+from service.schemas.request_examples import COMPARISON_EXAMPLE
 from service.schemas.shift_plan import TireOut
 from service.schemas.vehicle import ConverterIn, LaunchIn, VehicleIn
 
@@ -40,7 +43,7 @@ __all__ = [
 MAX_VARIANTS = 8
 
 Ratio = Annotated[float, Field(ge=0.01, le=50)]
-CruiseSpeed = Annotated[float, Field(gt=0, le=500, description="Road speed [km/h | mph].")]
+CruiseSpeed = Annotated[RoadSpeed, Field(description="Road speed [km/h | mph].")]
 Label = Annotated[
     str | None,
     Field(
@@ -80,9 +83,7 @@ class VariantIn(ApiModel):
     rev_limit_rpm: float | None = Field(
         None, gt=0, le=30000, description="Replaces the rev limit [rpm]."
     )
-    mass: float | None = Field(
-        None, gt=0, le=60000, description="Replaces the vehicle's test mass [kg | lb]."
-    )
+    mass: Mass | None = Field(None, description="Replaces the vehicle's test mass [kg | lb].")
     converter: ConverterIn | None = Field(
         None,
         description="Launch through this torque converter instead (keeping the lock-up "
@@ -102,11 +103,12 @@ class VariantIn(ApiModel):
         return self
 
 
-class ComparisonRequest(ApiModel):
+class ComparisonRequest(UnitsRequest):
     """A base setup and the variants to set beside it (another axle, tire or gear set, or
     another engine curve: before and after a tune)."""
 
-    units: UnitsField
+    model_config = ConfigDict(json_schema_extra=schema_rules(example=COMPARISON_EXAMPLE))
+
     reference: Reference
     engine: EngineIn
     drivetrain: DrivetrainIn

@@ -4,10 +4,19 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsRequest,
+    schema_rules,
+)
 from service.schemas.inputs import EngineIn, TireIn
+from service.schemas.quantities import OdometerDistance, RoadSpeedOrZero
+from service.schemas.request_examples import GEAR_SPACING_EXAMPLE, SPEEDOMETER_EXAMPLE
 from service.schemas.shift_plan import TireOut
 
 __all__ = [
@@ -52,10 +61,11 @@ class SpacingIn(ApiModel):
         return self
 
 
-class GearSpacingRequest(ApiModel):
+class GearSpacingRequest(UnitsRequest):
     """Ends to space, a gear set to examine, or both; a shift rpm; optionally a curve."""
 
-    units: UnitsField
+    model_config = ConfigDict(json_schema_extra=schema_rules(example=GEAR_SPACING_EXAMPLE))
+
     reference: Reference
     spacing: SpacingIn | None = Field(
         None, description="Space geometric and progressive sets between these ends."
@@ -171,10 +181,11 @@ class SpeedometerChangeIn(ApiModel):
         return self
 
 
-class SpeedometerRequest(ApiModel):
+class SpeedometerRequest(UnitsRequest):
     """The calibrated set-up, the change, and readings to correct."""
 
-    units: UnitsField
+    model_config = ConfigDict(json_schema_extra=schema_rules(example=SPEEDOMETER_EXAMPLE))
+
     reference: Reference
     drive: Literal["transmission_output", "wheel"] = Field(
         "transmission_output",
@@ -183,15 +194,15 @@ class SpeedometerRequest(ApiModel):
     )
     original: SpeedometerSetupIn
     new: SpeedometerChangeIn
-    indicated_speeds: list[Annotated[float, Field(ge=0, le=500)]] | None = Field(
+    indicated_speeds: list[RoadSpeedOrZero] | None = Field(
         None,
         max_length=20,
         description="Speeds the instrument shows [km/h | mph]; default a few road speeds.",
     )
-    indicated_distances: list[Annotated[float, Field(ge=0, le=10_000_000)]] | None = Field(
+    indicated_distances: list[OdometerDistance] | None = Field(
         None,
         max_length=20,
-        description="Distances the odometer shows, in its own unit (km or mi); the true "
+        description="Distances the odometer shows [km | mi]; the true "
         "distances come back in the same unit. Default 100, 1000 and 10000.",
     )
     driven_teeth: int | None = Field(
@@ -227,9 +238,9 @@ class SpeedReadingOut(ApiModel):
 class DistanceReadingOut(ApiModel):
     """An odometer reading and the distance travelled, in the odometer's unit."""
 
-    indicated: float
-    true: float
-    error: float = Field(description="indicated - true.")
+    indicated: float = Field(description="What the odometer shows [km | mi].")
+    true: float = Field(description="Distance travelled [km | mi].")
+    error: float = Field(description="indicated - true [km | mi].")
 
 
 class DrivenGearOut(ApiModel):

@@ -4,10 +4,19 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsField
+from service.schemas.common import (
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsRequest,
+    schema_rules,
+)
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.quantities import LogAcceleration, LogSpeed
+from service.schemas.request_examples import LOG_ANALYSIS_EXAMPLE
 from service.schemas.vehicle import VehicleIn
 
 __all__ = [
@@ -24,9 +33,7 @@ MAX_SAMPLES = 20_000
 MAX_TEXT_CHARS = 262_144
 
 Time = Annotated[float, Field(ge=-1e7, le=1e7)]
-Speed = Annotated[float, Field(ge=0, le=600)]
 Rpm = Annotated[float, Field(ge=0, le=30000)]
-Acceleration = Annotated[float, Field(ge=-50, le=50)]
 Verdict = Literal["early", "late", "about_right", "undetermined"]
 Basis = Literal["crossover", "rev_limit", "beyond_range", "insufficient_data", "downshift"]
 
@@ -34,13 +41,15 @@ Basis = Literal["crossover", "rev_limit", "beyond_range", "insufficient_data", "
 class LogIn(ApiModel):
     """A logged pass: channel arrays of equal length, or a logger's delimited text export."""
 
+    model_config = ConfigDict(json_schema_extra=schema_rules(("text",), ("time", "speed")))
+
     time: list[Time] | None = Field(
         None,
         max_length=MAX_SAMPLES,
         description="Sample times [s], strictly increasing; 20 to 20000 samples at 2 to 1000 "
         "Hz (the body limit, 256 KiB by default, caps a four-channel log near 8000 samples).",
     )
-    speed: list[Speed] | None = Field(
+    speed: list[LogSpeed] | None = Field(
         None,
         max_length=MAX_SAMPLES,
         description="Road speed at each time [`speed_unit`; default km/h | mph by `units`].",
@@ -48,7 +57,7 @@ class LogIn(ApiModel):
     rpm: list[Rpm] | None = Field(
         None, max_length=MAX_SAMPLES, description="Engine speed at each time [rpm], if logged."
     )
-    acceleration: list[Acceleration] | None = Field(
+    acceleration: list[LogAcceleration] | None = Field(
         None,
         max_length=MAX_SAMPLES,
         description="Longitudinal acceleration at each time, forward positive "
@@ -109,10 +118,11 @@ class LogOptionsIn(ApiModel):
     )
 
 
-class LogAnalysisRequest(ApiModel):
+class LogAnalysisRequest(UnitsRequest):
     """A logged pass, the drivetrain, and optionally the engine and vehicle."""
 
-    units: UnitsField
+    model_config = ConfigDict(json_schema_extra=schema_rules(example=LOG_ANALYSIS_EXAMPLE))
+
     reference: Reference
     log: LogIn
     drivetrain: DrivetrainIn

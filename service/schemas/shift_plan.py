@@ -12,11 +12,12 @@ from service.schemas.common import (
     NoticeOut,
     Reference,
     UnitLabels,
-    UnitsField,
+    UnitsRequest,
     with_default_shift_criterion,
 )
 from service.schemas.examples import SHIFT_PLAN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.quantities import RoadSpeed
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
 __all__ = [
@@ -47,12 +48,11 @@ class TableOptions(ApiModel):
     )
 
 
-class ShiftPlanRequest(ApiModel):
+class ShiftPlanRequest(UnitsRequest):
     """A torque curve and a drivetrain."""
 
     model_config = ConfigDict(json_schema_extra={"examples": [SHIFT_PLAN_EXAMPLE]})
 
-    units: UnitsField
     reference: Reference
     engine: EngineIn
     drivetrain: DrivetrainIn
@@ -69,7 +69,7 @@ class ShiftPlanRequest(ApiModel):
         "`vehicle`): road load and rotating inertia counted, which moves shifts earlier. "
         + DEFAULT_SHIFT_RULE,
     )
-    cruise_speeds: list[float] = Field(
+    cruise_speeds: list[RoadSpeed] = Field(
         default_factory=list,
         max_length=10,
         description="Road speeds [km/h | mph] at which to report the rpm in every gear.",
@@ -86,8 +86,6 @@ class ShiftPlanRequest(ApiModel):
             self.shift_criterion == "net_acceleration" or self.launch is not None
         ):
             raise ValueError("`net_acceleration` and `launch` need `vehicle`")
-        if any(not 0 < v <= 500 for v in self.cruise_speeds):
-            raise ValueError("`cruise_speeds` must each lie in (0, 500]")
         return self
 
 
@@ -233,7 +231,7 @@ class PerformanceOut(ApiModel):
         "taken at rest."
     )
     force_crossover_rpm: list[float] = Field(
-        description="Wheel-force crossover shift rpm per gear change, for comparison."
+        description="Wheel-force crossover shift rpm per gear change, for comparison [rpm]."
     )
 
 

@@ -4,10 +4,26 @@ from __future__ import annotations
 
 from typing import Literal, Self
 
-from pydantic import Field, model_validator
+from pydantic import ConfigDict, Field, model_validator
 
 from core.vehicle import MIN_FRICTION_COEFFICIENT
-from service.schemas.common import ApiModel
+from service.schemas.common import ApiModel, schema_rules
+from service.schemas.quantities import (
+    AirPressure,
+    AirTemperature,
+    Altitude,
+    CoastDownF0,
+    CoastDownF1,
+    CoastDownF2,
+    DragArea,
+    FrontalArea,
+    Inertia,
+    KFactor,
+    Mass,
+    VehicleHeight,
+    VehicleLength,
+    WheelInertia,
+)
 
 __all__ = ["AirIn", "ConverterIn", "InertiaIn", "LaunchIn", "RoadLoadIn", "VehicleIn"]
 
@@ -15,19 +31,16 @@ __all__ = ["AirIn", "ConverterIn", "InertiaIn", "LaunchIn", "RoadLoadIn", "Vehic
 class AirIn(ApiModel):
     """Ambient air, for the density in aerodynamic drag. Default: ISO standard sea level."""
 
-    temperature: float | None = Field(
+    temperature: AirTemperature | None = Field(
         None,
-        ge=-60,
-        le=140,
-        description="Air temperature [degC | degF]; default 15 degC (ISO 2533 sea level).",
+        description="Air temperature [degC | degF]; default 15 degC, 59 degF (ISO 2533 sea "
+        "level).",
     )
-    pressure: float | None = Field(
-        None, gt=0, le=120, description="Station (absolute) pressure [kPa | inHg]."
+    pressure: AirPressure | None = Field(
+        None, description="Station (absolute) pressure [kPa | inHg]."
     )
-    altitude: float | None = Field(
+    altitude: Altitude | None = Field(
         None,
-        ge=-500,
-        le=30000,
         description="Altitude [m | ft], for the ISO 2533 standard pressure when no "
         "`pressure` is given.",
     )
@@ -44,9 +57,9 @@ class RoadLoadIn(ApiModel):
     """Resistance: drag (Cd and frontal area, or CdA) plus rolling, or coast-down terms."""
 
     drag_coefficient: float | None = Field(None, ge=0, le=3, description="Cd [-].")
-    frontal_area: float | None = Field(None, gt=0, le=30, description="Frontal area [m^2 | ft^2].")
-    drag_area: float | None = Field(
-        None, ge=0, le=30, description="Cd times frontal area, CdA [m^2 | ft^2]."
+    frontal_area: FrontalArea | None = Field(None, description="Frontal area [m^2 | ft^2].")
+    drag_area: DragArea | None = Field(
+        None, description="Cd times frontal area, CdA [m^2 | ft^2]."
     )
     rolling_coefficient: float | None = Field(
         None,
@@ -55,10 +68,8 @@ class RoadLoadIn(ApiModel):
         description="Constant rolling-resistance coefficient [-]; default 0.0041 + "
         "0.000041 per mph of speed (radial tires, Gillespie ch. 4).",
     )
-    coast_down: list[float] | None = Field(
+    coast_down: tuple[CoastDownF0, CoastDownF1, CoastDownF2] | None = Field(
         None,
-        min_length=3,
-        max_length=3,
         description="Road-load coefficients F0, F1, F2 of F = F0 + F1*v + F2*v^2 "
         "[N, N/(km/h), N/(km/h)^2 | lbf, lbf/mph, lbf/mph^2], replacing drag and rolling.",
     )
@@ -70,8 +81,6 @@ class RoadLoadIn(ApiModel):
         if self.coast_down is not None:
             if any(x is not None for x in (*aero, self.rolling_coefficient)):
                 raise ValueError("`coast_down` replaces drag and rolling terms; give one form")
-            if any(x < 0 for x in self.coast_down):
-                raise ValueError("`coast_down` coefficients must be >= 0")
             return self
         if self.drag_area is None and (self.drag_coefficient is None or self.frontal_area is None):
             raise ValueError(
@@ -83,22 +92,22 @@ class RoadLoadIn(ApiModel):
 
 
 class InertiaIn(ApiModel):
-    """Rotating inertias [kg*m^2 in both unit systems]; omit for the mass-factor estimate."""
+    """Rotating inertias [kg*m^2 | lb*ft^2]; omit for the mass-factor estimate."""
 
-    engine: float = Field(ge=0, le=10, description="Engine, flywheel/converter, clutch [kg*m^2].")
-    driveshaft: float = Field(0.0, ge=0, le=10, description="Driveshaft [kg*m^2].")
-    wheels: float = Field(ge=0, le=200, description="All wheels and tires together [kg*m^2].")
+    engine: Inertia = Field(description="Engine, flywheel/converter, clutch [kg*m^2 | lb*ft^2].")
+    driveshaft: Inertia = Field(0.0, description="Driveshaft [kg*m^2 | lb*ft^2].")
+    wheels: WheelInertia = Field(description="All wheels and tires together [kg*m^2 | lb*ft^2].")
 
 
 class VehicleIn(ApiModel):
     """The car: mass, axle geometry, grip, road load, rotating parts."""
 
-    mass: float = Field(gt=0, le=60000, description="Test mass with driver and fuel [kg | lb].")
+    mass: Mass = Field(description="Test mass with driver and fuel [kg | lb].")
     front_weight_share: float = Field(
         0.55, ge=0.05, le=0.95, description="Static share of weight on the front axle [-]."
     )
-    wheelbase: float = Field(gt=0, le=20000, description="Wheelbase [mm | in].")
-    cg_height: float = Field(gt=0, le=5000, description="Centre-of-gravity height [mm | in].")
+    wheelbase: VehicleLength = Field(description="Wheelbase [mm | in].")
+    cg_height: VehicleHeight = Field(description="Centre-of-gravity height [mm | in].")
     drive: Literal["rear", "front", "all"] = Field("rear", description="Driven axles.")
     front_torque_share: float | None = Field(
         None, ge=0, le=1, description="All-wheel drive: share of torque to the front [-]."
@@ -125,13 +134,17 @@ class VehicleIn(ApiModel):
 class ConverterIn(ApiModel):
     """A torque converter: stall data, or tables over speed ratio."""
 
+    model_config = ConfigDict(
+        json_schema_extra=schema_rules(
+            ("stall_rpm",), ("k_factor",), ("speed_ratio", "k_factor_table", "torque_ratio_table")
+        )
+    )
+
     stall_rpm: float | None = Field(
         None, gt=0, le=15000, description="Stall speed [rpm] on this engine's curve."
     )
-    k_factor: float | None = Field(
+    k_factor: KFactor | None = Field(
         None,
-        gt=0,
-        le=2000,
         description="K-factor at stall [rpm/sqrt(N*m) | rpm/sqrt(lbf*ft)].",
     )
     stall_torque_ratio: float = Field(2.0, ge=1, le=5, description="Torque ratio at stall.")
@@ -141,8 +154,11 @@ class ConverterIn(ApiModel):
     speed_ratio: list[float] | None = Field(
         None, min_length=2, max_length=64, description="Table: speed ratios, 0 to 1 ascending."
     )
-    k_factor_table: list[float] | None = Field(
-        None, min_length=2, max_length=64, description="Table: K-factor at each speed ratio."
+    k_factor_table: list[KFactor] | None = Field(
+        None,
+        min_length=2,
+        max_length=64,
+        description="Table: K-factor at each speed ratio [rpm/sqrt(N*m) | rpm/sqrt(lbf*ft)].",
     )
     torque_ratio_table: list[float] | None = Field(
         None, min_length=2, max_length=64, description="Table: torque ratio at each speed ratio."

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 from collections.abc import Callable, Iterator
 from typing import Any
 
@@ -345,6 +346,7 @@ def test_demo_page_is_served_with_a_strict_content_policy(api: ApiClient) -> Non
     ("name", "kind"),
     [
         pytest.param("demo.js", "text/javascript", id="js"),
+        pytest.param("demo-form.js", "text/javascript", id="form-js"),
         pytest.param("demo.css", "text/css", id="css"),
     ],
 )
@@ -366,6 +368,8 @@ def test_demo_assets_load_nothing_from_elsewhere() -> None:
         text = path.read_text(encoding="utf-8")
         assert "http://" not in text and "https://" not in text, path.name
         assert "<script>" not in text and "style=" not in text, path.name  # no inline code
+        if path.suffix == ".html":  # no inline event handlers (onclick= ...)
+            assert re.search(r"\son[a-z]+\s*=", text) is None, path.name
 
 
 def test_demo_data_is_marked_invented() -> None:
