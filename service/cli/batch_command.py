@@ -34,7 +34,7 @@ __all__ = ["batch"]
     "--columns",
     default="",
     help="Comma-separated dotted paths of each answer to keep (needed for CSV), "
-    "e.g. 'quarter_mile.elapsed,shifts[0].shift_rpm'.",
+    "e.g. 'finish.elapsed,shifts[0].rpm_after'.",
 )
 @click.option(
     "-j",
@@ -74,7 +74,7 @@ def batch(
     \b
     Example:
       gearwork batch examples/catalogue/runs.jsonl -o fitment.csv \\
-        --columns quarter_mile.elapsed,zero_to_60_mph.elapsed --jobs 2
+        --columns 'finish.elapsed,speeds[0].elapsed' --jobs 2
       gearwork batch runs.jsonl -o answers.jsonl --scheduler tcp://127.0.0.1:8786
     """
     chosen = "csv" if kind == "csv" or (kind is None and output.endswith(".csv")) else "jsonl"

@@ -133,7 +133,7 @@ def cli() -> None:
     Examples:
       gearwork shift-plan tests/data/demo_coupe_us.json
       gearwork run car.json --format pdf -o run.pdf
-      gearwork batch runs.jsonl -o answers.csv --columns quarter_mile.elapsed --jobs 2
+      gearwork batch runs.jsonl -o answers.csv --columns finish.elapsed --jobs 2
       gearwork serve --port 8000
     """
 

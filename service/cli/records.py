@@ -40,7 +40,7 @@ class OutputSpec:
     kind : {"jsonl", "csv"}
         JSON lines (one object per input) or CSV (one row per input).
     columns : tuple of str
-        Dotted paths into each answer (``quarter_mile.elapsed``, ``shifts[0].shift_rpm``
+        Dotted paths into each answer (``finish.elapsed``, ``shifts[0].shift_rpm``
         or ``shifts.0.shift_rpm``); empty keeps the whole answer (JSON lines only).
     """
 
