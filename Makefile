@@ -5,7 +5,7 @@ BIN := $(VENV)/bin
 STAMP := $(VENV)/.installed-stamp
 SRC := core service tests scripts bench
 
-.PHONY: serve test lint fuzz bench openapi clean
+.PHONY: serve test lint fuzz bench load soak openapi clean
 
 $(STAMP): pyproject.toml constraints.txt
 	$(PY) -m venv $(VENV)
@@ -40,8 +40,17 @@ bench: $(STAMP)  ## benchmarks: core timings and served throughput against /heal
 	$(BIN)/python -m bench.shift_plan
 	$(BIN)/python -m bench.growth
 	$(BIN)/python -m bench.worst_case
+	$(BIN)/python -m bench.saturation
 	$(BIN)/python -m bench.load
 	$(BIN)/python -m bench.batch --runs $${BATCH_RUNS:-10000}
+
+load: $(STAMP)  ## 64 connections for 60 s on every endpoint, one worker then two (wrk)
+	command -v wrk >/dev/null || (apt-get update -qq && apt-get install -y -qq wrk)
+	$(BIN)/python -m bench.load --seconds 60 --connections 64 --workers 1,2
+
+soak: $(STAMP)  ## 100k requests on every endpoint; resident memory growth once warm
+	command -v wrk >/dev/null || (apt-get update -qq && apt-get install -y -qq wrk)
+	$(BIN)/python -m bench.load --soak 100000 --connections 16 --workers 1
 
 openapi: $(STAMP)  ## rewrite openapi/openapi.json from the app
 	$(BIN)/python -m scripts.write_openapi

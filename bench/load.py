@@ -1,27 +1,26 @@
-"""Served load: throughput, latency, errors and memory of uvicorn as the container runs it.
+"""Served load on a mix of every endpoint: errors, statuses, latency, queue waits, memory.
 
-    python -m bench.load [--seconds 10] [--duration 60] [--workers N] [--connections 16]
+    python -m bench.load [--seconds 60] [--connections 64] [--workers 1,2]
+    python -m bench.load --soak 100000 [--workers 1]
 
-Needs ``wrk`` (Debian package ``wrk``: ``apt-get install wrk``; ``make bench`` installs it).
-The server is ``python -m service``, the container's command: workers from
-GEARWORK_WORKERS (or ``--workers``), uvicorn's access log off, uvloop and httptools (what
-uvicorn picks when they are installed; checked below), JSON request logs on (sent to
-/dev/null) and metrics summed over the workers through PROMETHEUS_MULTIPROC_DIR.
+Needs ``wrk`` (Debian package ``wrk``; ``make load`` installs it). The server is
+``python -m service``, the container's command, with request logs on (to /dev/null) and
+metrics summed over the workers through PROMETHEUS_MULTIPROC_DIR.
 
-In one run it loads GET /healthz, POST /v1/shift-plan (tests/data/demo_coupe_us.json) and
-POST /v1/acceleration-run (tests/data/demo_sedan_run_metric.json) for ``--seconds`` each
-and prints requests per second (also as a share of /healthz), p50 and p99 latency and the
-error count. The POST bodies rotate through ``--variants`` final-drive ratios (a wrk Lua
-script), more than the result cache holds, so every request is computed; the same body
-repeated (answered from the cache) is reported on its own line, and an overload line
-(``--overload`` connections, past what the workers admit) shows the busy answers: its
-errors are the 503s (with Retry-After) of requests refused beyond GEARWORK_MAX_IN_FLIGHT
-per worker, so the queue, and with it the wait, stays bounded. Then a soak of
-``--duration`` seconds alternates both endpoints with varied bodies, in two halves, and the
-resident memory (VmRSS from /proc/<pid>/status) of the uvicorn master and each worker is
-printed at start, after warm-up (caches full) and after each half of the soak: a leak
-would keep growing through the second half. Figures are printed, never
-asserted: the machine is shared (wrk runs on the same two cores as the server).
+Load (``make load``): for each worker count, ``--connections`` keep-alive connections
+for ``--seconds`` on a rotation through every endpoint (each POST under /v1/, the probes
+and /metrics; every body carries a new reference, so the result cache never answers and
+every calculation is computed). It prints requests per second, socket errors, answers by
+status, p50/p99/max latency, the queue waits the server recorded
+(``gearwork_calculation_wait_seconds`` by outcome, with its p50/p99 read off the
+histogram) and the resident memory of every process before and after.
+
+Soak (``make soak``): the same rotation until ``--soak`` requests have been answered, in
+ten rounds; the memory after the first round (warm: imports done, caches full) is the
+base, and the growth of the last round over it is printed with the 5 % target.
+
+Figures are printed, never asserted: the machine is shared and wrk runs on the same
+cores as the server.
 """
 
 from __future__ import annotations
@@ -29,9 +28,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
-import re
 import shutil
-import socket
 import subprocess
 import sys
 import tempfile
@@ -42,109 +39,163 @@ from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
 
+from prometheus_client.parser import text_string_to_metric_families
+
+from bench.common import _free_port
+
 ROOT = Path(__file__).resolve().parent.parent
 DATA = ROOT / "tests" / "data"
-SENTINEL = 1234.5678  # stands for the final-drive ratio in the body template
+MARK = "REF-0000000000"  # stands for the varying reference in a body template
 
 _LUA = """
-local paths = {%(paths)s}
-local heads = {%(heads)s}
-local tails = {%(tails)s}
+local reqs = {%(reqs)s}
 local variants = %(variants)d
 local counter = 0
-offset = 0  -- global: setup() sets it in each thread
-local threads = 0
+statuses = {}  -- global: done() reads each thread's copy
+local threads = {}
+id = 0
 
 function setup(thread)
-  thread:set("offset", threads * 7919)
-  threads = threads + 1
+  thread:set("id", #threads)
+  table.insert(threads, thread)
+end
+
+function init(args)
+  math.randomseed(1000 + id)
 end
 
 request = function()
   counter = counter + 1
-  local k = (counter %% #paths) + 1
+  local r = reqs[(counter %% #reqs) + 1]
+  local v = string.format("%%d-%%d", id, counter)
+  if variants > 0 then v = tostring(math.random(variants)) end
   local body = nil
-  local method = "GET"
-  if heads[k] ~= "" then
-    method = "POST"
-    local ratio = %(first_ratio)f
-    if variants > 1 then
-      ratio = ratio + ((counter + offset) %% variants) * %(ratio_step)f
-    end
-    body = heads[k] .. string.format("%%.3f", ratio) .. tails[k]
+  local path = r[2]
+  if r[6] then
+    path = path .. v
+    body = r[4]
+  elseif r[4] ~= "" then
+    body = r[4] .. v .. r[5]
   end
-  return wrk.format(method, paths[k], {["Content-Type"] = "application/json"}, body)
+  return wrk.format(r[1], path, r[3], body)
+end
+
+response = function(status, headers, body)
+  statuses[status] = (statuses[status] or 0) + 1
 end
 
 done = function(summary, latency, requests)
+  local parts = {}
+  for _, t in ipairs(threads) do
+    for k, n in pairs(t:get("statuses")) do
+      parts[#parts + 1] = string.format("\\"%%d\\": %%d", k, n)
+    end
+  end
   io.write(string.format(
-    "JSON {\\"p50\\": %%f, \\"p99\\": %%f, \\"non2xx\\": %%d, \\"errors\\": %%d}\\n",
-    latency:percentile(50) / 1000, latency:percentile(99) / 1000,
-    summary.errors.status, summary.errors.connect + summary.errors.read +
-    summary.errors.write + summary.errors.timeout))
+    "JSON {\\"p50\\": %%f, \\"p99\\": %%f, \\"max\\": %%f, \\"requests\\": %%d, " ..
+    "\\"socket_errors\\": %%d, \\"statuses\\": [{%%s}]}\\n",
+    latency:percentile(50) / 1000, latency:percentile(99) / 1000, latency.max / 1000,
+    summary.requests, summary.errors.connect + summary.errors.read +
+    summary.errors.write + summary.errors.timeout, table.concat(parts, "}, {")))
 end
 """
+
+
+@dataclass(frozen=True)
+class Target:
+    """One request of the rotation: the body (or path) is split around the varying part."""
+
+    method: str
+    path: str
+    headers: dict[str, str]
+    head: str = ""
+    tail: str = ""
+    vary_path: bool = False
+
+
+def _json_target(path: str, body: dict[str, object], accept: str | None = None) -> Target:
+    head, tail = json.dumps({**body, "reference": MARK}, separators=(",", ":")).split(MARK)
+    headers = {"Content-Type": "application/json"}
+    if accept:
+        headers["Accept"] = accept
+    return Target("POST", path, headers, head, tail)
+
+
+def _demo(name: str) -> dict[str, object]:
+    data: dict[str, object] = json.loads((DATA / f"{name}.json").read_text())
+    return data
+
+
+def targets() -> list[Target]:
+    """The rotation: every endpoint once, the probes and a scrape."""
+    coupe, sedan = _demo("demo_coupe_us"), _demo("demo_sedan_run_metric")
+    csv = "Engine Speed (rpm),Torque [N*m]\n2000,200\n3000,240\n4000,250\n5000,230\n"
+    ambient = {"temperature": 30, "relative_humidity": 50, "station_pressure": 95.0}
+    return [
+        _json_target("/v1/shift-plan", coupe),
+        _json_target("/v1/acceleration-run", sedan),
+        _json_target("/v1/comparison", _demo("demo_comparison_us")),
+        _json_target("/v1/final-drive-sweep", _demo("demo_sweep_us")),
+        _json_target("/v1/gear-spacing", _demo("demo_gear_spacing_us")),
+        _json_target("/v1/speedometer-correction", _demo("demo_speedometer_us")),
+        _json_target("/v1/chassis-dyno/convert", _demo("demo_chassis_metric")),
+        _json_target("/v1/log-analysis", _demo("demo_log_text_request_metric")),
+        _json_target("/v1/dyno-correction", {"ambient": ambient}),
+        _json_target("/v1/reports/shift-plan", coupe, "text/html"),
+        _json_target("/v1/reports/acceleration-run", sedan, "application/pdf"),
+        _json_target("/v1/charts/tractive-force", coupe, "image/svg+xml"),
+        Target(
+            "POST",
+            "/v1/torque-curves/import?units=us&ref=",
+            {"Content-Type": "text/csv"},
+            csv,
+            "",
+            vary_path=True,
+        ),
+        Target("GET", "/healthz", {}),
+        Target("GET", "/readyz", {}),
+        Target("GET", "/metrics", {}),
+    ]
+
+
+def _lua(items: list[Target], variants: int = 0) -> str:
+    def q(text: str) -> str:
+        return json.dumps(text)  # a JSON string literal is a valid Lua string literal here
+
+    rows = []
+    for t in items:
+        headers = "{" + ", ".join(f"[{q(k)}] = {q(v)}" for k, v in t.headers.items()) + "}"
+        rows.append(
+            f"{{{q(t.method)}, {q(t.path)}, {headers}, {q(t.head)}, {q(t.tail)}, "
+            f"{'true' if t.vary_path else 'false'}}}"
+        )
+    return _LUA % {"reqs": ",\n  ".join(rows), "variants": variants}
 
 
 @dataclass(frozen=True)
 class Load:
     """What one wrk run measured."""
 
-    label: str
-    requests_per_s: float
+    seconds: float
+    requests: int
+    socket_errors: int
+    statuses: dict[int, int]
     p50_ms: float
     p99_ms: float
-    errors: int
-
-
-@dataclass(frozen=True)
-class Target:
-    """A path and, for a POST, the body split around its final-drive ratio."""
-
-    path: str
-    head: str = ""
-    tail: str = ""
-
-
-def _target(path: str, demo: str) -> Target:
-    body = json.loads((DATA / f"{demo}.json").read_text())
-    body["drivetrain"]["final_drive_ratio"] = SENTINEL
-    head, tail = json.dumps(body, separators=(",", ":")).split(str(SENTINEL))
-    return Target(path, head, tail)
-
-
-def _lua_string(text: str) -> str:
-    return json.dumps(text)  # a JSON string literal is a valid Lua string literal here
-
-
-def _script(targets: list[Target], variants: int) -> str:
-    return _LUA % {
-        "paths": ", ".join(_lua_string(t.path) for t in targets),
-        "heads": ", ".join(_lua_string(t.head) for t in targets),
-        "tails": ", ".join(_lua_string(t.tail) for t in targets),
-        "variants": variants,
-        "first_ratio": 2.0,
-        "ratio_step": 4.0 / max(variants, 1),
-    }
+    max_ms: float
 
 
 def run_wrk(
-    base: str,
-    label: str,
-    targets: list[Target],
-    *,
-    variants: int,
-    seconds: int,
-    connections: int,
-    threads: int,
+    base: str, seconds: int, connections: int, threads: int = 2, variants: int = 0
 ) -> Load:
-    """Load ``targets`` in turn with wrk; ``variants`` > 1 rotates the final-drive ratio."""
+    """Load the rotation with wrk for ``seconds``; ``variants`` > 0 draws each reference
+    from that many (some answers then come from the result cache), else every one is new."""
     exe = shutil.which("wrk")
     if exe is None:
         raise SystemExit("wrk not found: install the Debian package (apt-get install wrk)")
     with tempfile.TemporaryDirectory() as tmp:
-        script = Path(tmp) / "load.lua"
-        script.write_text(_script(targets, variants))
+        script = Path(tmp) / "mix.lua"
+        script.write_text(_lua(targets(), variants))
         out = subprocess.run(
             [
                 exe,
@@ -152,38 +203,39 @@ def run_wrk(
                 f"-c{connections}",
                 f"-d{seconds}s",
                 "--timeout",
-                "10s",
+                "30s",
                 "-s",
                 str(script),
-                base + targets[0].path,
+                base + "/healthz",
             ],
             capture_output=True,
             text=True,
             check=True,
         ).stdout
-    found = re.search(r"Requests/sec:\s+([\d.]+)", out)
-    if found is None:
-        raise SystemExit(f"unexpected wrk output:\n{out}")
     stats = json.loads(out[out.index("JSON ") + 5 :].splitlines()[0])
-    errors = int(stats["non2xx"]) + int(stats["errors"])
-    return Load(label, float(found.group(1)), stats["p50"], stats["p99"], errors)
-
-
-def _free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return int(s.getsockname()[1])
+    statuses: dict[int, int] = {}
+    for item in stats["statuses"]:
+        for k, n in item.items():
+            statuses[int(k)] = statuses.get(int(k), 0) + int(n)
+    return Load(
+        seconds,
+        int(stats["requests"]),
+        int(stats["socket_errors"]),
+        statuses,
+        stats["p50"],
+        stats["p99"],
+        stats["max"],
+    )
 
 
 @contextmanager
-def serve(workers: int, request_log: bool, metrics_dir: str) -> Iterator[tuple[str, int]]:
+def serve(workers: int, metrics_dir: str) -> Iterator[tuple[str, int]]:
     """Run ``python -m service`` on a free loopback port; yield (base URL, master pid)."""
     port = _free_port()
     env = {
         **os.environ,
         "GEARWORK_WORKERS": str(workers),
         "GEARWORK_LOG_LEVEL": "warning",
-        "GEARWORK_REQUEST_LOG": "true" if request_log else "false",
         "PROMETHEUS_MULTIPROC_DIR": metrics_dir,
     }
     proc = subprocess.Popen(
@@ -194,18 +246,19 @@ def serve(workers: int, request_log: bool, metrics_dir: str) -> Iterator[tuple[s
     )
     base = f"http://127.0.0.1:{port}"
     try:
-        for _ in range(400):
+        deadline = time.monotonic() + 120
+        while time.monotonic() < deadline:
             try:
-                with urllib.request.urlopen(base + "/readyz", timeout=1):
+                with urllib.request.urlopen(base + "/readyz", timeout=2):
                     break
             except OSError:
-                time.sleep(0.05)
+                time.sleep(0.2)
         else:
             raise SystemExit("the server did not become ready")
         yield base, proc.pid
     finally:
         proc.terminate()
-        proc.wait(timeout=15)
+        proc.wait(timeout=60)
 
 
 def _children(pid: int) -> list[int]:
@@ -222,174 +275,139 @@ def _children(pid: int) -> list[int]:
     return sorted(out)
 
 
-def rss_kib(pid: int) -> int:
-    """Resident memory of a process [KiB], VmRSS from /proc/<pid>/status."""
-    for line in Path(f"/proc/{pid}/status").read_text().splitlines():
-        if line.startswith("VmRSS:"):
-            return int(line.split()[1])
-    return 0
-
-
-def _cmdline(pid: int) -> str:
-    raw = Path(f"/proc/{pid}/cmdline").read_bytes().replace(b"\0", b" ").decode()
-    return raw.strip()[:60]
-
-
-def _metric_totals(base: str) -> dict[str, float]:
-    with urllib.request.urlopen(base + "/metrics", timeout=5) as r:
-        text = r.read().decode()
-    totals: dict[str, float] = {}
-    for line in text.splitlines():
-        m = re.match(r'gearwork_result_cache_total\{outcome="(\w+)"\} ([\d.e+]+)', line)
-        if m:
-            totals[f"cache {m.group(1)}"] = float(m.group(2))
-        m = re.match(r'gearwork_http_errors_total\{.*status="(\d+)"\} ([\d.e+]+)', line)
-        if m:
-            key = f"errors {m.group(1)}"
-            totals[key] = totals.get(key, 0.0) + float(m.group(2))
-    return totals
-
-
-def _check_event_loop() -> str:
-    found = []
-    for name in ("uvloop", "httptools"):
+def rss_mib(pids: list[int]) -> float:
+    """Summed resident memory of ``pids`` [MiB], VmRSS from /proc/<pid>/status."""
+    total = 0
+    for pid in pids:
         try:
-            __import__(name)
-            found.append(name)
-        except ImportError:
-            found.append(f"no {name}")
-    return "/".join(found)
+            for line in Path(f"/proc/{pid}/status").read_text().splitlines():
+                if line.startswith("VmRSS:"):
+                    total += int(line.split()[1])
+        except OSError:
+            continue
+    return total / 1024
+
+
+def check_rotation(base: str) -> None:
+    """Every request of the rotation answers 2xx once, or the benchmark stops."""
+    for t in targets():
+        path = t.path + ("check" if t.vary_path else "")
+        data = (t.head + ("" if t.vary_path else "check") + t.tail).encode() if t.head else None
+        request = urllib.request.Request(base + path, data=data, headers=t.headers)
+        request.method = t.method
+        try:
+            with urllib.request.urlopen(request, timeout=60) as r:
+                r.read()
+        except urllib.error.HTTPError as e:
+            raise SystemExit(f"{t.method} {t.path}: {e.code} {e.read()[:300]!r}") from e
+
+
+def queue_waits(base: str) -> dict[str, tuple[int, float, float]]:
+    """Outcome -> (count, p50 [ms], p99 [ms]) of gearwork_calculation_wait_seconds."""
+    with urllib.request.urlopen(base + "/metrics", timeout=30) as r:
+        text = r.read().decode()
+    buckets: dict[str, list[tuple[float, float]]] = {}
+    for family in text_string_to_metric_families(text):
+        for s in family.samples:
+            if s.name == "gearwork_calculation_wait_seconds_bucket":
+                le = float(s.labels["le"])
+                buckets.setdefault(s.labels["outcome"], []).append((le, s.value))
+    out = {}
+    for outcome, rows in buckets.items():
+        rows.sort()
+        total = rows[-1][1]
+
+        def quantile(
+            q: float, rows: list[tuple[float, float]] = rows, total: float = total
+        ) -> float:
+            return next((le for le, n in rows if n >= q * total), float("inf")) * 1e3
+
+        out[outcome] = (int(total), quantile(0.5), quantile(0.99))
+    return out
+
+
+def _print_load(
+    label: str, load: Load, before: float, after: float, waits: dict[str, tuple[int, float, float]]
+) -> None:
+    answered = sum(load.statuses.values())
+    non2xx = {k: v for k, v in sorted(load.statuses.items()) if not 200 <= k < 300}
+    print(
+        f"{label}: {answered / load.seconds:.1f} req/s, {answered} answered, socket errors "
+        f"{load.socket_errors}, non-2xx {non2xx or 'none'}; latency p50 {load.p50_ms:.1f} "
+        f"ms, p99 {load.p99_ms:.1f} ms, max {load.max_ms:.1f} ms; RSS {before:.0f} -> "
+        f"{after:.0f} MiB"
+    )
+    for outcome, (n, p50, p99) in sorted(waits.items()):
+        print(
+            f"    queue wait {outcome:12s} {n:7d} requests, p50 <= {p50:.0f} ms, "
+            f"p99 <= {p99:.0f} ms"
+        )
 
 
 def main(argv: list[str] | None = None) -> None:
-    """Parse flags, serve, load, print."""
+    """Parse flags, serve, load or soak, print."""
     parser = argparse.ArgumentParser(prog="python -m bench.load", description=__doc__)
-    parser.add_argument("--seconds", type=int, default=10, help="per endpoint [s]")
-    parser.add_argument("--duration", type=int, default=60, help="memory soak [s]")
+    parser.add_argument("--seconds", type=int, default=60, help="load duration [s]")
+    parser.add_argument("--connections", type=int, default=64)
+    parser.add_argument("--workers", default="1,2", help="comma-separated worker counts")
+    parser.add_argument("--soak", type=int, default=0, help="requests for a memory soak")
     parser.add_argument(
-        "--workers",
+        "--variants",
         type=int,
-        default=int(os.environ.get("GEARWORK_WORKERS", "2")),
-        help="uvicorn workers (default GEARWORK_WORKERS, else 2 as in the container)",
-    )
-    parser.add_argument("--connections", type=int, default=16)
-    parser.add_argument("--threads", type=int, default=1, help="wrk threads")
-    parser.add_argument("--variants", type=int, default=4000, help="final-drive ratios")
-    parser.add_argument("--no-request-log", action="store_true", help="JSON request logs off")
-    parser.add_argument(
-        "--overload",
-        type=int,
-        default=256,
-        help="connections for an overload line (503s expected past GEARWORK_MAX_IN_FLIGHT "
-        "per worker); 0 skips it",
+        default=48,
+        help="soak: references drawn from this many (16 x 48 requests against a cache of "
+        "512: about two in three answered from it, the rest computed)",
     )
     args = parser.parse_args(argv)
-
-    health = Target("/healthz")
-    plan = _target("/v1/shift-plan", "demo_coupe_us")
-    run = _target("/v1/acceleration-run", "demo_sedan_run_metric")
-    common = {"connections": args.connections, "threads": args.threads}
-    print(
-        f"gearwork load: {args.workers} workers ({_check_event_loop()}, uvicorn access log "
-        f"off, request log {'off' if args.no_request_log else 'on'}), wrk {args.threads} "
-        f"thread x {args.connections} connections, {args.seconds} s per line, "
-        f"{args.variants} body variants"
-    )
-    with (
-        tempfile.TemporaryDirectory() as metrics_dir,
-        serve(args.workers, not args.no_request_log, metrics_dir) as (base, master),
-    ):
-        pids = [master, *_children(master)]
-        rss = {"start": {p: rss_kib(p) for p in pids}}
-        for t in (health, plan, run):  # warm-up: imports, caches full, allocator settled
-            run_wrk(base, "warm-up", [t], variants=args.variants, seconds=5, **common)
-            run_wrk(base, "warm-up", [t], variants=1, seconds=2, **common)
-        rss["after warm-up"] = {p: rss_kib(p) for p in pids}
-        loads = [
-            run_wrk(base, "GET  /healthz", [health], variants=1, seconds=args.seconds, **common),
-            run_wrk(
-                base,
-                "POST /v1/shift-plan, varied",
-                [plan],
-                variants=args.variants,
-                seconds=args.seconds,
-                **common,
-            ),
-            run_wrk(
-                base,
-                "POST /v1/shift-plan, cached",
-                [plan],
-                variants=1,
-                seconds=args.seconds,
-                **common,
-            ),
-            run_wrk(
-                base,
-                "POST /v1/acceleration-run, varied",
-                [run],
-                variants=args.variants,
-                seconds=args.seconds,
-                **common,
-            ),
-            run_wrk(
-                base,
-                "POST /v1/acceleration-run, cached",
-                [run],
-                variants=1,
-                seconds=args.seconds,
-                **common,
-            ),
-        ]
-        if args.overload > 0:
-            loads.append(
-                run_wrk(
-                    base,
-                    f"overload {args.overload} conn., run varied",
-                    [run],
-                    variants=args.variants,
-                    seconds=args.seconds,
-                    connections=args.overload,
-                    threads=args.threads,
-                )
+    for workers in [int(w) for w in args.workers.split(",")]:
+        with (
+            tempfile.TemporaryDirectory() as metrics_dir,
+            serve(workers, metrics_dir) as (base, master),
+        ):
+            pids = [master, *_children(master)]
+            check_rotation(base)
+            if args.soak:
+                soak(base, pids, args.soak, args.connections, workers, args.variants)
+                continue
+            before = rss_mib(pids)
+            load = run_wrk(base, args.seconds, args.connections)
+            after = rss_mib(pids)
+            _print_load(
+                f"{workers} worker(s), {args.connections} connections, {args.seconds} s, "
+                f"{len(targets())}-request rotation",
+                load,
+                before,
+                after,
+                queue_waits(base),
             )
-        half = max(args.duration // 2, 1)
-        soaks = []
-        for n in (1, 2):  # two halves: growth in the second would be a leak, not a fill
-            soaks.append(
-                run_wrk(
-                    base,
-                    f"soak {n}/2 ({half} s), both, varied",
-                    [plan, run],
-                    variants=args.variants,
-                    seconds=half,
-                    **common,
-                )
-            )
-            rss[f"after soak {n}/2"] = {p: rss_kib(p) for p in pids}
-        totals = _metric_totals(base)
-        processes = "; ".join(f"{p} {_cmdline(p)}" for p in pids)
 
-    reference = loads[0].requests_per_s
+
+def soak(
+    base: str, pids: list[int], total: int, connections: int, workers: int, variants: int
+) -> None:
+    """Load in ten rounds until ``total`` requests are answered; print memory per round."""
+    rate = run_wrk(base, 30, connections, variants=variants)  # also the warm-up round
+    per_s = max(sum(rate.statuses.values()) / rate.seconds, 1.0)
+    warm = rss_mib(pids)
+    done = sum(rate.statuses.values())
     print(
-        f"\n{'endpoint':36s} {'req/s':>8s} {'of /healthz':>12s} {'p50 ms':>8s} "
-        f"{'p99 ms':>8s} {'errors':>7s}"
+        f"soak, {workers} worker(s): warm after {done} requests, RSS {warm:.1f} MiB; "
+        f"{per_s:.0f} req/s"
     )
-    for load in [*loads, *soaks]:
-        share = load.requests_per_s / reference if reference else float("nan")
+    rounds = 10
+    per_round = max(int((total - done) / rounds / per_s), 1)
+    for n in range(rounds):
+        load = run_wrk(base, per_round, connections, variants=variants)
+        done += sum(load.statuses.values())
+        non2xx = {k: v for k, v in sorted(load.statuses.items()) if not 200 <= k < 300}
         print(
-            f"{load.label:36s} {load.requests_per_s:8.0f} {share:11.1%} {load.p50_ms:8.2f} "
-            f"{load.p99_ms:8.2f} {load.errors:7d}"
+            f"  round {n + 1:2d}: {done:7d} requests, RSS {rss_mib(pids):7.1f} MiB, "
+            f"p99 {load.p99_ms:.0f} ms, non-2xx {non2xx or 'none'}, socket errors "
+            f"{load.socket_errors}"
         )
-    stages = list(rss)
-    print(f"\n{'resident memory [MiB]':36s} " + " ".join(f"{s:>18s}" for s in stages))
-    for pid in pids:
-        role = "master" if pid == master else "worker"
-        row = " ".join(f"{rss[s].get(pid, 0) / 1024:18.1f}" for s in stages)
-        print(f"{role + ' ' + str(pid):36s} {row}")
-    total = " ".join(f"{sum(rss[s].values()) / 1024:18.1f}" for s in stages)
-    print(f"{'all':36s} {total}")
-    print("\nfrom /metrics (all workers): " + ", ".join(f"{k} {v:.0f}" for k, v in totals.items()))
-    print(f"processes: {processes}")
+    end = rss_mib(pids)
+    growth = (end - warm) / warm
+    print(f"RSS growth once warm: {growth:+.1%} over {done} requests (target under 5 %)")
 
 
 if __name__ == "__main__":

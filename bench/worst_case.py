@@ -6,8 +6,11 @@ No wall-clock guard stops a request: the work of every calculation is bounded by
 request schema instead (curve points, gears, table rows, trace points, a fixed search
 budget), so the same input always does the same work. This script builds the heaviest
 requests those bounds allow and prints how long each takes through the whole app (every
-middleware included; each run varies the reference so the result cache never answers).
-Figures are printed, never asserted.
+middleware included, the calculation on its slot thread; each run varies the reference so
+the result cache never answers): shift plans, optimised runs, their HTML and PDF reports,
+SVG and PNG charts, the largest comparison and final-drive sweep, a 256 KiB dyno file,
+and a body of 15,000 unknown fields (refused before validation). Figures are printed,
+never asserted.
 """
 
 from __future__ import annotations
@@ -32,8 +35,8 @@ def _demo(name: str) -> dict[str, Any]:
     return data
 
 
-def cases() -> list[tuple[str, str, dict[str, Any]]]:
-    """(label, path, body) of the heaviest admissible requests."""
+def cases() -> list[tuple[str, str, dict[str, Any], dict[str, str]]]:
+    """(label, path, body, headers) of the heaviest admissible requests."""
     coupe, sedan = _demo("demo_coupe_us"), _demo("demo_sedan_run_metric")
     rpm = np.linspace(500.0, 29000.0, 2000)
     curve = {
@@ -68,33 +71,87 @@ def cases() -> list[tuple[str, str, dict[str, Any]]]:
         },
         "lockup_gears": list(range(3, 13)),
     }
-    return [
-        ("shift plan, demo coupe", "/v1/shift-plan", coupe),
-        ("shift plan, 2000 points x 12 gears", "/v1/shift-plan", plan),
-        ("shift plan, same + vehicle, net accel.", "/v1/shift-plan", plan_car),
-        ("acceleration run, demo sedan", "/v1/acceleration-run", sedan),
-        ("acceleration run, largest, optimised", "/v1/acceleration-run", run),
-        ("same, converter tables + lock-up", "/v1/acceleration-run", converter),
+    comparison = _demo("demo_comparison_us")
+    comparison["engine"] = {"curve": curve}
+    comparison["drivetrain"]["gear_ratios"] = gears
+    comparison["variants"] = [
+        {"name": f"axle {i}", "final_drive_ratio": round(3.0 + 0.15 * i, 2)} for i in range(8)
     ]
+    sweep = _demo("demo_sweep_us")
+    sweep["engine"] = {"curve": curve}
+    sweep["drivetrain"]["gear_ratios"] = gears
+    sweep.pop("ratios", None)
+    sweep["ratio_range"] = {"low": 2.5, "high": 4.975, "step": 0.025}  # 100 x 12 gears
+    crowded = {**coupe, **{f"k{i}": i for i in range(15_000)}}
+    html, pdf = {"accept": "text/html"}, {"accept": "application/pdf"}
+    return [
+        ("shift plan, demo coupe", "/v1/shift-plan", coupe, {}),
+        ("shift plan, 2000 points x 12 gears", "/v1/shift-plan", plan, {}),
+        ("shift plan, same + vehicle, net accel.", "/v1/shift-plan", plan_car, {}),
+        ("acceleration run, demo sedan", "/v1/acceleration-run", sedan, {}),
+        ("acceleration run, largest, optimised", "/v1/acceleration-run", run, {}),
+        ("same, converter tables + lock-up", "/v1/acceleration-run", converter, {}),
+        ("report HTML, largest shift plan", "/v1/reports/shift-plan", plan_car, html),
+        ("report PDF, largest shift plan", "/v1/reports/shift-plan", plan_car, pdf),
+        ("report HTML, largest optimised run", "/v1/reports/acceleration-run", run, html),
+        ("report PDF, largest optimised run", "/v1/reports/acceleration-run", run, pdf),
+        ("report PDF, converter run", "/v1/reports/acceleration-run", converter, pdf),
+        ("chart SVG, largest shift plan", "/v1/charts/tractive-force", plan_car, {}),
+        (
+            "chart PNG, largest shift plan",
+            "/v1/charts/tractive-force",
+            plan_car,
+            {"accept": "image/png"},
+        ),
+        ("comparison, 8 variants, largest", "/v1/comparison", comparison, {}),
+        ("final-drive sweep, 100 x 12 gears", "/v1/final-drive-sweep", sweep, {}),
+        ("15,000 unknown fields (refused)", "/v1/shift-plan", crowded, {}),
+    ]
+
+
+def dyno_file() -> bytes:
+    """A dyno export just under the 256 KiB body limit (about 10,000 rows)."""
+    lines = ["Engine Speed (rpm),Torque [N*m],Power [kW]"]
+    rpm = 1000.0
+    while sum(len(x) + 1 for x in lines) < 250_000:
+        torque = 300.0 + 50.0 * np.sin(rpm / 900.0)
+        lines.append(f"{rpm:.1f},{torque:.2f},{torque * rpm / 9549.296596:.2f}")
+        rpm += 0.7
+    return ("\n".join(lines) + "\n").encode()
 
 
 async def _measure(runs: int) -> None:
     transport = httpx.ASGITransport(app=app)
     async with httpx.AsyncClient(transport=transport, base_url="http://bench") as client:
         print(f"{'request':40s} {'status':>6s} {'best ms':>8s} {'worst ms':>9s} {'KiB':>7s}")
-        for label, path, body in cases():
+        for label, path, body, headers in cases():
             times = []
             status, size = 0, 0
             for i in range(runs):
                 varied = {**body, "reference": f"bench-{i}"}
                 t0 = time.perf_counter()
-                r = await client.post(path, json=varied)
+                r = await client.post(path, json=varied, headers=headers)
                 times.append(time.perf_counter() - t0)
                 status, size = r.status_code, len(r.content)
             print(
                 f"{label:40s} {status:6d} {min(times) * 1e3:8.1f} {max(times) * 1e3:9.1f} "
                 f"{size / 1024:7.0f}"
             )
+
+        raw = dyno_file()
+        times = []
+        for i in range(runs):
+            t0 = time.perf_counter()
+            r = await client.post(
+                f"/v1/torque-curves/import?units=us&run={i}",
+                content=raw,
+                headers={"content-type": "text/csv"},
+            )
+            times.append(time.perf_counter() - t0)
+        print(
+            f"{'dyno import, 256 KiB file':40s} {r.status_code:6d} {min(times) * 1e3:8.1f} "
+            f"{max(times) * 1e3:9.1f} {len(r.content) / 1024:7.0f}"
+        )
 
 
 def main() -> None:

@@ -1,4 +1,6 @@
-"""``python -m service``: run uvicorn (host, port, workers by flag or GEARWORK_* env)."""
+"""``python -m service``: run uvicorn (host, port, workers by flag or GEARWORK_* env), with
+the header limits of service.protocol and a graceful shutdown bounded by
+``GEARWORK_SHUTDOWN_TIMEOUT_S``."""
 
 from __future__ import annotations
 
@@ -6,6 +8,7 @@ import argparse
 
 import uvicorn
 
+from service.protocol import LimitedHttpProtocol
 from service.settings import get_settings
 
 
@@ -25,6 +28,10 @@ def main(argv: list[str] | None = None) -> None:
         workers=args.workers,
         log_level=args.log_level,
         access_log=False,
+        # header size, count and time limits (431, 408) on uvicorn's httptools protocol
+        http=LimitedHttpProtocol,
+        # on SIGTERM: stop accepting, answer what was accepted, then stop
+        timeout_graceful_shutdown=int(settings.shutdown_timeout_s + 0.999),
     )
 
 

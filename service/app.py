@@ -2,12 +2,19 @@
 
 from __future__ import annotations
 
+import contextlib
+import signal
+import threading
+from collections.abc import AsyncIterator
+
 from fastapi import FastAPI
 from starlette.middleware.gzip import GZipMiddleware
 
+from service.admission import Admission, AdmissionGate, CalculationSlots
 from service.cache import ResultCache
+from service.docs import install_docs
 from service.headers import ProblemCORS, ResponseHeaders
-from service.limits import BodySizeLimit, InFlightLimit
+from service.limits import BodySizeLimit
 from service.observability import Metrics, RequestObservability, configure_logging
 from service.openapi import build_openapi
 from service.problems import install_problem_handlers
@@ -45,12 +52,50 @@ worker answers 503 with `Retry-After`. Results carry an `ETag`; send it back in
 """
 
 
+def _drain_on_signals(admission: Admission) -> None:
+    """Chain a handler before the server's own on SIGTERM/SIGINT: from then on this
+    worker refuses new calculations and /readyz answers 503, while what it accepted is
+    still answered (the server stops accepting and waits for it). Only the main thread
+    may set signal handlers: elsewhere (an app run inside a test) nothing is chained."""
+    if threading.current_thread() is not threading.main_thread():
+        return
+    for sig in (signal.SIGTERM, signal.SIGINT):
+        previous = signal.getsignal(sig)
+        if not callable(previous):
+            continue
+
+        def handler(signum: int, frame: object, previous: object = previous) -> None:
+            admission.begin_draining()
+            if callable(previous):
+                previous(signum, frame)
+
+        signal.signal(sig, handler)
+
+
 def create_app() -> FastAPI:
     """Build the application with its routes, limits, headers, metrics and error handlers."""
     settings = get_settings()
     configure_logging(settings.log_level)
     metrics = Metrics() if settings.metrics else None
+    admission = Admission(
+        slots=settings.calc_slots,
+        queue=settings.queue_limit,
+        budget_s=settings.wait_budget_s,
+        client_timeout_s=settings.client_timeout_s,
+        retry_after_s=settings.retry_after_s,
+        switch_interval_s=settings.switch_interval_s,
+        metrics=metrics,
+    )
+
+    @contextlib.asynccontextmanager
+    async def lifespan(_: FastAPI) -> AsyncIterator[None]:
+        _drain_on_signals(admission)  # the server has installed its handlers by now
+        yield
+
     app = FastAPI(
+        lifespan=lifespan,
+        docs_url=None,
+        redoc_url=None,
         title="gearwork",
         version="0.1.0",
         description=DESCRIPTION,
@@ -75,13 +120,18 @@ def create_app() -> FastAPI:
     for module in (comparison, sweep, design, reports, charts, log_analysis, chassis, demo):
         app.include_router(module.router)
     install_problem_handlers(app)
+    if settings.docs:
+        install_docs(app)
     app.state.metrics = metrics
+    app.state.admission = admission
     # Each add_middleware wraps what was added before it, so the last is outermost. From
     # the outside in: request id, metrics and access log see every answer; cache headers
     # and one merged Vary go on the final (possibly gzipped) answer; CORS headers go on
-    # errors too; a busy worker refuses before reading a body; gzip sits outside the
-    # result cache, which keeps plain bodies; the size limit runs before the cache reads
-    # the body.
+    # errors too; the admission gate refuses at once when the queue is full and bounds
+    # the time to send a body; gzip sits outside the result cache, which keeps plain
+    # bodies; the size limit runs before the cache reads the body; a calculation that
+    # the cache cannot answer waits for a slot and runs on the slot's thread.
+    app.add_middleware(CalculationSlots, admission=admission)
     app.add_middleware(
         ResultCache,
         max_entries=settings.cache_entries,
@@ -95,11 +145,7 @@ def create_app() -> FastAPI:
             minimum_size=settings.gzip_min_bytes,
             compresslevel=settings.gzip_level,
         )
-    app.add_middleware(
-        InFlightLimit,
-        max_in_flight=settings.max_in_flight,
-        retry_after_s=settings.retry_after_s,
-    )
+    app.add_middleware(AdmissionGate, admission=admission)
     if settings.cors_origins:
         app.add_middleware(
             ProblemCORS,

@@ -3,13 +3,17 @@
 Every calculation endpoint is a pure function of its path and body, so the same request
 always gets the same answer. A retailer's page re-sends the configurations buyers flip
 between; a shop's job system re-sends a work order. The middleware keys each POST under
-``/v1/`` by SHA-256 of (path, content type, accept, body), keeps successful answers in a
+``/v1/`` by SHA-256 of everything the answer depends on: the path, the whole query string
+(``?units=us`` and ``?units=metric`` are different results), the content type, the
+Accept header (the negotiated format) and the body. It keeps successful answers in a
 bounded LRU (entry count and total bytes), and sends every 200 with an ``ETag`` of that
 digest, so a caller holding the tag can send ``If-None-Match`` and get 304 with no body.
 The tag is weak (``W/"..."``): it names the result, which is the same whether it is sent
-plain or gzipped. ``If-None-Match`` is compared weakly (RFC 9110, 13.1.2): a list of
-tags, strong or weak, and ``*`` all work. Set ``GEARWORK_CACHE_ENTRIES=0`` to turn the
-store off (the ETag stays).
+plain or gzipped. ``If-None-Match`` is compared weakly (RFC 9110, 13.1.2) against a list
+of tags, strong or weak. ``If-None-Match: *`` ("only if no representation exists") is
+always false for a calculation, and RFC 9110 13.1.2 answers a false condition on a
+method other than GET or HEAD with 412, so it gets a 412 problem without computing.
+Set ``GEARWORK_CACHE_ENTRIES=0`` to turn the store off (the ETag stays).
 """
 
 from __future__ import annotations
@@ -21,9 +25,11 @@ from dataclasses import dataclass
 
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
+from service.problems import problem_response
+
 __all__ = ["ResultCache", "etag_matches"]
 
-_VERSION = b"gearwork/0.1.0"
+_VERSION = b"gearwork/0.1.0;key=2"  # key=2: the query string is part of the key
 
 
 @dataclass(frozen=True)
@@ -34,17 +40,14 @@ class _Entry:
 
 
 def etag_matches(if_none_match: bytes, etag: bytes) -> bool:
-    """Whether an ``If-None-Match`` value matches ``etag`` by weak comparison.
+    """Whether an ``If-None-Match`` list names ``etag`` by weak comparison (``*`` is
+    handled apart: see the module doc).
 
     >>> etag_matches(b'"a", W/"b"', b'"b"'), etag_matches(b'"a"', b'"b"')
     (True, False)
     """
     opaque = etag.removeprefix(b"W/")
-    for part in if_none_match.split(b","):
-        tag = part.strip()
-        if tag == b"*" or tag.removeprefix(b"W/") == opaque:
-            return True
-    return False
+    return any(part.strip().removeprefix(b"W/") == opaque for part in if_none_match.split(b","))
 
 
 class ResultCache:
@@ -88,6 +91,19 @@ class ResultCache:
         ):
             await self.app(scope, receive, send)
             return
+        headers = dict(scope["headers"])
+        if_none_match = headers.get(b"if-none-match")
+        if if_none_match is not None and if_none_match.strip() == b"*":
+            response = problem_response(
+                412,
+                "If-None-Match: * asks for an answer only where none exists; a calculation "
+                "always has one (RFC 9110, 13.1.2). Send the ETag of an earlier answer "
+                "instead.",
+                scope["path"],
+                field="If-None-Match",
+            )
+            await response(scope, receive, send)
+            return
         chunks = []
         while True:
             message = await receive()
@@ -97,10 +113,10 @@ class ResultCache:
             if not message.get("more_body", False):
                 break
         body = b"".join(chunks)
-        headers = dict(scope["headers"])
         digest = hashlib.sha256(_VERSION)
         for part in (
             scope["path"].encode(),
+            bytes(scope.get("query_string", b"")),
             headers.get(b"content-type", b""),
             headers.get(b"accept", b""),
             body,
@@ -109,7 +125,6 @@ class ResultCache:
             digest.update(part)
         key = digest.digest()
         etag = b'W/"' + digest.hexdigest()[:32].encode() + b'"'
-        if_none_match = headers.get(b"if-none-match")
         if if_none_match is not None and etag_matches(if_none_match, etag):
             self._count("not_modified")
             await send(

@@ -11,7 +11,11 @@
 - errors (status 400 and up) and the probes (``/healthz``, ``/readyz``, ``/metrics``):
   ``Cache-Control: no-store``;
 - a gzipped answer's strong ``ETag`` becomes weak (``W/"..."``): the tag names the
-  content, not the encoded bytes (RFC 9110, 8.8.3).
+  content, not the encoded bytes (RFC 9110, 8.8.3);
+- HTML reports and SVG charts (``text/html`` or ``image/svg+xml`` under ``/v1/``):
+  ``Content-Security-Policy`` ``DOCUMENT_CSP``: no script, no fetch, nothing from
+  elsewhere, only their own inline styles and data: images, never framed; a document
+  opened from a shop's job system cannot run or load anything.
 
 ``ProblemCORS`` is Starlette's CORS middleware whose refused preflight is a 403 problem
 document instead of plain text.
@@ -25,8 +29,13 @@ from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
 from service.problems import problem_response
 
-__all__ = ["ProblemCORS", "ResponseHeaders", "merge_vary"]
+__all__ = ["DOCUMENT_CSP", "ProblemCORS", "ResponseHeaders", "merge_vary"]
 
+DOCUMENT_CSP = (
+    b"default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; "
+    b"form-action 'none'; frame-ancestors 'none'"
+)
+_DOCUMENTS = (b"text/html", b"image/svg+xml")
 _NO_STORE = b"no-store"
 _PROBES = frozenset({"/healthz", "/readyz", "/metrics"})
 
@@ -81,6 +90,7 @@ class ResponseHeaders:
         vary: list[bytes] = []
         gzipped = False
         has_cache_control = False
+        document = False
         for name, value in message.get("headers", ()):
             if name == b"vary":
                 vary.append(value)
@@ -89,7 +99,11 @@ class ResponseHeaders:
                 gzipped = True
             elif name == b"cache-control":
                 has_cache_control = True
+            elif name == b"content-type":
+                document = value.split(b";")[0].strip().lower() in _DOCUMENTS
             out.append((name, value))
+        if document and is_result:
+            out.append((b"content-security-policy", DOCUMENT_CSP))
         if gzipped:
             out = [(n, b"W/" + v if n == b"etag" and v.startswith(b'"') else v) for n, v in out]
         out.append((b"x-content-type-options", b"nosniff"))

@@ -1,24 +1,22 @@
-"""ASGI middleware that bounds what one request may cost before any parsing.
+"""ASGI middleware that bounds what one request body may cost before any parsing.
 
-- ``BodySizeLimit``: a body over the limit is answered 413 (declared or streamed).
-- ``InFlightLimit``: a worker holds at most so many requests at once; beyond that the
-  answer is 503 with ``Retry-After``, at once, instead of a queue that grows without end.
+``BodySizeLimit``: a body over the limit is answered 413 (declared or streamed).
 
 The work of each calculation is bounded by the request schema (at most 2000 curve points,
 12 gears, 2000 table rows, fixed integration grids and a fixed search budget), so no
-accepted input runs long; these two limits bound what arrives and how much waits.
+accepted input runs long; service.admission bounds how many wait and for how long, and
+service.protocol bounds the request line and headers.
 """
 
 from __future__ import annotations
 
 import contextlib
 
-from anyio.lowlevel import checkpoint
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
 from service.problems import problem_response
 
-__all__ = ["BodySizeLimit", "InFlightLimit"]
+__all__ = ["BodySizeLimit"]
 
 
 class _BodyTooLargeError(Exception):
@@ -86,67 +84,3 @@ class BodySizeLimit:
 
 async def _empty_receive() -> Message:
     return {"type": "http.disconnect"}
-
-
-class InFlightLimit:
-    """Answer 503 (problem details, ``Retry-After``) beyond ``max_in_flight`` requests.
-
-    Calculations are CPU-bound and run one at a time on a worker's event loop, so the
-    requests in flight are mostly waiting; capping them caps the wait. Each admitted
-    request yields once to the event loop before it runs, so every request already
-    received is counted. Probes and scrapes (``exempt`` paths) are never refused, so a
-    busy worker is not taken for a dead one.
-
-    Parameters
-    ----------
-    app : ASGI app
-        The wrapped application.
-    max_in_flight : int
-        Most requests held at once; 0 turns the limit off.
-    retry_after_s : int
-        Seconds sent in ``Retry-After``.
-    exempt : frozenset of str
-        Paths never refused.
-    """
-
-    def __init__(
-        self,
-        app: ASGIApp,
-        max_in_flight: int,
-        retry_after_s: int,
-        exempt: frozenset[str] = frozenset({"/healthz", "/readyz", "/metrics"}),
-    ) -> None:
-        self.app = app
-        self.max_in_flight = max_in_flight
-        self.retry_after_s = retry_after_s
-        self.exempt = exempt
-        self.in_flight = 0
-
-    async def __call__(self, scope: Scope, receive: Receive, send: Send) -> None:
-        if (
-            scope["type"] != "http"
-            or self.max_in_flight <= 0
-            or scope.get("path", "") in self.exempt
-        ):
-            await self.app(scope, receive, send)
-            return
-        if self.in_flight >= self.max_in_flight:
-            response = problem_response(
-                503,
-                f"The service is busy ({self.max_in_flight} requests in hand); retry after "
-                f"{self.retry_after_s} s.",
-                scope.get("path", ""),
-                slug="busy",
-                headers={"Retry-After": str(self.retry_after_s)},
-            )
-            await response(scope, _empty_receive, send)
-            return
-        self.in_flight += 1
-        try:
-            # Let the requests that arrived meanwhile reach this counter before this one
-            # computes: handlers do not yield while they compute, so without this pause
-            # each request would run to its end first and the count would never pass 1.
-            await checkpoint()
-            await self.app(scope, receive, send)
-        finally:
-            self.in_flight -= 1

@@ -46,12 +46,15 @@ from prometheus_client import (
 )
 from prometheus_client.exposition import CONTENT_TYPE_LATEST
 from prometheus_client.multiprocess import MultiProcessCollector
+from prometheus_client.openmetrics.exposition import CONTENT_TYPE_LATEST as OPENMETRICS_TYPE
+from prometheus_client.openmetrics.exposition import generate_latest as openmetrics_latest
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
 from service.problems import problem_response
 
 __all__ = [
     "METRICS_CONTENT_TYPE",
+    "OPENMETRICS_TYPE",
     "JsonFormatter",
     "Metrics",
     "RequestObservability",
@@ -67,6 +70,7 @@ _REQUEST_ID: contextvars.ContextVar[str | None] = contextvars.ContextVar(
 )
 _METHODS = frozenset({"GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS"})
 _QUIET = frozenset({"/healthz", "/readyz", "/metrics"})
+_WAIT_BUCKETS = (0.001, 0.005, 0.01, 0.05, 0.1, 0.25, 0.5, 1, 2, 3, 4, 5, 6, 8, 10, 30)
 _BUCKETS = (0.0005, 0.001, 0.0025, 0.005, 0.01, 0.025, 0.05, 0.1, 0.25, 0.5, 1.0, 2.5, 5.0)
 CLIENT_CLOSED = 499  # no answer started: the client went away first (nginx's convention)
 
@@ -172,7 +176,10 @@ class Metrics:
     Names: ``gearwork_http_requests_total`` and ``gearwork_http_errors_total`` (status 400
     and up) by method, route and status; ``gearwork_http_request_duration_seconds`` by
     method and route; ``gearwork_http_requests_in_flight``;
-    ``gearwork_result_cache_total`` by outcome (hit, miss, not_modified).
+    ``gearwork_result_cache_total`` by outcome (hit, miss, not_modified);
+    ``gearwork_calculations_waiting`` (queue depth) and ``gearwork_calculations_running``;
+    ``gearwork_calculation_wait_seconds`` from arrival to a slot or a refusal, by outcome
+    (admitted, queue_full, budget, draining, body_timeout).
     """
 
     def __init__(self) -> None:
@@ -210,6 +217,25 @@ class Metrics:
             ("outcome",),
             registry=self.registry,
         )
+        self.waiting = Gauge(
+            "gearwork_calculations_waiting",
+            "Calculation requests waiting for a slot (queue depth).",
+            registry=self.registry,
+            multiprocess_mode="livesum",
+        )
+        self.running = Gauge(
+            "gearwork_calculations_running",
+            "Calculations holding a slot.",
+            registry=self.registry,
+            multiprocess_mode="livesum",
+        )
+        self.wait = Histogram(
+            "gearwork_calculation_wait_seconds",
+            "Time from a calculation request's arrival to its slot or its refusal [s].",
+            ("outcome",),
+            buckets=_WAIT_BUCKETS,
+            registry=self.registry,
+        )
         self._children: dict[tuple[str, str, int], tuple[Any, Any, Any]] = {}
 
     def observe(self, method: str, route: str, status: int, seconds: float) -> None:
@@ -234,13 +260,24 @@ class Metrics:
         """Count one result-cache lookup (``hit``, ``miss`` or ``not_modified``)."""
         self.cache.labels(outcome).inc()
 
-    def render(self) -> bytes:
-        """The text exposition format; every worker's figures in multiprocess mode."""
+    def queue_changed(self, waiting: int, computing: int) -> None:
+        """Set the queue depth and the calculations running."""
+        self.waiting.set(waiting)
+        self.running.set(computing)
+
+    def waited(self, seconds: float, outcome: str) -> None:
+        """Record one admission decision and how long the request had waited [s]."""
+        self.wait.labels(outcome).observe(seconds)
+
+    def render(self, openmetrics: bool = False) -> bytes:
+        """The Prometheus text format, or OpenMetrics text when ``openmetrics``; every
+        worker's figures in multiprocess mode."""
+        write = openmetrics_latest if openmetrics else generate_latest
         if self.multiprocess_dir is None:
-            return generate_latest(self.registry)
+            return write(self.registry)
         registry = CollectorRegistry()
         MultiProcessCollector(registry, path=self.multiprocess_dir)  # type: ignore[no-untyped-call]
-        return generate_latest(registry)
+        return write(registry)
 
 
 class RequestObservability:

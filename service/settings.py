@@ -10,7 +10,7 @@ import re
 from functools import lru_cache
 from typing import Annotated
 
-from pydantic import Field, field_validator
+from pydantic import Field, field_validator, model_validator
 from pydantic_settings import BaseSettings, NoDecode, SettingsConfigDict
 
 __all__ = ["Settings", "get_settings"]
@@ -37,12 +37,59 @@ class Settings(BaseSettings):
     max_body_bytes: int = Field(
         262_144, ge=1024, le=16_777_216, description="Largest accepted request body [bytes]."
     )
-    max_in_flight: int = Field(
-        32,
+    calc_slots: int = Field(
+        2,
+        ge=0,
+        le=64,
+        description="Calculations one worker runs at once, each on its own thread (see "
+        "README, Scaling out: two per worker measured best); 0 computes on the event loop.",
+    )
+    switch_interval_s: float = Field(
+        0.001,
+        ge=0.0001,
+        le=0.1,
+        description="How often a computing thread hands the interpreter lock to the event "
+        "loop [s] (Python's default is 0.005; 0.001 measured best: README, Scaling out).",
+    )
+    queue_limit: int = Field(
+        16,
         ge=0,
         le=10_000,
-        description="Requests one worker holds at once (queued or computing); beyond it the "
-        "answer is 503 with Retry-After. 0 turns the limit off.",
+        description="Calculation requests one worker lets wait for a slot; one more is "
+        "answered 503 with Retry-After at once.",
+    )
+    wait_budget_s: float = Field(
+        5.0,
+        gt=0,
+        le=600,
+        description="Longest a request waits from arrival for a calculation slot [s]; past "
+        "it the answer is 503 with Retry-After.",
+    )
+    client_timeout_s: float = Field(
+        10.0,
+        gt=0,
+        le=600,
+        description="Longest a client may take to send its headers, and its body, from "
+        "arrival [s]; past it 408 and the connection is closed.",
+    )
+    shutdown_timeout_s: float = Field(
+        20.0,
+        gt=0,
+        le=3600,
+        description="On SIGTERM, longest the worker waits for accepted requests to be "
+        "answered before closing [s]; at least the wait budget plus the slowest request.",
+    )
+    max_header_bytes: int = Field(
+        16_384,
+        ge=1024,
+        le=1_048_576,
+        description="Largest request line plus headers [bytes]; past it 431.",
+    )
+    max_headers: int = Field(
+        64, ge=8, le=1000, description="Most header fields in a request; past it 431."
+    )
+    docs: bool = Field(
+        True, description="Serve /docs (Swagger UI from the installed package, no CDN)."
     )
     retry_after_s: int = Field(2, ge=1, le=600, description="Retry-After sent with a 503 [s].")
     request_log: bool = Field(True, description="One JSON line per request on stdout.")
@@ -69,6 +116,16 @@ class Settings(BaseSettings):
         description="max-age of calculation results [s]; 0 sends `no-cache` (store, but "
         "revalidate with If-None-Match).",
     )
+
+    @model_validator(mode="after")
+    def _shutdown_covers_the_budget(self) -> Settings:
+        if self.shutdown_timeout_s < self.wait_budget_s:
+            raise ValueError(
+                f"GEARWORK_SHUTDOWN_TIMEOUT_S ({self.shutdown_timeout_s:g}) must be at least "
+                f"GEARWORK_WAIT_BUDGET_S ({self.wait_budget_s:g}): queued requests are "
+                "answered before the worker stops"
+            )
+        return self
 
     @field_validator("cors_origins", mode="before")
     @classmethod

@@ -181,3 +181,33 @@ def test_image_holds_no_secrets() -> None:
 def test_build_context_leaves_out_the_virtualenv_and_git() -> None:
     ignored = (ROOT / ".dockerignore").read_text().split()
     assert {".venv", ".git"} <= set(ignored)
+
+
+def _env() -> dict[str, str]:
+    return {e["name"]: e["value"] for e in _container()["env"]}
+
+
+def test_grace_period_covers_the_drain_of_everything_accepted() -> None:
+    # preStop sleep, then uvicorn answers what it accepted within the shutdown timeout,
+    # which covers the wait budget (the settings refuse a shorter one) plus a calculation
+    pod = _kind("Deployment")["spec"]["template"]["spec"]
+    env = _env()
+    pre_stop = int(_container()["lifecycle"]["preStop"]["exec"]["command"][1])
+    shutdown = float(env["GEARWORK_SHUTDOWN_TIMEOUT_S"])
+    assert float(env["GEARWORK_WAIT_BUDGET_S"]) + 2.0 <= shutdown
+    assert pre_stop + shutdown < pod["terminationGracePeriodSeconds"]
+
+
+def test_probes_allow_for_the_measured_latency_under_saturation() -> None:
+    # bench/saturation.py: /healthz max under 0.5 s with every slot busy
+    c = _container()
+    assert c["livenessProbe"]["timeoutSeconds"] >= 1
+    assert c["livenessProbe"]["failureThreshold"] * c["livenessProbe"]["periodSeconds"] >= 20
+    assert c["readinessProbe"]["httpGet"]["path"] == "/readyz"
+
+
+def test_deployment_sets_only_settings_the_service_knows() -> None:
+    from service.settings import Settings
+
+    known = {f"GEARWORK_{name.upper()}" for name in Settings.model_fields}
+    assert {k for k in _env() if k.startswith("GEARWORK_")} <= known

@@ -16,7 +16,9 @@ from starlette.responses import Response
 
 from core import Interpolation, make_drivetrain, shift_plan, tire_from_diameter
 from core import torque_curve_from_torque as curve_from_torque
-from service.observability import METRICS_CONTENT_TYPE, Metrics
+from service.admission import Admission
+from service.negotiation import choose_media_type
+from service.observability import METRICS_CONTENT_TYPE, OPENMETRICS_TYPE, Metrics
 from service.problems import ProblemError, problem_response
 from service.responses import FastJSONResponse
 from service.schemas.common import ApiModel, Problem
@@ -29,6 +31,7 @@ router = APIRouter(tags=["health"])
 # at (T0/c)*G1/(G1+G2) = 8000*3/5 = 4800 rpm (closed form, REFERENCES.md)
 _PROBE_SHIFT_RPM = 4800.0
 _log = logging.getLogger("gearwork.errors")
+_TEXT, _OPENMETRICS = "text/plain", "application/openmetrics-text"
 
 
 class Health(ApiModel):
@@ -69,7 +72,19 @@ def probe_shift_rpm() -> float:
     responses={503: {"model": Problem, "description": "Not ready; retry after a while."}},
 )
 async def readiness(request: Request) -> Response:
-    """Ready when this worker computes a tiny shift plan and gets the known answer."""
+    """Ready when this worker computes a tiny shift plan and gets the known answer, and
+    is neither saturated (every calculation slot busy and the queue full) nor draining
+    for shutdown."""
+    admission: Admission | None = getattr(request.app.state, "admission", None)
+    if admission is not None and admission.saturated():
+        why = "is shutting down" if admission.draining else "is saturated (queue full)"
+        return problem_response(
+            503,
+            f"This worker {why}; not ready.",
+            request.url.path,
+            slug="not-ready",
+            headers={"Retry-After": str(get_settings().retry_after_s)},
+        )
     try:
         ok = math.isclose(probe_shift_rpm(), _PROBE_SHIFT_RPM, rel_tol=1e-9)
     except Exception:  # any failure of the self-check means "not ready", never a 500
@@ -88,8 +103,17 @@ async def readiness(request: Request) -> Response:
 
 @router.get("/metrics", include_in_schema=False)
 async def metrics(request: Request) -> Response:
-    """Prometheus text exposition of this service's counters and histograms."""
+    """This service's counters and histograms: OpenMetrics text when the scraper asks for
+    ``application/openmetrics-text``, else Prometheus's text format."""
     registry: Metrics | None = getattr(request.app.state, "metrics", None)
     if registry is None or not get_settings().metrics:
         raise ProblemError(404, "Metrics are turned off (GEARWORK_METRICS=false).")
-    return Response(registry.render(), media_type=METRICS_CONTENT_TYPE)
+    offered = (_TEXT, _OPENMETRICS)
+    media = choose_media_type(request.headers.get("accept"), offered) or _TEXT
+    if media == _OPENMETRICS:
+        return Response(
+            registry.render(openmetrics=True),
+            media_type=OPENMETRICS_TYPE,
+            headers={"Vary": "Accept"},
+        )
+    return Response(registry.render(), media_type=METRICS_CONTENT_TYPE, headers={"Vary": "Accept"})

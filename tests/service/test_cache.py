@@ -4,6 +4,9 @@ from __future__ import annotations
 
 from typing import Any
 
+import scipy.constants
+from numpy.testing import assert_allclose
+
 from tests.conftest import ApiClient
 
 URL = "/v1/shift-plan"
@@ -51,3 +54,44 @@ def test_cached_json_body_sent_as_text_is_still_415(
     assert api.post(URL, content=raw, headers={"content-type": "application/json"}).is_success
     r = api.post(URL, content=raw, headers={"content-type": "text/plain"})
     assert r.status_code == 415
+
+
+# --- the key covers everything the answer depends on (issue 11) ---------------------------
+
+IMPORT = "/v1/torque-curves/import"
+# invented export: rpm and torque in N*m
+CSV = b"Engine Speed (rpm),Torque [N*m]\n2000,200\n3000,240\n4000,250\n"
+
+
+def test_same_file_imported_in_other_units_is_not_answered_from_the_cache(
+    api: ApiClient,
+) -> None:
+    # only `units` in the query differs; 1 lbf*ft = 1.3558179483314004 N*m exactly
+    # (scipy.constants: pound_force * foot)
+    metric = api.post(IMPORT + "?units=metric", content=CSV, headers={"content-type": "text/csv"})
+    us = api.post(IMPORT + "?units=us", content=CSV, headers={"content-type": "text/csv"})
+    assert metric.status_code == us.status_code == 200
+    assert metric.headers["etag"] != us.headers["etag"]
+    lbf_ft = scipy.constants.pound_force * scipy.constants.foot
+    assert_allclose(
+        us.json()["curve"]["torque"], [200 / lbf_ft, 240 / lbf_ft, 250 / lbf_ft], rtol=1e-4
+    )
+    assert metric.json()["curve"]["torque"] == [200.0, 240.0, 250.0]
+
+
+def test_invalid_query_after_a_cached_answer_is_still_refused(api: ApiClient) -> None:
+    headers = {"content-type": "text/csv"}
+    assert api.post(IMPORT + "?rpm_step=100", content=CSV, headers=headers).status_code == 200
+    r = api.post(IMPORT + "?rpm_step=abc", content=CSV, headers=headers)
+    assert r.status_code == 422
+
+
+def test_if_none_match_star_on_post_is_412_even_for_a_valid_body(
+    api: ApiClient, coupe_us: dict[str, Any]
+) -> None:
+    # RFC 9110, 13.1.2: a false If-None-Match on a method other than GET or HEAD is 412
+    for body in (coupe_us, {"units": "us"}):
+        r = api.post(URL, json=body, headers={"if-none-match": "*"})
+        assert r.status_code == 412
+        assert r.headers["content-type"] == "application/problem+json"
+        assert r.json()["field"] == "If-None-Match"

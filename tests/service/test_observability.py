@@ -218,3 +218,16 @@ def test_unhandled_error_is_logged_with_request_id_and_answered_as_a_problem() -
     assert errors[0]["request_id"] == "boom-1"
     assert "RuntimeError: simulated failure" in errors[0]["exception"]
     assert access[0]["status"] == 500 and access[0]["route"] == "/boom"
+
+
+def test_metrics_negotiate_openmetrics_for_a_scraper_that_asks(api: ApiClient) -> None:
+    # the Accept header Prometheus sends (prometheus.io, scrape_protocols), and plain text
+    # for a caller that asks for nothing in particular
+    accept = "application/openmetrics-text;version=1.0.0,text/plain;version=0.0.4;q=0.5,*/*;q=0.1"
+    om = api.get("/metrics", headers={"accept": accept})
+    assert om.status_code == 200
+    assert om.headers["content-type"].startswith("application/openmetrics-text")
+    assert om.text.endswith("# EOF\n")
+    plain = api.get("/metrics")
+    assert plain.headers["content-type"].startswith("text/plain")
+    assert "# EOF" not in plain.text

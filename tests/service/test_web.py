@@ -7,17 +7,14 @@ import re
 from collections.abc import Callable, Iterator
 from typing import Any
 
-import anyio
 import httpx
 import pytest
 from anyio.from_thread import start_blocking_portal
 from fastapi import FastAPI
 from pydantic import ValidationError
 from starlette.exceptions import HTTPException
-from starlette.types import Message, Receive, Scope, Send
 
 from service.app import create_app
-from service.limits import InFlightLimit
 from service.routes.demo import STATIC
 from service.settings import Settings, get_settings
 from tests.conftest import ApiClient, load_demo
@@ -253,83 +250,6 @@ def test_largest_admissible_request_is_answered_not_failed(api: ApiClient) -> No
     assert len(r.json()["gears"]) == 12
 
 
-# --- busy worker: 503 with Retry-After --------------------------------------------------
-
-
-def test_busy_worker_answers_503_problem_with_retry_after() -> None:
-    release = anyio.Event()
-    entered = anyio.Event()
-
-    async def slow(scope: Scope, receive: Receive, send: Send) -> None:
-        if scope["path"] != "/healthz":  # a probe is answered at once
-            entered.set()
-            await release.wait()
-        await send({"type": "http.response.start", "status": 200, "headers": []})
-        await send({"type": "http.response.body", "body": b"done"})
-
-    limited = InFlightLimit(slow, max_in_flight=1, retry_after_s=3)
-    transport = httpx.ASGITransport(app=limited)
-    results: dict[str, httpx.Response] = {}
-
-    async def go() -> None:
-        async with httpx.AsyncClient(transport=transport, base_url="http://t") as c:
-
-            async def first() -> None:
-                results["first"] = await c.post(URL, content=b"{}")
-
-            async with anyio.create_task_group() as tg:
-                tg.start_soon(first)
-                await entered.wait()
-                results["second"] = await c.post(URL, content=b"{}")
-                results["probe"] = await c.get("/healthz")
-                release.set()
-
-    anyio.run(go)
-    assert results["first"].status_code == 200
-    second = results["second"]
-    assert second.status_code == 503
-    assert second.headers["content-type"] == "application/problem+json"
-    assert second.headers["retry-after"] == "3"
-    assert second.json()["type"].endswith(":busy")
-    assert results["probe"].status_code == 200  # probes are never refused
-    assert limited.in_flight == 0
-
-
-def test_requests_waiting_behind_cpu_bound_work_are_counted() -> None:
-    # handlers that never yield: without the pause at admission each would run to its end
-    # before the next is counted, and the limit would never trigger
-    async def busy(scope: Scope, receive: Receive, send: Send) -> None:
-        sum(range(20_000))
-        await send({"type": "http.response.start", "status": 200, "headers": []})
-        await send({"type": "http.response.body", "body": b"ok"})
-
-    limited = InFlightLimit(busy, max_in_flight=2, retry_after_s=1)
-    statuses: list[int] = []
-
-    async def one() -> None:
-        seen = 0
-
-        async def receive() -> Message:
-            return {"type": "http.request", "body": b"", "more_body": False}
-
-        async def send(message: Message) -> None:
-            nonlocal seen
-            if message["type"] == "http.response.start":
-                seen = message["status"]
-
-        scope = {"type": "http", "method": "POST", "path": URL, "headers": []}
-        await limited(scope, receive, send)
-        statuses.append(seen)
-
-    async def go() -> None:
-        async with anyio.create_task_group() as tg:
-            for _ in range(5):
-                tg.start_soon(one)
-
-    anyio.run(go)
-    assert sorted(statuses) == [200, 200, 503, 503, 503]
-
-
 # --- the demo page ----------------------------------------------------------------------
 
 
@@ -375,3 +295,51 @@ def test_demo_assets_load_nothing_from_elsewhere() -> None:
 def test_demo_data_is_marked_invented() -> None:
     page = (STATIC / "demo.html").read_text(encoding="utf-8")
     assert "invented" in page
+
+
+# --- documents, /docs and /metrics on a shop's network (issue 11) -----------------------
+
+
+@pytest.mark.parametrize(
+    ("url", "accept", "kind"),
+    [
+        pytest.param("/v1/reports/shift-plan", "text/html", "text/html", id="html-report"),
+        pytest.param("/v1/charts/tractive-force", "image/svg+xml", "image/svg+xml", id="svg"),
+    ],
+)
+def test_html_reports_and_svg_charts_carry_a_content_policy_without_script(
+    api: ApiClient, url: str, accept: str, kind: str
+) -> None:
+    r = api.post(url, json=load_demo("demo_coupe_us"), headers={"accept": accept})
+    assert r.status_code == 200, r.text
+    assert r.headers["content-type"].startswith(kind)
+    policy = r.headers["content-security-policy"]
+    assert "default-src 'none'" in policy and "frame-ancestors 'none'" in policy
+    assert "script-src" not in policy  # falls back to default-src 'none': no script at all
+
+
+def test_json_results_carry_no_document_policy(api: ApiClient) -> None:
+    r = api.post(URL, json=load_demo("demo_coupe_us"))
+    assert "content-security-policy" not in r.headers
+
+
+def test_docs_page_loads_its_assets_from_this_service_only(api: ApiClient) -> None:
+    page = api.get("/docs")
+    assert page.status_code == 200
+    assert page.headers["content-type"].startswith("text/html")
+    assert "script-src 'self'" in page.headers["content-security-policy"]
+    assert "http://" not in page.text and "https://" not in page.text
+    assert "<script>" not in page.text  # no inline script: the CSP would block it
+    for src in ("/docs/swagger-ui-bundle.js", "/docs/swagger-ui.css", "/docs/start.js"):
+        assert src in page.text
+        asset = api.get(src)
+        assert asset.status_code == 200 and len(asset.content) > 0, src
+    assert "/openapi.json" in api.get("/docs/start.js").text
+    _problem(api.get("/docs/index.html"), 404)
+    assert api.get("/redoc").status_code == 404  # its page would load a script from a CDN
+
+
+def test_docs_can_be_turned_off(app_with: Callable[..., Built]) -> None:
+    built = app_with(docs="false")
+    assert built("GET", "/docs").status_code == 404
+    assert built("GET", "/openapi.json").status_code == 200
