@@ -21,8 +21,9 @@ lint: $(STAMP)
 	$(BIN)/ruff format --check $(SRC)
 	$(BIN)/mypy
 
-test: lint  ## lint, type-check and run the whole test suite (installs Chromium if missing)
+test: lint  ## lint, type-check and run the whole test suite (installs Chromium and poppler if missing)
 	timeout 900 bash scripts/setup_browser.sh || echo "browser setup failed: the e2e tests will skip"
+	timeout 600 bash scripts/setup_pdf_tools.sh || echo "poppler setup failed: the PDF picture tests will skip"
 	$(BIN)/python -m pytest
 
 fuzz: $(STAMP)  ## long schemathesis run over every endpoint
@@ -35,6 +36,7 @@ bench: $(STAMP)  ## benchmarks: core timings and served throughput against /heal
 	$(BIN)/python -m bench.acceleration_run
 	$(BIN)/python -m bench.final_drive_sweep
 	$(BIN)/python -m bench.charts
+	$(BIN)/python -m bench.sheets
 	$(BIN)/python -m bench.log_analysis
 	$(BIN)/python -m bench.imports
 	$(BIN)/python -m bench.shift_plan

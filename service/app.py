@@ -29,6 +29,7 @@ from service.routes import (
     health,
     log_analysis,
     reports,
+    sheets,
     shift_plan,
     sweep,
 )
@@ -108,7 +109,10 @@ def create_app() -> FastAPI:
             {"name": "comparison", "description": "Setups side by side."},
             {"name": "final drive sweep", "description": "Rank final-drive ratios."},
             {"name": "gear design", "description": "Gear spacing; speedometer correction."},
-            {"name": "reports", "description": "Printable reports."},
+            {
+                "name": "reports",
+                "description": "Printable sheets (HTML, text, PDF) of every answer.",
+            },
             {"name": "charts", "description": "Charts of tractive force."},
             {"name": "health", "description": "Liveness and readiness."},
         ],
@@ -117,8 +121,9 @@ def create_app() -> FastAPI:
     app.include_router(shift_plan.router)
     app.include_router(acceleration.router)
     app.include_router(dyno.router)
-    for module in (comparison, sweep, design, reports, charts, log_analysis, chassis, demo):
+    for module in (comparison, sweep, design, reports, sheets, charts, log_analysis, chassis):
         app.include_router(module.router)
+    app.include_router(demo.router)
     install_problem_handlers(app)
     if settings.docs:
         install_docs(app)

@@ -151,6 +151,7 @@ class SpeedometerStudy:
     distances: DistanceReadings
     driven_gear: DrivenGearChange | None
     notices: tuple[Notice, ...]
+    axle_given: bool = True  # False: no ratio was sent and 1.0 stands in (it cancels)
 
 
 def speedometer_study(body: SpeedometerRequest) -> SpeedometerStudy:
@@ -191,5 +192,12 @@ def speedometer_study(body: SpeedometerRequest) -> SpeedometerStudy:
         if body.driven_teeth is not None:
             teeth = driven_gear_change(correction, body.driven_teeth)
     return SpeedometerStudy(
-        correction, old_tire, new_tire, readings, odometer, teeth, tuple(notes)
+        correction,
+        old_tire,
+        new_tire,
+        readings,
+        odometer,
+        teeth,
+        tuple(notes),
+        axle_given=body.original.final_drive_ratio is not None,
     )

@@ -3,11 +3,16 @@
 from __future__ import annotations
 
 import re
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 
 from service.problems import ProblemError
 
-__all__ = ["choose_media_type", "inline_disposition", "require_media_type"]
+__all__ = [
+    "choose_media_type",
+    "inline_disposition",
+    "negotiate",
+    "require_media_type",
+]
 
 _UNSAFE = re.compile(r"[^A-Za-z0-9._-]+")
 _MAX_RANGES = 32  # an Accept header is short; the rest of a long one is ignored
@@ -84,15 +89,64 @@ def choose_media_type(accept: str | None, offered: Sequence[str]) -> str | None:
     return best
 
 
+def _asks_for_json(accept: str) -> bool:
+    """Whether the Accept header names JSON: a generic client's way of saying "the usual"."""
+    return any(
+        kind == "application" and (sub == "json" or sub.endswith("+json")) and q > 0
+        for kind, sub, q in _ranges(accept)
+    )
+
+
 def require_media_type(accept: str | None, offered: Sequence[str]) -> str:
-    """The negotiated media type, or a 406 problem listing what the endpoint produces."""
+    """The negotiated media type, or a 406 problem listing what the endpoint produces.
+
+    A caller that accepts only JSON (``curl --json``, most HTTP client libraries) gets the
+    default format, ``offered[0]``: a document endpoint has no JSON form, and a plain call
+    should print or draw rather than fail.
+
+    >>> require_media_type("application/json", ["text/html", "application/pdf"])
+    'text/html'
+    """
     media = choose_media_type(accept, offered)
+    if media is None and accept is not None and _asks_for_json(accept):
+        return offered[0]
     if media is None:
         raise ProblemError(
             406,
             f"Cannot produce any type the Accept header allows ({(accept or '')[:80]!r}); "
             f"this endpoint produces {', '.join(offered)}.",
             slug="not-acceptable",
+        )
+    return media
+
+
+def negotiate(
+    accept: str | None, requested: str | None, formats: Mapping[str, str], offered: Sequence[str]
+) -> str:
+    """The media type to send: the ``format`` query parameter when given, else by Accept.
+
+    Parameters
+    ----------
+    accept : str or None
+        The request's Accept header.
+    requested : str or None
+        The ``format`` query parameter (``html``, ``text``, ``pdf``, ``svg``, ``png``).
+    formats : mapping of str to str
+        Format name -> media type, for the names this endpoint knows.
+    offered : sequence of str
+        Media types the endpoint produces, the default first.
+
+    >>> negotiate("text/plain", "pdf", {"pdf": "application/pdf"}, ["application/pdf"])
+    'application/pdf'
+    """
+    if requested is None:
+        return require_media_type(accept, offered)
+    media = formats.get(requested.strip().lower())
+    if media is None:
+        raise ProblemError(
+            422,
+            f"format must be one of {', '.join(formats)}, got {requested[:20]!r}.",
+            field="format",
         )
     return media
 

@@ -69,10 +69,11 @@ def _numbers(fig: SetupFigures, units: UnitSystem) -> dict[str, Any]:
     sixty, _ = _timed(fig, "60 ft")
     eighth, eighth_trap = _timed(fig, "1/8 mile")
     quarter, quarter_trap = _timed(fig, "1/4 mile")
-    z60 = None
+    z60 = z100 = None
     top = None
     if fig.report is not None:
         z60 = next(s.elapsed_s for s in fig.report.speeds if s.name == "0-60 mph")
+        z100 = next((s.elapsed_s for s in fig.report.speeds if s.name == "0-100 km/h"), None)
         top = from_si(fig.report.top.speed_m_s, speed, units)
     return {
         "speed_at_rev_limit": from_si(fig.speed_at_rev_limit_m_s, speed, units).tolist(),
@@ -90,6 +91,7 @@ def _numbers(fig: SetupFigures, units: UnitSystem) -> dict[str, Any]:
         if quarter_trap is None
         else from_si(quarter_trap, speed, units),
         "zero_to_60_mph": z60,
+        "zero_to_100_kmh": z100,
         **peak_numbers(fig, units),
     }
 
@@ -114,6 +116,7 @@ def _run(fig: SetupFigures, numbers: dict[str, Any]) -> dict[str, Any] | None:
     if fig.report is None:
         return None
     z60 = next(s for s in fig.report.speeds if s.name == "0-60 mph")
+    z100 = next((s for s in fig.report.speeds if s.name == "0-100 km/h"), None)
     top = fig.report.top
     speed = numbers["top_speed"]
     return {
@@ -128,6 +131,8 @@ def _run(fig: SetupFigures, numbers: dict[str, Any]) -> dict[str, Any] | None:
         },
         "zero_to_60_mph": seconds_out(z60.elapsed_s),
         "zero_to_60_mph_less_rollout": seconds_out(z60.less_rollout_s),
+        "zero_to_100_kmh": None if z100 is None else seconds_out(z100.elapsed_s),
+        "zero_to_100_kmh_less_rollout": None if z100 is None else seconds_out(z100.less_rollout_s),
         "top_speed": {"speed": round(speed, 2), "gear": top.gear, "limited_by": top.limited_by},
     }
 
@@ -226,7 +231,11 @@ def comparison_summary(
     if figures[0].report is not None:
         columns += [
             ("60ft", 5, ".2f", lambda n: n["sixty_ft"]),
-            ("0-60", 5, ".2f", lambda n: n["zero_to_60_mph"]),
+            (
+                ("0-60", 5, ".2f", lambda n: n["zero_to_60_mph"])
+                if units is UnitSystem.US
+                else ("0-100", 5, ".2f", lambda n: n["zero_to_100_kmh"])
+            ),
             ("1/4", 6, ".2f", lambda n: n["quarter_mile_elapsed"]),
             ("Trap", 6, ".1f", lambda n: n["quarter_mile_trap_speed"]),
             ("Top", 6, ".1f", lambda n: n["top_speed"]),
@@ -236,7 +245,8 @@ def comparison_summary(
         legend += f"rpm@: top gear at {cruise_v:g} {spd}; "
     legend += f"speeds in {spd}, tire diameter in {lng}"
     if figures[0].report is not None:
-        legend += "; times in s (60 ft, 0-60 mph, 1/4 mile); Top: top speed"
+        sprint = "0-60 mph" if units is UnitSystem.US else "0-100 km/h"
+        legend += f"; times in s (60 ft, {sprint}, 1/4 mile); Top: top speed"
     body = ["", *wrap_text(legend + ".")]
     body += [""]
     head = f"{'Setup':<12} {'Axle':>5} {'Tire':>6}" + "".join(

@@ -6,7 +6,7 @@ from collections.abc import Mapping, Sequence
 from typing import Any
 
 from core.plan import Notice
-from service.cautions import CAUTIONS
+from service.cautions import CAUTIONS, SPEEDOMETER_CAUTIONS, SPEEDOMETER_SHORT_CAUTION
 from service.design_builders import GearSetStudy, SpeedometerStudy
 from service.present import notices_out, rounded, tire_document
 from service.sheets import summary_sheet, wrap_text
@@ -128,7 +128,7 @@ def _setup_out(study: SpeedometerStudy, new: bool, units: UnitSystem) -> dict[st
     setup = study.correction.new if new else study.correction.original
     return {
         "tire": tire_document(study.new_tire if new else study.original_tire, units),
-        "final_drive_ratio": setup.final_drive_ratio,
+        "final_drive_ratio": setup.final_drive_ratio if study.axle_given else None,
     }
 
 
@@ -172,7 +172,7 @@ def speedometer_document(study: SpeedometerStudy, units: UnitSystem) -> dict[str
             "residual_error_percent": round(gear.residual_error_percent, 4),
         },
         "warnings": notices_out(study.notices, {"final_drive_ratio": "new.final_drive_ratio"}),
-        "cautions": list(CAUTIONS),
+        "cautions": list(SPEEDOMETER_CAUTIONS),
     }
 
 
@@ -189,10 +189,15 @@ def speedometer_summary(study: SpeedometerStudy, units: UnitSystem, reference: s
     where = "transmission output" if c.drive.value == "transmission_output" else "a wheel sensor"
     body = [""]
     body += wrap_text(f"Signal from {where}.")
-    body += wrap_text(
-        f"Calibrated for {tire(study.original_tire)}, axle {c.original.final_drive_ratio:g}; "
-        f"now {tire(study.new_tire)}, axle {c.new.final_drive_ratio:g}."
-    )
+    if study.axle_given:
+        body += wrap_text(
+            f"Calibrated for {tire(study.original_tire)}, axle {c.original.final_drive_ratio:g}; "
+            f"now {tire(study.new_tire)}, axle {c.new.final_drive_ratio:g}."
+        )
+    else:
+        body += wrap_text(
+            f"Calibrated for {tire(study.original_tire)}; now {tire(study.new_tire)}."
+        )
     sense = "high" if c.reading_error_percent > 0 else "low"
     body += wrap_text(
         f"The instrument reads {abs(c.reading_error_percent):.2f} % {sense}: true speed is "
@@ -207,6 +212,10 @@ def speedometer_summary(study: SpeedometerStudy, units: UnitSystem, reference: s
         strict=True,
     ):
         body.append(f"{i:>10.1f}  {t:>8.1f}")
+    d = study.distances
+    body += ["", f"{'Odometer':>10}  {'True':>8}  (the odometer's own unit)"]
+    for i, t in zip(d.indicated_m.tolist(), d.true_m.tolist(), strict=True):
+        body.append(f"{i:>10.1f}  {t:>8.1f}")
     gear = study.driven_gear
     if gear is not None:
         body.append("")
@@ -214,4 +223,10 @@ def speedometer_summary(study: SpeedometerStudy, units: UnitSystem, reference: s
             f"Driven gear: {gear.original_teeth} teeth now; {gear.exact_teeth:.2f} would read "
             f"true; {gear.nearest_teeth} teeth leaves {gear.residual_error_percent:+.2f} %."
         )
-    return summary_sheet("GEARWORK SPEEDOMETER CORRECTION", reference, body, study.notices)
+    return summary_sheet(
+        "GEARWORK SPEEDOMETER CORRECTION",
+        reference,
+        body,
+        study.notices,
+        caution=SPEEDOMETER_SHORT_CAUTION,
+    )

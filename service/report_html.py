@@ -9,7 +9,8 @@ from __future__ import annotations
 
 from html import escape
 
-from service.report_model import Report, Section, Table
+from service.letterhead import Letterhead, get_letterhead
+from service.report_model import KeyFigure, Report, Section, Table
 
 __all__ = ["CSS", "render_html"]
 
@@ -55,6 +56,28 @@ section.cautions { border: 1.2pt solid #14213d; padding: 1mm 4mm 2mm; margin-top
 section.cautions h2 { border: 0; margin-top: 2mm; }
 section.cautions li { margin: .6mm 0; }
 footer { margin-top: 4mm; font-size: 7.5pt; color: #666; text-align: right; }
+.shop { display: flex; justify-content: space-between; align-items: flex-start; gap: 6mm;
+  border-bottom: .9pt solid #14213d; padding-bottom: 1.6mm; margin-bottom: 3mm; }
+.shop .name { font-size: 13pt; font-weight: 700; color: #14213d; }
+.shop .lines { font-size: 8pt; color: #333; white-space: pre-line; }
+.shop img { max-height: 14mm; max-width: 40mm; }
+dl.job { display: grid; grid-template-columns: repeat(3, auto 1fr); gap: .5mm 2mm;
+  background: #f4f1eb; padding: 1.2mm 2mm; margin: 2.5mm 0 0; font-size: 8.5pt; }
+dl.job dt { font-size: 7pt; text-transform: uppercase; color: #555; font-weight: 700;
+  align-self: baseline; }
+dl.job dd { margin: 0; }
+.key-figures { display: grid; grid-template-columns: repeat(4, 1fr); gap: 1.6mm;
+  margin: 3mm 0 1mm; break-inside: avoid; page-break-inside: avoid; }
+.key-figures div { background: #f4f1eb; padding: 1.4mm 2.4mm; }
+.key-figures .label { font-size: 7pt; letter-spacing: .06em; text-transform: uppercase;
+  color: #555; font-weight: 700; }
+.key-figures .value { font-size: 15pt; font-weight: 700; color: #14213d; line-height: 1.15;
+  white-space: nowrap;
+  font-variant-numeric: tabular-nums; }
+.key-figures .unit { font-size: 9pt; font-weight: 400; color: #161616; margin-left: .8mm; }
+.key-figures .note { font-size: 7pt; color: #555; }
+section.appendix { break-before: page; page-break-before: always; }
+.side-by-side { display: flex; flex-wrap: wrap; gap: 0 8mm; align-items: flex-start; }
 @media print { body { padding: 0; max-width: none; } }
 """
 
@@ -79,8 +102,8 @@ def _table(table: Table) -> str:
         body = f'<tr><td class=text colspan="{len(table.columns)}">none</td></tr>'
     note = f'<p class="note">{escape(table.note)}</p>' if table.note else ""
     return (
-        f"<h3>{escape(table.title)}</h3>\n<table><thead><tr>{head}</tr></thead>"
-        f"<tbody>{body}</tbody></table>{note}\n"
+        f'<div class="table"><h3>{escape(table.title)}</h3>\n<table><thead><tr>{head}</tr>'
+        f"</thead><tbody>{body}</tbody></table>{note}</div>\n"
     )
 
 
@@ -91,7 +114,9 @@ def _section(section: Section) -> str:
             f"<dt>{escape(label)}</dt><dd>{escape(value)}</dd>" for label, value in section.facts
         )
         parts.append(f'<dl class="facts">{items}</dl>\n')
-    parts += [_table(t) for t in section.tables]
+    short = len(section.tables) > 1 and all(len(t.rows) <= 12 for t in section.tables)
+    tables = "".join(_table(t) for t in section.tables)
+    parts.append(f'<div class="side-by-side">{tables}</div>\n' if short else tables)
     if section.notes:
         items = "".join(f"<li>{escape(n)}</li>" for n in section.notes)
         parts.append(f'<ul class="notes">{items}</ul>\n')
@@ -99,30 +124,76 @@ def _section(section: Section) -> str:
     return "".join(parts)
 
 
-def render_html(report: Report, svg: str) -> str:
-    """The page; ``svg`` is an ``<svg>`` element (trusted: drawn by ``service.charts``)."""
+def _letterhead(head: Letterhead) -> str:
+    if head.neutral:
+        return ""
+    logo = f'<img src="{head.logo_uri}" alt="">' if head.logo else ""
+    lines = escape("\n".join(head.lines))
+    return (
+        f'<div class="shop"><div><div class="name">{escape(head.name)}</div>'
+        f'<div class="lines">{lines}</div></div>{logo}</div>\n'
+    )
+
+
+def _job(job: tuple[tuple[str, str], ...]) -> str:
+    if not job:
+        return ""
+    items = "".join(f"<dt>{escape(label)}</dt><dd>{escape(value)}</dd>" for label, value in job)
+    return f'<dl class="job">{items}</dl>\n'
+
+
+def _key_figures(figures: tuple[KeyFigure, ...]) -> str:
+    if not figures:
+        return ""
+    cells = "".join(
+        f'<div><div class="label">{escape(f.label)}</div><div class="value">{escape(f.value)}'
+        f'<span class="unit">{escape(f.unit)}</span></div>'
+        + (f'<div class="note">{escape(f.note)}</div>' if f.note else "")
+        + "</div>"
+        for f in figures
+    )
+    return f'<div class="key-figures">{cells}</div>\n'
+
+
+def render_html(report: Report, svg: str | None, letterhead: Letterhead | None = None) -> str:
+    """The page; ``svg`` is an ``<svg>`` element (trusted: drawn by ``service.charts``) or
+    None for a sheet without a chart. One template for every sheet."""
+    head = letterhead or get_letterhead()
     ref = report.reference
-    title = f"{report.kind} {ref} - gearwork" if ref else f"{report.kind} - gearwork"
+    title = f"{report.kind} {ref} - {head.name}" if ref else f"{report.kind} - {head.name}"
     ident = (
         f'<div class="ident">Reference<br><span class="ref">{escape(ref)}</span></div>'
         if ref
         else '<div class="ident">No reference given</div>'
     )
+    chart = (
+        f'<figure class="chart">\n{svg}\n<figcaption>{escape(report.chart_caption)}'
+        "</figcaption>\n</figure>\n"
+        if svg is not None
+        else ""
+    )
+    appendix = "".join(_section(s) for s in report.appendix)
+    if appendix:
+        appendix = f'<section class="appendix">\n{appendix}</section>\n'
     cautions = "".join(f"<li>{escape(c)}</li>" for c in report.cautions)
+    brand = "gearwork" if head.neutral else "calculated with gearwork"
     return (
         '<!DOCTYPE html>\n<html lang="en">\n<head>\n<meta charset="utf-8">\n'
         '<meta name="viewport" content="width=device-width, initial-scale=1">\n'
         f"<title>{escape(title)}</title>\n<style>\n{CSS}</style>\n</head>\n<body>\n"
-        '<header class="masthead">\n'
-        f'<div><div class="brand">gearwork</div><h1>{escape(report.kind)}</h1></div>\n'
+        + _letterhead(head)
+        + '<header class="masthead">\n'
+        f'<div><div class="brand">{brand}</div><h1>{escape(report.kind)}</h1></div>\n'
         f"{ident}\n</header>\n"
-        f'<p class="units">Units: {escape(report.units)}</p>\n'
+        + _job(report.job)
+        + f'<p class="units">Units: {escape(report.units)}</p>\n'
         f'<p class="short-caution"><strong>Caution:</strong> {escape(report.short_caution)}</p>\n'
-        f'<figure class="chart">\n{svg}\n<figcaption>{escape(report.chart_caption)}'
-        "</figcaption>\n</figure>\n"
+        + _key_figures(report.key_figures)
+        + chart
         + "".join(_section(s) for s in report.sections)
         + '<section class="cautions">\n<h2>Cautions</h2>\n'
         f"<ul>{cautions}</ul>\n</section>\n"
-        "<footer>Calculated by gearwork from the data supplied; not a measurement.</footer>\n"
+        + appendix
+        + "<footer>Calculated by gearwork from the data supplied; not a measurement.</footer>\n"
         "</body>\n</html>\n"
     )

@@ -14,6 +14,7 @@ import numpy as np
 
 __all__ = [
     "Column",
+    "KeyFigure",
     "Report",
     "Section",
     "Table",
@@ -56,6 +57,16 @@ class Section:
 
 
 @dataclass(frozen=True)
+class KeyFigure:
+    """A figure set large in the summary block at the head of a sheet."""
+
+    label: str
+    value: str
+    unit: str = ""
+    note: str = ""
+
+
+@dataclass(frozen=True)
 class Report:
     """A whole report.
 
@@ -74,7 +85,13 @@ class Report:
     cautions : tuple of str
         Every caution, in full.
     chart_caption : str
-        What the chart shows.
+        What the chart shows (empty for a sheet without a chart).
+    key_figures : tuple of KeyFigure
+        The figures a reader looks for first, set large at the top.
+    job : tuple of (str, str)
+        The caller's job block (customer, vehicle, technician, date, work order).
+    appendix : tuple of Section
+        Long tables, printed after the cautions only when asked for.
     """
 
     kind: str
@@ -83,7 +100,10 @@ class Report:
     short_caution: str
     sections: tuple[Section, ...]
     cautions: tuple[str, ...]
-    chart_caption: str
+    chart_caption: str = ""
+    key_figures: tuple[KeyFigure, ...] = ()
+    job: tuple[tuple[str, str], ...] = ()
+    appendix: tuple[Section, ...] = ()
 
 
 def thin_rows(count: int, most: int = MAX_TABLE_ROWS) -> list[int]:

@@ -18,7 +18,7 @@ from service.report_inputs import (
     units_line,
     vehicle_facts,
 )
-from service.report_model import Column, Report, Section, Table, fmt, thin_rows
+from service.report_model import Column, KeyFigure, Report, Section, Table, fmt, thin_rows
 from service.units import unit_labels
 
 __all__ = ["acceleration_run_report"]
@@ -177,6 +177,27 @@ def _result_facts(doc: dict[str, Any], lab: dict[str, str]) -> tuple[tuple[str, 
     return tuple(facts)
 
 
+def _key_figures(doc: dict[str, Any], lab: dict[str, str], us: bool) -> tuple[KeyFigure, ...]:
+    """The finish (time and trap), the caller's customary sprint, top speed."""
+    figures = []
+    timed = [d for d in doc["distances"] if d["elapsed"] is not None]
+    finish = next((d for d in timed if d["name"] == "1/4 mile"), timed[-1] if timed else None)
+    if finish is not None:
+        figures.append(KeyFigure(finish["name"], fmt(finish["elapsed"], 2), "s"))
+        if finish["trap_speed"] is not None:
+            figures.append(KeyFigure("Trap speed", fmt(finish["trap_speed"], 1), lab["speed"]))
+    sprint = "0-60 mph" if us else "0-100 km/h"
+    for s in doc["speeds"]:
+        if s["name"] == sprint and s["elapsed"] is not None:
+            note = f"{fmt(s['less_rollout'], 2)} s less rollout" if s["less_rollout"] else ""
+            figures.append(KeyFigure(sprint, fmt(s["elapsed"], 2), "s", note))
+    top = doc["top_speed"]
+    figures.append(
+        KeyFigure("Top speed", fmt(top["speed"], 1), lab["speed"], f"in gear {top['gear']}")
+    )
+    return tuple(figures[:4])
+
+
 def acceleration_run_report(outcome: RunOutcome) -> Report:
     """The report of a simulated acceleration run."""
     body, doc, model, units = outcome.body, outcome.document, outcome.model, outcome.body.units
@@ -188,13 +209,13 @@ def acceleration_run_report(outcome: RunOutcome) -> Report:
     inputs += vehicle_facts(body.vehicle, units)
     inputs += launch_facts(body.launch, units)
     inputs += _run_facts(outcome, lab)
-    sections = [
-        Section("Inputs", tuple(inputs)),
+    sections = [  # results first: what the reader came for; then what they rest on
         Section(
             "Times",
             tables=(_distance_table(doc, lab), _speed_table(doc), _shift_table(doc, lab)),
         ),
-        Section("Result", _result_facts(doc, lab), (_trace_table(doc, lab),)),
+        Section("Result", _result_facts(doc, lab)),
+        Section("Inputs", tuple(inputs)),
     ]
     if doc["warnings"]:
         sections.append(Section("Warnings", notes=tuple(w["message"] for w in doc["warnings"])))
@@ -209,4 +230,6 @@ def acceleration_run_report(outcome: RunOutcome) -> Report:
             f"Road speed [{lab['speed']}] against time from first motion [s], by gear; "
             "diamonds mark the shifts, drops the timed distances."
         ),
+        key_figures=_key_figures(doc, lab, units.value == "us"),
+        appendix=(Section("The run over time", tables=(_trace_table(doc, lab),)),),
     )

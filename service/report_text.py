@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import textwrap
 
+from service.letterhead import Letterhead, get_letterhead
 from service.report_model import Report, Section, Table
 from service.sheets import printable, printable_line
 
@@ -19,26 +20,46 @@ def wrap_text(text: str, first: str = "", rest: str = "  ") -> list[str]:
     ) or [first.rstrip()]
 
 
+def _column_groups(widths: list[int]) -> list[list[int]]:
+    """Column indexes in groups that fit 80 columns, each repeating the first column."""
+    groups: list[list[int]] = [[0]]
+    used = widths[0]
+    for i in range(1, len(widths)):
+        if used + 2 + widths[i] > WIDTH and len(groups[-1]) > 1:
+            groups.append([0])
+            used = widths[0]
+        groups[-1].append(i)
+        used += 2 + widths[i]
+    return groups
+
+
 def table_lines(table: Table) -> list[str]:
-    """A table: title, column names, units in brackets, a rule, the rows, the note."""
+    """A table: title, column names, units in brackets, a rule, the rows, the note. A table
+    wider than 80 columns is printed in parts, each repeating the first column."""
     names = [c.name for c in table.columns]
     units = [f"[{c.unit}]" if c.unit else "" for c in table.columns]
     widths = [
         max(len(names[i]), len(units[i]), *(len(row[i]) for row in table.rows))
         for i in range(len(table.columns))
     ]
+    out: list[str] = []
+    groups = _column_groups(widths)
+    for k, group in enumerate(groups):
 
-    def line(cells: list[str] | tuple[str, ...]) -> str:
-        return "  ".join(
-            cell.ljust(w) if col.text else cell.rjust(w)
-            for cell, w, col in zip(cells, widths, table.columns, strict=True)
-        ).rstrip()
+        def line(cells: list[str] | tuple[str, ...], group: list[int] = group) -> str:
+            return "  ".join(
+                cells[i].ljust(widths[i]) if table.columns[i].text else cells[i].rjust(widths[i])
+                for i in group
+            ).rstrip()
 
-    out = [table.title, line(names)]
-    if any(units):
-        out.append(line(units))
-    out.append("  ".join("-" * w for w in widths))
-    out += [line(row) for row in table.rows] or ["(none)"]
+        if k:
+            out.append("")
+        out.append(table.title if k == 0 else f"{table.title} (continued)")
+        out.append(line(names))
+        if any(units[i] for i in group):
+            out.append(line(units))
+        out.append("  ".join("-" * widths[i] for i in group))
+        out += [line(row) for row in table.rows] or ["(none)"]
     if table.note:
         out += wrap_text(table.note)
     return out
@@ -70,17 +91,46 @@ def report_body_lines(report: Report) -> list[str]:
     lines += ["CAUTIONS", "--------"]
     for caution in report.cautions:
         lines += wrap_text(caution, "- ")
+    if report.appendix:
+        lines += ["", "APPENDIX", "========", ""]
+        for section in report.appendix:
+            lines += _section_lines(section)
+            lines.append("")
+        lines.pop()
     return [printable_line(line) for line in lines]
 
 
-def render_text(report: Report) -> str:
+def _shop_lines(head: Letterhead) -> list[str]:
+    """The shop's letterhead, when one is set."""
+    if head.neutral:
+        return []
+    return [head.name, *head.lines, "=" * WIDTH]
+
+
+def _job_lines(report: Report) -> list[str]:
+    """The job block and the key figures."""
+    lines: list[str] = []
+    for label, value in report.job:
+        lines += wrap_text(value, f"{label}:".ljust(_LABEL), " " * _LABEL)
+    if report.key_figures:
+        cells = [
+            f"{f.label}: {f.value} {f.unit}".rstrip() + (f" ({f.note})" if f.note else "")
+            for f in report.key_figures
+        ]
+        lines += wrap_text("; ".join(cells), "Key figures: ")
+    return lines
+
+
+def render_text(report: Report, letterhead: Letterhead | None = None) -> str:
     """The whole report as text lines of at most 80 columns, ending with a newline."""
+
     head = f"GEARWORK {report.kind.upper()}"
     ref = f"ref: {report.reference}" if report.reference else ""
     if len(head) + 2 + len(ref) <= WIDTH:
         lines = [head + ref.rjust(WIDTH - len(head))] if ref else [head]
     else:
         lines = [head, ref]
+    lines = _shop_lines(letterhead or get_letterhead()) + lines + _job_lines(report)
     lines += wrap_text("Units: " + report.units)
     lines += wrap_text("Caution: " + report.short_caution)
     lines.append("")

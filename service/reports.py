@@ -20,6 +20,7 @@ from service.report_inputs import (
 )
 from service.report_model import (
     Column,
+    KeyFigure,
     Report,
     Section,
     Table,
@@ -139,8 +140,16 @@ def _by_gear_tables(doc: dict[str, Any], lab: dict[str, str]) -> list[Table]:
     return tables
 
 
+def _cruise_cell(rpm: float | None, limit: float) -> str:
+    """Cruise rpm, flagged with ``*`` above the rev limit (that gear cannot hold it)."""
+    if rpm is None:
+        return "-"
+    return f"{fmt(rpm)}*" if rpm > limit else fmt(rpm)
+
+
 def _performance(doc: dict[str, Any], lab: dict[str, str]) -> Section | None:
     perf = doc["performance"]
+    limit = float(doc["engine"]["rev_limit_rpm"])
     if perf is None:
         return None
     top = perf["top_speed"]
@@ -172,12 +181,55 @@ def _performance(doc: dict[str, Any], lab: dict[str, str]) -> Section | None:
                         *(Column(f"Gear {i + 1}", "rpm") for i in group),
                     ),
                     tuple(
-                        (fmt(c["speed"], 1), *(fmt(c["rpm"][i]) for i in group))
+                        (fmt(c["speed"], 1), *(_cruise_cell(c["rpm"][i], limit) for i in group))
                         for c in perf["cruise"]
                     ),
+                    f"* above the {fmt(limit)} rpm rev limit: that gear cannot hold the speed."
+                    if any(r is not None and r > limit for c in perf["cruise"] for r in c["rpm"])
+                    else "",
                 )
             )
     return Section("Performance of the described car", facts, tuple(tables))
+
+
+def _key_figures(doc: dict[str, Any], lab: dict[str, str]) -> tuple[KeyFigure, ...]:
+    """Shift rpm, peak power, speed at the limit in top gear and, with a car, top speed."""
+    shifts, engine = doc["shifts"], doc["engine"]
+    figures = []
+    if shifts:
+        rpms = [s["shift_rpm"] for s in shifts]
+        low, high = min(rpms), max(rpms)
+        value = fmt(low) if round(low) == round(high) else f"{fmt(low)}-{fmt(high)}"
+        figures.append(KeyFigure("Shift at", value, "rpm", f"{len(shifts)} shifts"))
+        drops = [s["rpm_drop"] for s in shifts if s["rpm_drop"] is not None]
+        if drops:
+            span = f"{fmt(min(drops))}-{fmt(max(drops))}"
+            figures.append(KeyFigure("Lands", span, "rpm lower"))
+    figures.append(
+        KeyFigure(
+            "Peak power",
+            fmt(engine["peak_power"]),
+            lab["power"],
+            f"at {fmt(engine['peak_power_rpm'])} rpm",
+        )
+    )
+    perf = doc["performance"]
+    if perf is not None:
+        top = perf["top_speed"]
+        figures.append(
+            KeyFigure("Top speed", fmt(top["speed"], 1), lab["speed"], f"in gear {top['gear']}")
+        )
+    else:
+        last = doc["gears"][-1]
+        figures.append(
+            KeyFigure(
+                "Top gear at limit",
+                fmt(last["max_speed"], 1),
+                lab["speed"],
+                f"gear {last['gear']} at {fmt(engine['rev_limit_rpm'])} rpm",
+            )
+        )
+    return tuple(figures)
 
 
 def shift_plan_report(outcome: PlanOutcome) -> Report:
@@ -206,7 +258,6 @@ def shift_plan_report(outcome: PlanOutcome) -> Report:
     sections = [
         Section("Inputs", tuple(inputs)),
         Section("Gears and shifts", tables=(_gear_table(doc, lab), _shift_table(doc, lab))),
-        Section("Tables by gear", tables=tuple(_by_gear_tables(doc, lab))),
     ]
     perf = _performance(doc, lab)
     if perf is not None:
@@ -226,4 +277,6 @@ def shift_plan_report(outcome: PlanOutcome) -> Report:
         sections=tuple(sections),
         cautions=CAUTIONS,
         chart_caption=caption,
+        key_figures=_key_figures(doc, lab),
+        appendix=(Section("Tables by gear", tables=tuple(_by_gear_tables(doc, lab))),),
     )

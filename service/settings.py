@@ -127,6 +127,52 @@ class Settings(BaseSettings):
             )
         return self
 
+    shop_name: str = Field(
+        "",
+        max_length=80,
+        pattern=r"^[\x20-\x7E]*$",
+        description="Shop name printed at the head of every sheet; empty for the "
+        "service's neutral header.",
+    )
+    shop_address: Annotated[list[str], NoDecode] = Field(
+        default_factory=list,
+        max_length=3,
+        description="Address lines of the letterhead, separated by `|` "
+        "(e.g. `12 Forge Lane|Millbrook 4410`).",
+    )
+    shop_phone: str = Field(
+        "", max_length=40, pattern=r"^[\x20-\x7E]*$", description="Letterhead phone."
+    )
+    shop_logo: str = Field(
+        "",
+        max_length=4096,
+        description="Path of a PNG or JPEG logo printed at the right of the letterhead; "
+        "read once at start.",
+    )
+    sheet_paper: str = Field(
+        "auto",
+        pattern="^(auto|a4|letter)$",
+        description="Paper of PDF sheets: `a4`, `letter`, or `auto` (US Letter for `us` "
+        "requests, A4 for metric).",
+    )
+
+    @field_validator("shop_address", mode="before")
+    @classmethod
+    def _split_address(cls, value: object) -> object:
+        if isinstance(value, str):
+            return [part.strip() for part in value.split("|") if part.strip()]
+        return value
+
+    @field_validator("shop_address")
+    @classmethod
+    def _check_address(cls, value: list[str]) -> list[str]:
+        for line in value:
+            if len(line) > 80 or not line.isprintable() or not line.isascii():
+                raise ValueError(
+                    "GEARWORK_SHOP_ADDRESS: each line printable ASCII, at most 80 characters"
+                )
+        return value
+
     @field_validator("cors_origins", mode="before")
     @classmethod
     def _split_origins(cls, value: object) -> object:

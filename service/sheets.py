@@ -45,7 +45,11 @@ def printable(lines: Iterable[str]) -> str:
 
 
 def summary_sheet(
-    head: str, reference: str | None, body: list[str], notices: Sequence[Notice]
+    head: str,
+    reference: str | None,
+    body: list[str],
+    notices: Sequence[Notice],
+    caution: str = SHORT_CAUTION,
 ) -> str:
     """A titled sheet: heading and reference, body, warnings and the caution."""
     lines = [title_line(head, reference), *body]
@@ -53,5 +57,5 @@ def summary_sheet(
         lines += ["", "Warnings:"]
         for n in notices:
             lines += wrap_text(n.message, "- ")
-    lines += ["", *wrap_text("Caution: " + SHORT_CAUTION)]
+    lines += ["", *wrap_text("Caution: " + caution)]
     return printable(lines)

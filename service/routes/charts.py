@@ -2,9 +2,10 @@
 
 from __future__ import annotations
 
-from typing import Any
+import enum
+from typing import Annotated, Any
 
-from fastapi import APIRouter, Request
+from fastapi import APIRouter, Query, Request
 from starlette.concurrency import run_in_threadpool
 from starlette.responses import Response
 
@@ -12,7 +13,7 @@ from service.chart_data import tractive_force_chart
 from service.charts import ChartFormat, render_chart
 from service.computations import compute_shift_plan
 from service.deps import JsonBody
-from service.negotiation import inline_disposition, require_media_type
+from service.negotiation import inline_disposition, negotiate
 from service.openapi import PROBLEM_RESPONSES
 from service.schemas.common import Problem
 from service.schemas.shift_plan import ShiftPlanRequest
@@ -21,11 +22,25 @@ __all__ = ["router"]
 
 router = APIRouter(prefix="/v1", tags=["charts"])
 
-OFFERED = (ChartFormat.SVG.value, ChartFormat.PNG.value)  # SVG is the default
+OFFERED = (ChartFormat.SVG.value, ChartFormat.PNG.value)  # SVG: missing Accept, */*, JSON
 _EXTENSIONS = {ChartFormat.SVG: "svg", ChartFormat.PNG: "png"}
+
+
+class ImageName(enum.StrEnum):
+    """Chart formats by name (``?format=``)."""
+
+    SVG = "svg"
+    PNG = "png"
+
+
+ImageQuery = Annotated[
+    ImageName | None,
+    Query(description="The format, overriding the Accept header: `svg` (default) or `png`."),
+]
 RESPONSES: dict[int | str, dict[str, Any]] = {
     200: {
-        "description": "The chart: SVG (default) or PNG.",
+        "description": "The chart: SVG (default, also for `Accept: application/json` or "
+        "`*/*`) or PNG.",
         "content": {
             ChartFormat.SVG.value: {"schema": {"type": "string"}},
             ChartFormat.PNG.value: {"schema": {"type": "string", "format": "binary"}},
@@ -44,12 +59,19 @@ RESPONSES: dict[int | str, dict[str, Any]] = {
     responses=RESPONSES,
 )
 async def create_tractive_force_chart(
-    body: ShiftPlanRequest, request: Request, _json: JsonBody
+    body: ShiftPlanRequest,
+    request: Request,
+    _json: JsonBody,
+    format: ImageQuery = None,  # the query parameter's public name
 ) -> Response:
     """Tractive force in every gear against road speed with the shift points marked, and
     with `vehicle` the road load and the traction limit; made to read in greyscale print.
-    The Accept header picks `image/svg+xml` (default) or `image/png`."""
-    fmt = ChartFormat(require_media_type(request.headers.get("accept"), OFFERED))
+    `?format=` or the Accept header picks `image/svg+xml` (default) or `image/png`."""
+    names = {
+        ImageName.SVG.value: ChartFormat.SVG.value,
+        ImageName.PNG.value: ChartFormat.PNG.value,
+    }
+    fmt = ChartFormat(negotiate(request.headers.get("accept"), format, names, OFFERED))
     chart = tractive_force_chart(compute_shift_plan(body))
     image = await run_in_threadpool(render_chart, chart, fmt)
     headers = {

@@ -16,6 +16,7 @@ from service.schemas.common import (
 )
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.quantities import (
     RoadSpeed,
     RoadSpeedOrZero,
@@ -132,6 +133,7 @@ class AccelerationRunRequest(UnitsRequest):
     model_config = ConfigDict(json_schema_extra={"examples": [ACCELERATION_RUN_EXAMPLE]})
 
     reference: Reference
+    job: JobField
     engine: EngineIn
     drivetrain: DrivetrainIn
     vehicle: VehicleIn

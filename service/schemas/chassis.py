@@ -14,6 +14,7 @@ from service.schemas.common import (
     UnitsRequest,
     schema_rules,
 )
+from service.schemas.job import JobField
 from service.schemas.quantities import CurvePower, CurveTorque, FixedLoss
 from service.schemas.request_examples import CHASSIS_EXAMPLE
 
@@ -128,6 +129,7 @@ class ChassisConversionRequest(UnitsRequest):
     model_config = ConfigDict(json_schema_extra=schema_rules(example=CHASSIS_EXAMPLE))
 
     reference: Reference
+    job: JobField
     curve: ChassisCurveIn
     driveline: DrivelineLossIn
 

@@ -15,6 +15,7 @@ from service.schemas.common import (
     schema_rules,
 )
 from service.schemas.inputs import CurveIn
+from service.schemas.job import JobField
 from service.schemas.quantities import (
     AltimeterSetting,
     CellTemperature,
@@ -70,6 +71,7 @@ class DynoCorrectionRequest(UnitsRequest):
     model_config = ConfigDict(json_schema_extra=schema_rules(example=DYNO_CORRECTION_EXAMPLE))
 
     reference: Reference
+    job: JobField
     ambient: AmbientIn
     standard: Standard = Field(
         "sae_j1349_2004", description="The standard whose factor is applied to `curve`."

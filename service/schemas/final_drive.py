@@ -17,6 +17,7 @@ from service.schemas.common import (
 )
 from service.schemas.gear_choice import StripTimeOut
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.quantities import RoadSpeed, Rollout
 from service.schemas.request_examples import SWEEP_EXAMPLE
 from service.schemas.vehicle import LaunchIn, VehicleIn
@@ -112,6 +113,7 @@ class FinalDriveSweepRequest(UnitsRequest):
     )
 
     reference: Reference
+    job: JobField
     engine: EngineIn
     drivetrain: DrivetrainIn = Field(
         description="The drivetrain; each candidate replaces its `final_drive_ratio`."

@@ -18,6 +18,7 @@ from service.schemas.common import (
     with_default_shift_criterion,
 )
 from service.schemas.inputs import CurveIn, DrivetrainIn, EngineIn, TireIn
+from service.schemas.job import JobField
 from service.schemas.quantities import Mass, RoadSpeed
 from service.schemas.request_examples import COMPARISON_EXAMPLE
 from service.schemas.shift_plan import TireOut
@@ -110,6 +111,7 @@ class ComparisonRequest(UnitsRequest):
     model_config = ConfigDict(json_schema_extra=schema_rules(example=COMPARISON_EXAMPLE))
 
     reference: Reference
+    job: JobField
     engine: EngineIn
     drivetrain: DrivetrainIn
     vehicle: VehicleIn | None = Field(
@@ -193,6 +195,10 @@ class ComparisonRunOut(ApiModel):
     zero_to_60_mph_less_rollout: float | None = Field(
         description="0-60 mph less the time to roll out [s]."
     )
+    zero_to_100_kmh: float | None = Field(None, description="0-100 km/h from first motion [s].")
+    zero_to_100_kmh_less_rollout: float | None = Field(
+        None, description="0-100 km/h less the time to roll out [s]."
+    )
     top_speed: TopSpeedOut
 
 
@@ -239,6 +245,7 @@ class SetupDeltaOut(ApiModel):
     quarter_mile_elapsed: float | None = Field(description="[s]")
     quarter_mile_trap_speed: float | None = Field(description="[km/h | mph]")
     zero_to_60_mph: float | None = Field(description="[s]")
+    zero_to_100_kmh: float | None = Field(None, description="[s]")
 
 
 class SetupOut(ApiModel):

@@ -15,6 +15,7 @@ from service.schemas.common import (
     schema_rules,
 )
 from service.schemas.inputs import EngineIn, TireIn
+from service.schemas.job import JobField
 from service.schemas.quantities import OdometerDistance, RoadSpeedOrZero
 from service.schemas.request_examples import GEAR_SPACING_EXAMPLE, SPEEDOMETER_EXAMPLE
 from service.schemas.shift_plan import TireOut
@@ -67,6 +68,7 @@ class GearSpacingRequest(UnitsRequest):
     model_config = ConfigDict(json_schema_extra=schema_rules(example=GEAR_SPACING_EXAMPLE))
 
     reference: Reference
+    job: JobField
     spacing: SpacingIn | None = Field(
         None, description="Space geometric and progressive sets between these ends."
     )
@@ -187,6 +189,7 @@ class SpeedometerRequest(UnitsRequest):
     model_config = ConfigDict(json_schema_extra=schema_rules(example=SPEEDOMETER_EXAMPLE))
 
     reference: Reference
+    job: JobField
     drive: Literal["transmission_output", "wheel"] = Field(
         "transmission_output",
         description="Where the speedometer takes its signal: the transmission output (tire "

@@ -15,6 +15,7 @@ from service.schemas.common import (
     schema_rules,
 )
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.quantities import LogAcceleration, LogSpeed
 from service.schemas.request_examples import LOG_ANALYSIS_EXAMPLE
 from service.schemas.vehicle import VehicleIn
@@ -124,6 +125,7 @@ class LogAnalysisRequest(UnitsRequest):
     model_config = ConfigDict(json_schema_extra=schema_rules(example=LOG_ANALYSIS_EXAMPLE))
 
     reference: Reference
+    job: JobField
     log: LogIn
     drivetrain: DrivetrainIn
     engine: EngineIn | None = Field(

@@ -17,6 +17,7 @@ from service.schemas.common import (
 )
 from service.schemas.examples import SHIFT_PLAN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.quantities import RoadSpeed
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
@@ -54,6 +55,7 @@ class ShiftPlanRequest(UnitsRequest):
     model_config = ConfigDict(json_schema_extra={"examples": [SHIFT_PLAN_EXAMPLE]})
 
     reference: Reference
+    job: JobField
     engine: EngineIn
     drivetrain: DrivetrainIn
     table: TableOptions = Field(default_factory=TableOptions)

@@ -1,0 +1,157 @@
+"""POST /v1/reports/<answer>: a printable sheet of every other advising answer.
+
+Each sheet endpoint takes the same body as its JSON endpoint, runs that endpoint's handler
+(so the sheet and the JSON agree to the digit and share every check and error), and
+prints the document it answers with through the one sheet template per format.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Awaitable, Callable
+from dataclasses import dataclass
+from typing import Any
+
+import orjson
+from fastapi import APIRouter, Request
+from starlette.responses import Response
+
+from service.deps import JsonBody
+from service.report_model import Report
+from service.routes import chassis, comparison, design, dyno, log_analysis, sweep
+from service.schemas.chassis import ChassisConversionRequest
+from service.schemas.dyno import DynoCorrectionRequest
+from service.schemas.final_drive import FinalDriveSweepRequest
+from service.schemas.gear_choice import ComparisonRequest
+from service.schemas.gear_design import GearSpacingRequest, SpeedometerRequest
+from service.schemas.log_analysis import LogAnalysisRequest
+from service.sheet_response import (
+    SHEET_RESPONSES,
+    AppendixQuery,
+    FormatQuery,
+    sheet_response,
+)
+from service.sheets_choice import (
+    comparison_report,
+    spacing_report,
+    speedometer_report,
+    sweep_report,
+)
+from service.sheets_shop import chassis_report, dyno_correction_report, log_check_report
+from service.units import UnitSystem
+
+__all__ = ["SHEETS", "router"]
+
+router = APIRouter(prefix="/v1/reports", tags=["reports"])
+
+
+@dataclass(frozen=True)
+class Sheet:
+    """One sheet endpoint: its path, the JSON handler it prints, and the sheet builder."""
+
+    path: str
+    name: str
+    title: str
+    model: type[Any]
+    answer: Callable[[Any, None], Awaitable[Response]]
+    build: Callable[[dict[str, Any], UnitSystem], Report]
+
+
+SHEETS = (
+    Sheet(
+        "comparison",
+        "comparison",
+        "setups side by side",
+        ComparisonRequest,
+        comparison.create_comparison,
+        comparison_report,
+    ),
+    Sheet(
+        "final-drive-sweep",
+        "final_drive_sweep",
+        "candidate final drives ranked",
+        FinalDriveSweepRequest,
+        sweep.create_final_drive_sweep,
+        sweep_report,
+    ),
+    Sheet(
+        "gear-spacing",
+        "gear_spacing",
+        "gear sets and where each shift lands",
+        GearSpacingRequest,
+        design.create_gear_spacing,
+        spacing_report,
+    ),
+    Sheet(
+        "speedometer-correction",
+        "speedometer_correction",
+        "speedometer and odometer after a tire or axle change",
+        SpeedometerRequest,
+        design.create_speedometer_correction,
+        speedometer_report,
+    ),
+    Sheet(
+        "log-analysis",
+        "log_check",
+        "each logged shift against its target",
+        LogAnalysisRequest,
+        log_analysis.create_log_analysis,
+        log_check_report,
+    ),
+    Sheet(
+        "dyno-correction",
+        "dyno_correction",
+        "correction factors to standard air",
+        DynoCorrectionRequest,
+        dyno.create_dyno_correction,
+        dyno_correction_report,
+    ),
+    Sheet(
+        "chassis-dyno",
+        "chassis_conversion",
+        "wheel and engine figures in every gear",
+        ChassisConversionRequest,
+        chassis.create_chassis_conversion,
+        chassis_report,
+    ),
+)
+
+
+def _endpoint(sheet: Sheet) -> Callable[..., Awaitable[Response]]:
+    async def endpoint(
+        body: Any,
+        request: Request,
+        _json: JsonBody,
+        format: FormatQuery = None,
+        appendix: AppendixQuery = False,
+    ) -> Response:
+        answer = await sheet.answer(body, None)
+        doc = orjson.loads(bytes(answer.body))
+        return await sheet_response(
+            request,
+            sheet.build(doc, body.units),
+            chart=None,
+            fmt=format,
+            appendix=appendix,
+            job=body.job,
+            units=body.units,
+            stem=sheet.path,
+        )
+
+    endpoint.__annotations__["body"] = sheet.model
+    endpoint.__name__ = f"create_{sheet.name}_report"
+    endpoint.__doc__ = (
+        f"The answer of POST /v1/{sheet.path} as a printable sheet: {sheet.title}, with the "
+        "key figures, the letterhead and the job block. `?format=` or the Accept header "
+        "picks `text/html` (default), `text/plain` or `application/pdf`."
+    )
+    return endpoint
+
+
+for _sheet in SHEETS:
+    router.post(
+        f"/{_sheet.path}",
+        operation_id=f"create_{_sheet.name}_report",
+        summary=f"Printable sheet: {_sheet.title}",
+        response_class=Response,
+        responses=SHEET_RESPONSES,
+    )(_endpoint(_sheet))
