@@ -14,7 +14,7 @@ $(STAMP): pyproject.toml constraints.txt
 	touch $(STAMP)
 
 serve: $(STAMP)  ## run the service on 127.0.0.1:8000 (GEARWORK_HOST / _PORT / _WORKERS)
-	$(BIN)/python -m service
+	$(BIN)/gearwork serve
 
 lint: $(STAMP)
 	$(BIN)/ruff check $(SRC)
@@ -44,6 +44,7 @@ bench: $(STAMP)  ## benchmarks: core timings and served throughput against /heal
 	$(BIN)/python -m bench.worst_case
 	$(BIN)/python -m bench.saturation
 	$(BIN)/python -m bench.load
+	$(BIN)/python -m bench.batch --runs $${BATCH_RUNS:-10000}
 
 load: $(STAMP)  ## 64 connections for 60 s on every endpoint, one worker then two (wrk)
 	command -v wrk >/dev/null || (apt-get update -qq && apt-get install -y -qq wrk)

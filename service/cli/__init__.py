@@ -1,0 +1,1 @@
+"""The ``gearwork`` command line: endpoints in process, batch runs, the service."""
