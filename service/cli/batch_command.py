@@ -68,8 +68,8 @@ def batch(
     """Run every line of INPUT (JSON lines: {"id": ..., "endpoint": ..., "body": {...}})
     and write one record per line, in input order: the answer or chosen columns of it, or
     the problem details. Endpoints: shift-plan, run, compare, sweep, spacing, speedometer,
-    dyno-correct, import, log-check, chassis (or the route's name, e.g.
-    acceleration-run). A summary goes to stderr at the end.
+    dyno-correct, import, log-check, chassis, coast-down, shift-window, weather (or the
+    route's name, e.g. acceleration-run). A summary goes to stderr at the end.
 
     \b
     Example:

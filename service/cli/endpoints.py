@@ -103,14 +103,37 @@ ENDPOINTS: tuple[Endpoint, ...] = (
     _family(
         "run", "/v1/acceleration-run", "acceleration-run", report="/v1/reports/acceleration-run"
     ),
-    _family("compare", "/v1/comparison", "comparison"),
-    _family("sweep", "/v1/final-drive-sweep", "final-drive-sweep"),
-    _family("spacing", "/v1/gear-spacing", "gear-spacing"),
-    _family("speedometer", "/v1/speedometer-correction", "speedometer-correction"),
-    _family("dyno-correct", "/v1/dyno-correction", "dyno-correction"),
+    _family("compare", "/v1/comparison", "comparison", report="/v1/reports/comparison"),
+    _family(
+        "sweep",
+        "/v1/final-drive-sweep",
+        "final-drive-sweep",
+        report="/v1/reports/final-drive-sweep",
+    ),
+    _family("spacing", "/v1/gear-spacing", "gear-spacing", report="/v1/reports/gear-spacing"),
+    _family(
+        "speedometer",
+        "/v1/speedometer-correction",
+        "speedometer-correction",
+        report="/v1/reports/speedometer-correction",
+    ),
+    _family(
+        "dyno-correct",
+        "/v1/dyno-correction",
+        "dyno-correction",
+        report="/v1/reports/dyno-correction",
+    ),
     _family("import", "/v1/torque-curves/import", "torque-curves-import", raw_body=True),
-    _family("log-check", "/v1/log-analysis", "log-analysis"),
-    _family("chassis", "/v1/chassis-dyno/convert", "chassis-dyno-convert"),
+    _family("log-check", "/v1/log-analysis", "log-analysis", report="/v1/reports/log-analysis"),
+    _family(
+        "chassis",
+        "/v1/chassis-dyno/convert",
+        "chassis-dyno-convert",
+        report="/v1/reports/chassis-dyno",
+    ),
+    _family("coast-down", "/v1/road-load/coast-down", "road-load-coast-down"),
+    _family("shift-window", "/v1/shift-window"),
+    _family("weather", "/v1/weather-correction", "weather-correction"),
 )
 
 

@@ -36,6 +36,9 @@ _EXAMPLES = {
     "import": "gearwork import tests/data/demo_dyno_export.csv -p units=us",
     "log-check": "gearwork log-check tests/data/demo_log_text_request_metric.json",
     "chassis": "gearwork chassis tests/data/demo_chassis_metric.json",
+    "coast-down": "gearwork coast-down tests/data/demo_coastdown_metric.json",
+    "shift-window": "gearwork shift-window tests/data/demo_shift_window_metric.json",
+    "weather": "gearwork weather tests/data/demo_weather_metric.json",
 }
 
 

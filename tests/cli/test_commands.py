@@ -37,6 +37,13 @@ FAMILIES = [
         "log-check", "/v1/log-analysis", "demo_log_text_request_metric.json", id="log-check"
     ),
     pytest.param("chassis", "/v1/chassis-dyno/convert", "demo_chassis_metric.json", id="chassis"),
+    pytest.param(
+        "coast-down", "/v1/road-load/coast-down", "demo_coastdown_metric.json", id="coast-down"
+    ),
+    pytest.param(
+        "shift-window", "/v1/shift-window", "demo_shift_window_metric.json", id="shift-window"
+    ),
+    pytest.param("weather", "/v1/weather-correction", "demo_weather_metric.json", id="weather"),
 ]
 
 
@@ -54,6 +61,19 @@ def test_every_endpoint_family_has_a_subcommand() -> None:
     names = {p.values[0] for p in FAMILIES} | {"import"}
     assert {ep.name for ep in ENDPOINTS} == names
     assert names | {"batch", "serve"} <= set(cli.commands)
+
+
+def test_every_calculation_route_and_sheet_is_reachable_from_the_command_line(
+    api: ApiClient,
+) -> None:
+    # the service's own schema lists its routes: every JSON calculation has a subcommand and
+    # every printable sheet or chart is one of a subcommand's formats
+    paths = set(api.get("/openapi.json").json()["paths"])
+    json_routes = {p for p in paths if p.startswith("/v1/") and "/reports/" not in p}
+    json_routes -= {p for p in paths if "/charts/" in p}
+    assert json_routes == {ep.path for ep in ENDPOINTS}
+    drawn = {p for p in paths if "/reports/" in p or "/charts/" in p}
+    assert drawn == {r for ep in ENDPOINTS for r in (ep.report, ep.chart) if r is not None}
 
 
 @pytest.mark.parametrize(("command", "route", "demo"), FAMILIES)
