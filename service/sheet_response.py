@@ -11,7 +11,6 @@ from collections.abc import Callable
 from typing import Annotated, Any
 
 from fastapi import Query
-from starlette.concurrency import run_in_threadpool
 from starlette.requests import Request
 from starlette.responses import Response
 
@@ -105,12 +104,12 @@ async def sheet_response(
     if media == TEXT:
         content: bytes | str = render_text(report, head)
     elif media == HTML:
-        svg = None if chart is None else await run_in_threadpool(svg_markup, chart())
+        svg = None if chart is None else svg_markup(chart())
         content = render_html(report, svg, head)
     else:
         paper = paper_for(get_settings().sheet_paper, units.value)
         drawn = None if chart is None else chart()
-        content = await run_in_threadpool(render_pdf, report, drawn, paper, head)
+        content = render_pdf(report, drawn, paper, head)
     headers = {
         "Vary": "Accept",
         "Content-Disposition": inline_disposition(stem, report.reference, _EXTENSIONS[media]),

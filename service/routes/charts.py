@@ -6,7 +6,6 @@ import enum
 from typing import Annotated, Any
 
 from fastapi import APIRouter, Query, Request
-from starlette.concurrency import run_in_threadpool
 from starlette.responses import Response
 
 from service.chart_data import tractive_force_chart
@@ -73,7 +72,7 @@ async def create_tractive_force_chart(
     }
     fmt = ChartFormat(negotiate(request.headers.get("accept"), format, names, OFFERED))
     chart = tractive_force_chart(compute_shift_plan(body))
-    image = await run_in_threadpool(render_chart, chart, fmt)
+    image = render_chart(chart, fmt)
     headers = {
         "Vary": "Accept",
         "Content-Disposition": inline_disposition(

@@ -7,7 +7,6 @@ from __future__ import annotations
 
 import numpy as np
 from fastapi import APIRouter
-from starlette.concurrency import run_in_threadpool
 from starlette.responses import Response
 
 from core.coastdown import CoastDownRun, TravelDirection, fit_coast_down
@@ -53,8 +52,7 @@ async def create_coast_down_fit(body: CoastDownRequest, _json: JsonBody) -> Resp
     ]
     c = body.conditions
     with core_fields(FIELDS):
-        fit = await run_in_threadpool(
-            fit_coast_down,
+        fit = fit_coast_down(
             runs,
             to_si(body.mass, Quantity.MASS, u),
             None

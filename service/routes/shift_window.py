@@ -6,7 +6,6 @@ POST /v1/shift-window.
 from __future__ import annotations
 
 from fastapi import APIRouter
-from starlette.concurrency import run_in_threadpool
 from starlette.responses import Response
 
 from core import drive_model
@@ -71,8 +70,7 @@ async def create_shift_window(body: ShiftWindowRequest, _json: JsonBody) -> Resp
         model = drive_model(
             curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
         )
-        result = await run_in_threadpool(
-            shift_windows,
+        result = shift_windows(
             model,
             start_speed_m_s=to_si(run.start_speed, Quantity.SPEED, u),
             rollout_m=rollout,

@@ -6,7 +6,6 @@ POST /v1/weather-correction.
 from __future__ import annotations
 
 from fastapi import APIRouter
-from starlette.concurrency import run_in_threadpool
 from starlette.responses import Response
 
 from core import Notice, air_state, drive_model
@@ -96,8 +95,7 @@ async def create_weather_correction(body: WeatherCorrectionRequest, _json: JsonB
             model = drive_model(
                 curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
             )
-            result = await run_in_threadpool(
-                predict_slip,
+            result = predict_slip(
                 model,
                 _vehicle_density(body.vehicle, u),
                 taken,
