@@ -13,6 +13,7 @@ Run with ``python -m bench.final_drive_sweep``.
 from __future__ import annotations
 
 import asyncio
+import functools
 import json
 import statistics
 import time
@@ -58,6 +59,20 @@ def _model(name: str) -> DriveModel:
     )
 
 
+def quarter_mile_sweep(model: DriveModel, ratios: NDArray[np.float64]) -> object:
+    """The final-drive sweep of ``model`` over ``ratios`` for the quarter-mile time."""
+    return sweep_final_drives(
+        model.curve,
+        model.drivetrain,
+        model.tire,
+        ratios,
+        SweepObjective.QUARTER_MILE_ET,
+        vehicle=model.vehicle,
+        launch=model.launch,
+        rev_limit_rpm=model.rev_limit_rpm,
+    )
+
+
 def _figures(model: DriveModel) -> dict[str, float]:
     plan = shift_plan(model.curve, model.drivetrain, model.tire, rev_limit_rpm=model.rev_limit_rpm)
     shifts: NDArray[np.float64] = np.array([s.shift_rpm for s in plan.shifts])
@@ -85,19 +100,7 @@ def _figures(model: DriveModel) -> dict[str, float]:
     batch = batch_of(CANDIDATES)
 
     def sweep(ratios: NDArray[np.float64]) -> Callable[[], object]:
-        def call() -> object:
-            return sweep_final_drives(
-                model.curve,
-                model.drivetrain,
-                model.tire,
-                ratios,
-                SweepObjective.QUARTER_MILE_ET,
-                vehicle=model.vehicle,
-                launch=model.launch,
-                rev_limit_rpm=model.rev_limit_rpm,
-            )
-
-        return call
+        return functools.partial(quarter_mile_sweep, model, ratios)
 
     cases = {
         "one run": (one_run, 20),

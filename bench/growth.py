@@ -26,8 +26,7 @@ from core import make_drivetrain, shift_plan, tire_from_size, torque_curve_from_
 from core.logcheck import analyse_pass
 from core.logdata import MAX_SAMPLES, SpeedUnit, pass_log
 from core.logtext import read_log_text
-from core.sweep import sweep_final_drives
-from core.sweepspec import MAX_CANDIDATE_GEARS, MAX_CANDIDATES, SweepObjective
+from core.sweepspec import MAX_CANDIDATE_GEARS, MAX_CANDIDATES
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 SWEEP_SIZES = (1, 10, 30, 100, 300, 1000)
@@ -86,7 +85,7 @@ def gear_count() -> None:
 
 
 def sweep_candidates() -> None:
-    from bench.final_drive_sweep import _model
+    from bench.final_drive_sweep import _model, quarter_mile_sweep
 
     model = _model("demo_sedan_run_metric")
     cap = min(MAX_CANDIDATES, MAX_CANDIDATE_GEARS // model.drivetrain.gear_count)
@@ -96,19 +95,7 @@ def sweep_candidates() -> None:
     for n in sizes:
         ratios = np.linspace(2.5, 4.5, n) if n > 1 else np.array([3.5])
 
-        def sweep(ratios: np.ndarray[Any, Any] = ratios) -> object:
-            return sweep_final_drives(
-                model.curve,
-                model.drivetrain,
-                model.tire,
-                ratios,
-                SweepObjective.QUARTER_MILE_ET,
-                vehicle=model.vehicle,
-                launch=model.launch,
-                rev_limit_rpm=model.rev_limit_rpm,
-            )
-
-        fns[n] = sweep
+        fns[n] = functools.partial(quarter_mile_sweep, model, ratios)
     _report("final-drive sweep (core), demo sedan, by candidates", "candidates", sizes, fns, 3, 1)
     if over:
         print(f"   {', '.join(map(str, over))} candidates: above the service's cap of {cap}")
