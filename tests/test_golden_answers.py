@@ -79,7 +79,9 @@ def _check(name: str, body: bytes) -> None:
 
 
 @pytest.mark.parametrize(("demo", "url", "name"), CASES, ids=[c[2] for c in CASES])
-def test_demo_request_gives_its_golden_answer(api: ApiClient, demo: str, url: str, name: str) -> None:
+def test_demo_request_gives_its_golden_answer(
+    api: ApiClient, demo: str, url: str, name: str
+) -> None:
     r = api.post(url, json=load_demo(demo))
     assert r.status_code == 200, r.text
     _check(name, r.content)
