@@ -29,7 +29,7 @@ test: lint  ## lint, type-check and run the whole test suite (installs Chromium 
 fuzz: $(STAMP)  ## long schemathesis run over every endpoint
 	GEARWORK_FUZZ_EXAMPLES=$${EXAMPLES:-2000} $(BIN)/python -m pytest -p no:cacheprovider \
 		tests/service/test_schema_fuzz.py tests/core/test_properties.py \
-		tests/core/test_converter_drive.py
+		tests/core/converter/test_drive.py
 
 bench: $(STAMP)  ## benchmarks: core timings and served throughput against /healthz
 	command -v wrk >/dev/null || (apt-get update -qq && apt-get install -y -qq wrk)

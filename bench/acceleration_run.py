@@ -28,14 +28,14 @@ from core import (
     run_report,
     simulate_run,
 )
-from core.batchrun import batch_runs
-from core.milestones import STANDARD_DISTANCES
-from core.runreport import QUARTER_MILE_M
-from core.simulate import DriveModel
-from service.builders import build_curve, build_drivetrain, build_tire
-from service.computations import SEARCH_BUDGET
+from core.runs.batch import batch_runs
+from core.runs.milestones import STANDARD_DISTANCES
+from core.runs.report import QUARTER_MILE_M
+from core.runs.simulate import DriveModel
+from service.mapping.calculations import SEARCH_BUDGET
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire
+from service.mapping.vehicle import build_launch, build_vehicle
 from service.schemas.acceleration import AccelerationRunRequest
-from service.vehicle_builders import build_launch, build_vehicle
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 ROUNDS = 9

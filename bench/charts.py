@@ -38,18 +38,18 @@ def main() -> None:
     mpl = "matplotlib.figure, matplotlib.backends.backend_agg, matplotlib.backends.backend_pdf"
     print(f"import matplotlib (figure, Agg, PDF), fresh process: {_import_cost(mpl):.3f} s")
     print(
-        f"import service.charts and what it needs, fresh process: "
-        f"{_import_cost('service.charts'):.3f} s"
+        f"import service.output.png_chart and what it needs, fresh process: "
+        f"{_import_cost('service.output.png_chart'):.3f} s"
     )
 
-    from service.chart_data import run_chart, tractive_force_chart
-    from service.charts import ChartFormat, render_chart, svg_markup
-    from service.computations import compute_acceleration_run, compute_shift_plan
-    from service.report_html import render_html
-    from service.report_pdf import render_pdf
-    from service.report_run import acceleration_run_report
-    from service.report_text import render_text
-    from service.reports import shift_plan_report
+    from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
+    from service.output.chart_data import run_chart, tractive_force_chart
+    from service.output.html import render_html
+    from service.output.pdf import render_pdf
+    from service.output.png_chart import ChartFormat, render_chart, svg_markup
+    from service.output.run_report import acceleration_run_report
+    from service.output.shift_plan_report import shift_plan_report
+    from service.output.text import render_text
     from service.schemas.acceleration import AccelerationRunRequest
     from service.schemas.shift_plan import ShiftPlanRequest
 
@@ -77,8 +77,8 @@ def main() -> None:
         timing = time_call(functools.partial(render_chart, speed, fmt), runs=RUNS, warmup=3)
         print(f"   {fmt.name:<14}", timing)
 
-    from service.responses import FastJSONResponse
-    from service.summary import shift_plan_summary
+    from service.http.responses import FastJSONResponse
+    from service.output.summary import shift_plan_summary
 
     numbers = itertools.count()
 

@@ -26,17 +26,17 @@ from numpy.typing import NDArray
 
 from bench.inprocess import interleaved_ms
 from core import shift_plan, simulate_run, top_speed
-from core.batchdrive import batch_top_speed
-from core.batchrun import batch_runs
-from core.milestones import FOOT_M
-from core.runreport import QUARTER_MILE_M, run_report
-from core.simulate import DriveModel, drive_model
-from core.sweep import sweep_final_drives
-from core.sweepspec import SWEEP_DISTANCES, SWEEP_SPEEDS, SweepObjective
+from core.choice.batch_drive import batch_top_speed
+from core.choice.sweep import sweep_final_drives
+from core.choice.sweep_spec import SWEEP_DISTANCES, SWEEP_SPEEDS, SweepObjective
+from core.runs.batch import batch_runs
+from core.runs.milestones import FOOT_M
+from core.runs.report import QUARTER_MILE_M, run_report
+from core.runs.simulate import DriveModel, drive_model
 from service.app import app
-from service.builders import build_curve, build_drivetrain, build_tire
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire
+from service.mapping.vehicle import build_launch, build_vehicle
 from service.schemas.acceleration import AccelerationRunRequest
-from service.vehicle_builders import build_launch, build_vehicle
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 CANDIDATES = np.linspace(2.5, 4.5, 100)

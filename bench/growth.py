@@ -23,10 +23,10 @@ import numpy as np
 
 from bench.common import side_by_side
 from core import make_drivetrain, shift_plan, tire_from_size, torque_curve_from_torque
-from core.logcheck import analyse_pass
-from core.logdata import MAX_SAMPLES, SpeedUnit, pass_log
-from core.logtext import read_log_text
-from core.sweepspec import MAX_CANDIDATE_GEARS, MAX_CANDIDATES
+from core.choice.sweep_spec import MAX_CANDIDATE_GEARS, MAX_CANDIDATES
+from core.logs.check import analyse_pass
+from core.logs.pass_data import MAX_SAMPLES, SpeedUnit, pass_log
+from core.logs.text import read_log_text
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 SWEEP_SIZES = (1, 10, 30, 100, 300, 1000)

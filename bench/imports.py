@@ -18,8 +18,8 @@ from collections.abc import Callable
 
 import numpy as np
 
-from core.dynofile import read_dyno_text
-from core.logtext import read_log_text
+from core.dyno.file import read_dyno_text
+from core.logs.text import read_log_text
 
 ROWS = 16_667  # x 6 columns = 100 002 cells, inside both readers' line limits
 TARGET_S = 0.100

@@ -18,10 +18,10 @@ import numpy as np
 
 from bench.common import time_call
 from core import make_drivetrain, tire_from_diameter
-from core.chassis import MeasuredAt, chassis_conversion
-from core.logcheck import analyse_pass
-from core.logdata import SpeedUnit, pass_log
-from core.logtext import read_log_text
+from core.driveline.chassis import MeasuredAt, chassis_conversion
+from core.logs.check import analyse_pass
+from core.logs.pass_data import SpeedUnit, pass_log
+from core.logs.text import read_log_text
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 

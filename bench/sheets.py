@@ -89,12 +89,12 @@ def main() -> None:
 
     logging.getLogger("matplotlib.font_manager").setLevel(logging.ERROR)
 
-    from service.chart_data import run_chart, tractive_force_chart
-    from service.charts import chart_figure, drawing
-    from service.computations import compute_acceleration_run, compute_shift_plan
-    from service.report_pdf import render_pdf
-    from service.report_run import acceleration_run_report
-    from service.reports import shift_plan_report
+    from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
+    from service.output.chart_data import run_chart, tractive_force_chart
+    from service.output.pdf import render_pdf
+    from service.output.png_chart import chart_figure, drawing
+    from service.output.run_report import acceleration_run_report
+    from service.output.shift_plan_report import shift_plan_report
     from service.schemas.acceleration import AccelerationRunRequest
     from service.schemas.shift_plan import ShiftPlanRequest
 

@@ -52,7 +52,7 @@ def main() -> None:
     response = asyncio.run(create_shift_plan(request, None))
     doc = orjson.loads(response.body)
 
-    from service.present import shift_plan_document
+    from service.mapping.shift_plan import shift_plan_document
 
     raw = shift_plan_document(
         shift_plan(curve, drivetrain, tire), curve, drivetrain, tire, request.units, {}
@@ -79,7 +79,7 @@ def main() -> None:
 
     from scipy.interpolate import PchipInterpolator
 
-    from core.curves import pchip_coefficients
+    from core.engine.curves import pchip_coefficients
 
     x, y = curve.rpm, curve.torque_nm
     print("PCHIP coefficients for the 100-point curve")

@@ -4,17 +4,65 @@ No web framework, no I/O, no module state. Functions take floats, NumPy arrays o
 dataclasses and return frozen dataclasses.
 """
 
-from core.altimeter import (
+from core.air.altimeter import (
     station_pressure_from_altimeter_pa,
 )
-from core.atmosphere import (
+from core.air.atmosphere import (
     AirState,
     air_density_kg_m3,
     air_state,
     saturation_vapour_pressure_pa,
     standard_pressure_pa,
 )
-from core.batchdrive import (
+from core.air.weather import (
+    SlipPrediction,
+    Weather,
+    WeatherAir,
+    density_altitude_m,
+    predict_slip,
+    weather_air,
+)
+from core.car.coast_down import (
+    CoastDownFit,
+    CoastDownRun,
+    CoastDownRunFit,
+    ReferenceCorrection,
+    TravelDirection,
+    coast_down_speed,
+    fit_coast_down,
+)
+from core.car.gradeability import (
+    MAX_GRADE_ANGLE_DEG,
+    Gradeability,
+    GradeLimit,
+    gradeability,
+    steepest_grade_rad,
+)
+from core.car.inertia import (
+    equivalent_mass_kg,
+    mass_factor,
+    rotating_mass_kg,
+)
+from core.car.road_load import (
+    RoadLoad,
+    RoadLoadForm,
+    gradeability_percent,
+)
+from core.car.traction import (
+    AxleGeometry,
+    AxleLoads,
+    DriveLayout,
+    axle_loads,
+    grip_limit_n,
+    traction_limit_n,
+)
+from core.car.vehicle import (
+    Coupling,
+    Launch,
+    RotatingInertia,
+    Vehicle,
+)
+from core.choice.batch_drive import (
     BatchTopSpeed,
     batch_acceleration,
     batch_drive,
@@ -24,20 +72,45 @@ from core.batchdrive import (
     overall_ratios,
     take_rows,
 )
-from core.batchrun import (
-    BatchRuns,
-    batch_runs,
+from core.choice.setups import (
+    Setup,
+    SetupFigures,
+    setup_figures,
 )
-from core.batchtiming import (
-    BatchTimedDistance,
-    BatchTimedSpeed,
-    TraceProbes,
-    probe_distances,
-    probe_speeds,
-    timed_distances,
-    timed_speeds,
+from core.choice.sweep import (
+    FinalDriveSweep,
+    sweep_final_drives,
 )
-from core.chassis import (
+from core.choice.sweep_optimum import (
+    SweepOptimum,
+    continuous_optimum,
+    objective_at,
+    top_gear_rpm,
+)
+from core.choice.sweep_spec import (
+    CruiseTarget,
+    Rejection,
+    SweepConstraints,
+    SweepObjective,
+    checked_sweep,
+    checked_sweep_shift_rpm,
+    final_drive_range,
+)
+from core.converter.drive import (
+    ConverterDrive,
+    ConverterInput,
+    converter_input,
+)
+from core.converter.matching import (
+    ConverterOperatingPoints,
+    EngineTorqueFn,
+    converter_operating_points,
+    stall_speed_rpm,
+)
+from core.converter.tables import (
+    TorqueConverter,
+)
+from core.driveline.chassis import (
     ChassisConversion,
     MeasuredAt,
     chassis_conversion,
@@ -45,30 +118,56 @@ from core.chassis import (
     engine_from_wheel,
     wheel_from_engine,
 )
-from core.coastdown import (
-    CoastDownFit,
-    CoastDownRun,
-    CoastDownRunFit,
-    ReferenceCorrection,
-    TravelDirection,
-    coast_down_speed,
-    fit_coast_down,
+from core.driveline.drivetrain import (
+    Drivetrain,
+    make_drivetrain,
 )
-from core.converter import (
-    TorqueConverter,
+from core.driveline.gearing import (
+    GearTable,
+    engine_rpm_at_speed,
+    gear_tables,
+    road_speed_m_s,
+    rpm_grid,
 )
-from core.converter_drive import (
-    ConverterDrive,
-    ConverterInput,
-    converter_input,
+from core.driveline.landing import (
+    LandingAnalysis,
+    LandingBand,
+    landing_analysis,
 )
-from core.converter_matching import (
-    ConverterOperatingPoints,
-    EngineTorqueFn,
-    converter_operating_points,
-    stall_speed_rpm,
+from core.driveline.spacing import (
+    GearSet,
+    ShiftLandings,
+    Spacing,
+    geometric_gear_set,
+    max_progression_factor,
+    progressive_gear_set,
+    shift_landings,
 )
-from core.correction import (
+from core.driveline.speedometer import (
+    DistanceReadings,
+    DrivenGearChange,
+    SpeedometerCorrection,
+    SpeedometerDrive,
+    SpeedometerSetup,
+    SpeedReadings,
+    driven_gear_change,
+    odometer_readings,
+    speed_readings,
+    speedometer_correction,
+    speedometer_setup,
+)
+from core.driveline.tires import (
+    Tire,
+    tire_from_diameter,
+    tire_from_revs_per_km,
+    tire_from_revs_per_mile,
+    tire_from_size,
+)
+from core.dyno.file import (
+    DynoRun,
+    read_dyno_text,
+)
+from core.engine.correction import (
     Correction,
     CorrectionStandard,
     PressureBasis,
@@ -78,21 +177,13 @@ from core.correction import (
     correction_factors,
     reference_conditions,
 )
-from core.curves import (
+from core.engine.curves import (
     CurveSource,
     Interpolation,
     TorqueCurve,
     pchip_coefficients,
     torque_curve_from_power,
     torque_curve_from_torque,
-)
-from core.drivetrain import (
-    Drivetrain,
-    make_drivetrain,
-)
-from core.dynofile import (
-    DynoRun,
-    read_dyno_text,
 )
 from core.errors import (
     CorrectionError,
@@ -105,37 +196,13 @@ from core.errors import (
     TireSizeError,
     VehicleError,
 )
-from core.gearing import (
-    GearTable,
-    engine_rpm_at_speed,
-    gear_tables,
-    road_speed_m_s,
-    rpm_grid,
-)
-from core.gradeability import (
-    MAX_GRADE_ANGLE_DEG,
-    Gradeability,
-    GradeLimit,
-    gradeability,
-    steepest_grade_rad,
-)
-from core.inertia import (
-    equivalent_mass_kg,
-    mass_factor,
-    rotating_mass_kg,
-)
-from core.landing import (
-    LandingAnalysis,
-    LandingBand,
-    landing_analysis,
-)
-from core.logcheck import (
+from core.logs.check import (
     GearSegment,
     GearSource,
     PassAnalysis,
     analyse_pass,
 )
-from core.logcrossover import (
+from core.logs.crossover import (
     CrossoverFit,
     ShiftVerdict,
     VerdictBasis,
@@ -143,7 +210,7 @@ from core.logcrossover import (
     crossover,
     verdict,
 )
-from core.logdata import (
+from core.logs.pass_data import (
     AccelerationUnit,
     LogDataError,
     PassLog,
@@ -153,16 +220,29 @@ from core.logdata import (
     pass_log,
     uniform_samples,
 )
-from core.logshift import (
+from core.logs.shift import (
     LoggedShift,
     ShiftSignals,
     measure_shift,
 )
-from core.logtext import (
+from core.logs.text import (
     LogText,
     read_log_text,
 )
-from core.milestones import (
+from core.runs.batch import (
+    BatchRuns,
+    batch_runs,
+)
+from core.runs.batch_timing import (
+    BatchTimedDistance,
+    BatchTimedSpeed,
+    TraceProbes,
+    probe_distances,
+    probe_speeds,
+    timed_distances,
+    timed_speeds,
+)
+from core.runs.milestones import (
     TimedDistance,
     TimedSpeed,
     speed_at_distance,
@@ -171,7 +251,7 @@ from core.milestones import (
     timed_distance,
     timed_speed,
 )
-from core.performance import (
+from core.runs.performance import (
     OptimalShifts,
     ShiftCriterion,
     TopSpeed,
@@ -185,121 +265,41 @@ from core.performance import (
     planned_shift_rpm,
     top_speed,
 )
-from core.plan import (
-    Notice,
-    ShiftPlan,
-    ShiftPoint,
-    resolve_rev_limit,
-    shift_plan,
-)
-from core.roadload import (
-    RoadLoad,
-    RoadLoadForm,
-    gradeability_percent,
-)
-from core.runreport import (
+from core.runs.report import (
     RunReport,
     SampledTrace,
     run_report,
     sample_trace,
 )
-from core.setups import (
-    Setup,
-    SetupFigures,
-    setup_figures,
-)
-from core.shifting import (
-    ScalarDiff,
-    ShiftChoice,
-    ShiftReason,
-    VectorEfforts,
-    best_shifts,
-)
-from core.shiftsearch import (
-    SEARCH_WON,
-    search_shift_rpm,
-)
-from core.shiftwindow import (
-    ShiftWindow,
-    ShiftWindows,
-    shift_windows,
-)
-from core.simulate import (
+from core.runs.simulate import (
     DriveModel,
     RunResult,
     RunShift,
     drive_model,
     simulate_run,
 )
-from core.spacing import (
-    GearSet,
-    ShiftLandings,
-    Spacing,
-    geometric_gear_set,
-    max_progression_factor,
-    progressive_gear_set,
-    shift_landings,
+from core.shifts.best import (
+    ScalarDiff,
+    ShiftChoice,
+    ShiftReason,
+    VectorEfforts,
+    best_shifts,
 )
-from core.speedometer import (
-    DistanceReadings,
-    DrivenGearChange,
-    SpeedometerCorrection,
-    SpeedometerDrive,
-    SpeedometerSetup,
-    SpeedReadings,
-    driven_gear_change,
-    odometer_readings,
-    speed_readings,
-    speedometer_correction,
-    speedometer_setup,
+from core.shifts.plan import (
+    Notice,
+    ShiftPlan,
+    ShiftPoint,
+    resolve_rev_limit,
+    shift_plan,
 )
-from core.sweep import (
-    FinalDriveSweep,
-    sweep_final_drives,
+from core.shifts.search import (
+    SEARCH_WON,
+    search_shift_rpm,
 )
-from core.sweepopt import (
-    SweepOptimum,
-    continuous_optimum,
-    objective_at,
-    top_gear_rpm,
-)
-from core.sweepspec import (
-    CruiseTarget,
-    Rejection,
-    SweepConstraints,
-    SweepObjective,
-    checked_sweep,
-    checked_sweep_shift_rpm,
-    final_drive_range,
-)
-from core.tires import (
-    Tire,
-    tire_from_diameter,
-    tire_from_revs_per_km,
-    tire_from_revs_per_mile,
-    tire_from_size,
-)
-from core.traction import (
-    AxleGeometry,
-    AxleLoads,
-    DriveLayout,
-    axle_loads,
-    grip_limit_n,
-    traction_limit_n,
-)
-from core.vehicle import (
-    Coupling,
-    Launch,
-    RotatingInertia,
-    Vehicle,
-)
-from core.weather import (
-    SlipPrediction,
-    Weather,
-    WeatherAir,
-    density_altitude_m,
-    predict_slip,
-    weather_air,
+from core.shifts.window import (
+    ShiftWindow,
+    ShiftWindows,
+    shift_windows,
 )
 
 __all__ = [

@@ -1,5 +1,5 @@
 """``python -m service``: run uvicorn (host, port, workers by flag or GEARWORK_* env), with
-the header limits of service.protocol and a graceful shutdown bounded by
+the header limits of service.http.protocol and a graceful shutdown bounded by
 ``GEARWORK_SHUTDOWN_TIMEOUT_S``."""
 
 from __future__ import annotations
@@ -8,7 +8,7 @@ import argparse
 
 import uvicorn
 
-from service.protocol import LimitedHttpProtocol
+from service.http.protocol import LimitedHttpProtocol
 from service.settings import get_settings
 
 

@@ -10,14 +10,14 @@ from collections.abc import AsyncIterator
 from fastapi import FastAPI
 from starlette.middleware.gzip import GZipMiddleware
 
-from service.admission import Admission, AdmissionGate, CalculationSlots
-from service.cache import ResultCache
-from service.docs import install_docs
-from service.headers import ProblemCORS, ResponseHeaders
-from service.limits import BodySizeLimit
-from service.observability import Metrics, RequestObservability, configure_logging
-from service.openapi import build_openapi
-from service.problems import install_problem_handlers
+from service.http.admission import Admission, AdmissionGate, CalculationSlots
+from service.http.cache import ResultCache
+from service.http.docs import install_docs
+from service.http.headers import ProblemCORS, ResponseHeaders
+from service.http.limits import BodySizeLimit
+from service.http.observability import Metrics, RequestObservability, configure_logging
+from service.http.openapi import build_openapi
+from service.http.problems import install_problem_handlers
 from service.routes import (
     acceleration,
     charts,
@@ -25,15 +25,15 @@ from service.routes import (
     coastdown,
     comparison,
     demo,
-    design,
     dyno,
+    final_drive,
+    gear_design,
     health,
     log_analysis,
     reports,
     sheets,
     shift_plan,
     shift_window,
-    sweep,
     weather,
 )
 from service.settings import get_settings
@@ -127,7 +127,16 @@ def create_app() -> FastAPI:
     app.include_router(shift_plan.router)
     app.include_router(acceleration.router)
     app.include_router(dyno.router)
-    for module in (comparison, sweep, design, reports, sheets, charts, log_analysis, chassis):
+    for module in (
+        comparison,
+        final_drive,
+        gear_design,
+        reports,
+        sheets,
+        charts,
+        log_analysis,
+        chassis,
+    ):
         app.include_router(module.router)
     for module in (coastdown, shift_window, weather):
         app.include_router(module.router)

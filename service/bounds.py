@@ -26,7 +26,7 @@ from pydantic import BaseModel, GetJsonSchemaHandler
 from pydantic.json_schema import JsonSchemaValue
 from pydantic_core import CoreSchema
 
-from service.problems import ProblemError
+from service.http.problems import ProblemError
 from service.units import (
     NAMED_UNITS,
     Quantity,

@@ -17,7 +17,7 @@ from typing import Any, Literal
 import orjson
 
 from service.cli.endpoints import Endpoint, call_endpoint, endpoint_named
-from service.problems import problem_response
+from service.http.problems import problem_response
 
 __all__ = [
     "OutputSpec",

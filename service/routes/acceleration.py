@@ -5,11 +5,11 @@ from __future__ import annotations
 from fastapi import APIRouter
 from starlette.responses import Response
 
-from service.computations import compute_acceleration_run
-from service.deps import JsonBody
-from service.openapi import PROBLEM_RESPONSES
-from service.present_run import run_summary
-from service.responses import FastJSONResponse
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.responses import FastJSONResponse
+from service.mapping.acceleration import run_summary
+from service.mapping.calculations import compute_acceleration_run
 from service.schemas.acceleration import AccelerationRunRequest, AccelerationRunResponse
 
 __all__ = ["router"]

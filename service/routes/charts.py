@@ -8,12 +8,12 @@ from typing import Annotated, Any
 from fastapi import APIRouter, Query, Request
 from starlette.responses import Response
 
-from service.chart_data import tractive_force_chart
-from service.charts import ChartFormat, render_chart
-from service.computations import compute_shift_plan
-from service.deps import JsonBody
-from service.negotiation import inline_disposition, negotiate
-from service.openapi import PROBLEM_RESPONSES
+from service.http.deps import JsonBody
+from service.http.negotiation import inline_disposition, negotiate
+from service.http.openapi import PROBLEM_RESPONSES
+from service.mapping.calculations import compute_shift_plan
+from service.output.chart_data import tractive_force_chart
+from service.output.png_chart import ChartFormat, render_chart
 from service.schemas.common import Problem
 from service.schemas.shift_plan import ShiftPlanRequest
 

@@ -9,12 +9,12 @@ import numpy as np
 from fastapi import APIRouter
 from starlette.responses import Response
 
-from core.chassis import MeasuredAt, chassis_conversion, efficiency_from_loss
-from service.builders import core_fields
-from service.deps import JsonBody
-from service.openapi import PROBLEM_RESPONSES
-from service.present_chassis import chassis_document, chassis_summary
-from service.responses import FastJSONResponse
+from core.driveline.chassis import MeasuredAt, chassis_conversion, efficiency_from_loss
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.responses import FastJSONResponse
+from service.mapping.chassis import chassis_document, chassis_summary
+from service.mapping.inputs import core_fields
 from service.schemas.chassis import ChassisConversionRequest, ChassisConversionResponse
 from service.units import Quantity, to_si
 

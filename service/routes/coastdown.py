@@ -9,12 +9,12 @@ import numpy as np
 from fastapi import APIRouter
 from starlette.responses import Response
 
-from core.coastdown import CoastDownRun, TravelDirection, fit_coast_down
-from service.builders import core_fields
-from service.deps import JsonBody
-from service.openapi import PROBLEM_RESPONSES
-from service.present_coastdown import coast_down_document, coast_down_summary
-from service.responses import FastJSONResponse
+from core.car.coast_down import CoastDownRun, TravelDirection, fit_coast_down
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.responses import FastJSONResponse
+from service.mapping.coastdown import coast_down_document, coast_down_summary
+from service.mapping.inputs import core_fields
 from service.schemas.coastdown import CoastDownRequest, CoastDownResponse
 from service.units import Quantity, to_si
 

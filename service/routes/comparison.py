@@ -5,15 +5,15 @@ from __future__ import annotations
 from fastapi import APIRouter
 from starlette.responses import Response
 
-from core.performance import ShiftCriterion
-from core.setups import setup_figures
-from service.builders import core_fields
-from service.choice_builders import COMPARISON_FIELDS, build_setups, renamed_fields
-from service.deps import JsonBody
-from service.openapi import PROBLEM_RESPONSES
-from service.present_choice import comparison_document, comparison_summary
-from service.responses import FastJSONResponse
-from service.schemas.gear_choice import ComparisonRequest, ComparisonResponse
+from core.choice.setups import setup_figures
+from core.runs.performance import ShiftCriterion
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.responses import FastJSONResponse
+from service.mapping.comparison import comparison_document, comparison_summary
+from service.mapping.inputs import core_fields
+from service.mapping.setups import COMPARISON_FIELDS, build_setups, renamed_fields
+from service.schemas.comparison import ComparisonRequest, ComparisonResponse
 from service.units import Quantity, to_si
 
 __all__ = ["router"]

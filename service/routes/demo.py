@@ -16,7 +16,7 @@ from pathlib import Path
 from fastapi import APIRouter, Request
 from starlette.responses import Response
 
-from service.problems import ProblemError
+from service.http.problems import ProblemError
 
 __all__ = ["router"]
 

@@ -14,10 +14,12 @@ from core import (
     correction_factors,
     read_dyno_text,
 )
-from core.dynoroad import MAX_OVERALL_RATIO
-from service.builders import ENGINE_FIELDS, build_curve, core_fields
-from service.deps import JsonBody
-from service.dyno_import import (
+from core.dyno.road import MAX_OVERALL_RATIO
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.problems import ProblemError
+from service.http.responses import FastJSONResponse
+from service.mapping.dyno import (
     GEAR_FIELDS,
     decoded_text,
     dyno_problem,
@@ -25,10 +27,8 @@ from service.dyno_import import (
     road_speed_gear,
     uploaded_file,
 )
-from service.openapi import PROBLEM_RESPONSES
-from service.present import notices_out, rounded
-from service.problems import ProblemError
-from service.responses import FastJSONResponse
+from service.mapping.inputs import ENGINE_FIELDS, build_curve, core_fields
+from service.mapping.shift_plan import notices_out, rounded
 from service.schemas.dyno import (
     DynoCorrectionRequest,
     DynoCorrectionResponse,

@@ -16,11 +16,11 @@ from starlette.responses import Response
 
 from core import Interpolation, make_drivetrain, shift_plan, tire_from_diameter
 from core import torque_curve_from_torque as curve_from_torque
-from service.admission import Admission
-from service.negotiation import choose_media_type
-from service.observability import METRICS_CONTENT_TYPE, OPENMETRICS_TYPE, Metrics
-from service.problems import ProblemError, problem_response
-from service.responses import FastJSONResponse
+from service.http.admission import Admission
+from service.http.negotiation import choose_media_type
+from service.http.observability import METRICS_CONTENT_TYPE, OPENMETRICS_TYPE, Metrics
+from service.http.problems import ProblemError, problem_response
+from service.http.responses import FastJSONResponse
 from service.schemas.common import ApiModel, Problem
 from service.settings import get_settings
 

@@ -5,13 +5,13 @@ from __future__ import annotations
 from fastapi import APIRouter
 from starlette.responses import Response
 
-from core.logcheck import analyse_pass
-from service.builders import build_drivetrain, build_tire, core_fields
-from service.deps import JsonBody
-from service.log_builders import LOG_FIELDS, build_pass_log, model_shifts
-from service.openapi import PROBLEM_RESPONSES
-from service.present_log import log_analysis_document, log_summary
-from service.responses import FastJSONResponse
+from core.logs.check import analyse_pass
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.responses import FastJSONResponse
+from service.mapping.inputs import build_drivetrain, build_tire, core_fields
+from service.mapping.log_analysis import log_analysis_document, log_summary
+from service.mapping.log_analysis_inputs import LOG_FIELDS, build_pass_log, model_shifts
 from service.schemas.log_analysis import LogAnalysisRequest, LogAnalysisResponse
 
 __all__ = ["router"]

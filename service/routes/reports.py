@@ -5,20 +5,20 @@ from __future__ import annotations
 from fastapi import APIRouter, Request
 from starlette.responses import Response
 
-from service.chart_data import run_chart, tractive_force_chart
-from service.computations import compute_acceleration_run, compute_shift_plan
-from service.deps import JsonBody
-from service.report_run import acceleration_run_report
-from service.reports import shift_plan_report
-from service.schemas.acceleration import AccelerationRunRequest
-from service.schemas.shift_plan import ShiftPlanRequest
-from service.sheet_response import (
+from service.http.deps import JsonBody
+from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
+from service.output.chart_data import run_chart, tractive_force_chart
+from service.output.run_report import acceleration_run_report
+from service.output.sheet_response import (
     OFFERED,
     SHEET_RESPONSES,
     AppendixQuery,
     FormatQuery,
     sheet_response,
 )
+from service.output.shift_plan_report import shift_plan_report
+from service.schemas.acceleration import AccelerationRunRequest
+from service.schemas.shift_plan import ShiftPlanRequest
 
 __all__ = ["OFFERED", "router"]
 

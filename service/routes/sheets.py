@@ -15,28 +15,28 @@ import orjson
 from fastapi import APIRouter, Request
 from starlette.responses import Response
 
-from service.deps import JsonBody
-from service.report_model import Report
-from service.routes import chassis, comparison, design, dyno, log_analysis, sweep
-from service.schemas.chassis import ChassisConversionRequest
-from service.schemas.dyno import DynoCorrectionRequest
-from service.schemas.final_drive import FinalDriveSweepRequest
-from service.schemas.gear_choice import ComparisonRequest
-from service.schemas.gear_design import GearSpacingRequest, SpeedometerRequest
-from service.schemas.log_analysis import LogAnalysisRequest
-from service.sheet_response import (
+from service.http.deps import JsonBody
+from service.output.model import Report
+from service.output.sheet_response import (
     SHEET_RESPONSES,
     AppendixQuery,
     FormatQuery,
     sheet_response,
 )
-from service.sheets_choice import (
+from service.output.sheets_choice import (
     comparison_report,
     spacing_report,
     speedometer_report,
     sweep_report,
 )
-from service.sheets_shop import chassis_report, dyno_correction_report, log_check_report
+from service.output.sheets_shop import chassis_report, dyno_correction_report, log_check_report
+from service.routes import chassis, comparison, dyno, final_drive, gear_design, log_analysis
+from service.schemas.chassis import ChassisConversionRequest
+from service.schemas.comparison import ComparisonRequest
+from service.schemas.dyno import DynoCorrectionRequest
+from service.schemas.final_drive import FinalDriveSweepRequest
+from service.schemas.gear_design import GearSpacingRequest, SpeedometerRequest
+from service.schemas.log_analysis import LogAnalysisRequest
 from service.units import UnitSystem
 
 __all__ = ["SHEETS", "router"]
@@ -70,7 +70,7 @@ SHEETS = (
         "final_drive_sweep",
         "candidate final drives ranked",
         FinalDriveSweepRequest,
-        sweep.create_final_drive_sweep,
+        final_drive.create_final_drive_sweep,
         sweep_report,
     ),
     Sheet(
@@ -78,7 +78,7 @@ SHEETS = (
         "gear_spacing",
         "gear sets and where each shift lands",
         GearSpacingRequest,
-        design.create_gear_spacing,
+        gear_design.create_gear_spacing,
         spacing_report,
     ),
     Sheet(
@@ -86,7 +86,7 @@ SHEETS = (
         "speedometer_correction",
         "speedometer and odometer after a tire or axle change",
         SpeedometerRequest,
-        design.create_speedometer_correction,
+        gear_design.create_speedometer_correction,
         speedometer_report,
     ),
     Sheet(

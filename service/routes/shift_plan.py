@@ -5,12 +5,12 @@ from __future__ import annotations
 from fastapi import APIRouter
 from starlette.responses import Response
 
-from service.computations import compute_shift_plan
-from service.deps import JsonBody
-from service.openapi import PROBLEM_RESPONSES
-from service.responses import FastJSONResponse
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.responses import FastJSONResponse
+from service.mapping.calculations import compute_shift_plan
+from service.output.summary import shift_plan_summary
 from service.schemas.shift_plan import ShiftPlanRequest, ShiftPlanResponse
-from service.summary import shift_plan_summary
 
 __all__ = ["router"]
 

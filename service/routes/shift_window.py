@@ -9,17 +9,17 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from core import drive_model
-from core.runreport import QUARTER_MILE_M
-from core.shiftwindow import shift_windows
-from service.builders import build_curve, build_drivetrain, build_tire, core_fields
-from service.computations import RUN_FIELDS, SEARCH_BUDGET
-from service.deps import JsonBody
-from service.openapi import PROBLEM_RESPONSES
-from service.present_shift_window import shift_window_document, shift_window_summary
-from service.responses import FastJSONResponse
+from core.runs.report import QUARTER_MILE_M
+from core.shifts.window import shift_windows
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.responses import FastJSONResponse
+from service.mapping.calculations import RUN_FIELDS, SEARCH_BUDGET
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
+from service.mapping.shift_window import shift_window_document, shift_window_summary
+from service.mapping.vehicle import build_launch, build_vehicle
 from service.schemas.shift_window import ShiftWindowRequest, ShiftWindowResponse
 from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
-from service.vehicle_builders import build_launch, build_vehicle
 
 __all__ = ["router"]
 

@@ -9,23 +9,24 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from core import Notice, air_state, drive_model
-from core.correction import CorrectionStandard
-from core.runreport import QUARTER_MILE_M
-from core.weather import Weather, predict_slip, weather_air
-from service.builders import build_curve, build_drivetrain, build_tire, core_fields
-from service.cautions import CAUTIONS
-from service.computations import RUN_FIELDS
-from service.deps import JsonBody
-from service.openapi import PROBLEM_RESPONSES
-from service.present import notices_out
-from service.present_weather import (
+from core.air.weather import Weather, predict_slip, weather_air
+from core.engine.correction import CorrectionStandard
+from core.runs.report import QUARTER_MILE_M
+from service.http.deps import JsonBody
+from service.http.openapi import PROBLEM_RESPONSES
+from service.http.responses import FastJSONResponse
+from service.mapping.calculations import RUN_FIELDS
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
+from service.mapping.shift_plan import notices_out
+from service.mapping.vehicle import build_launch, build_vehicle
+from service.mapping.weather import (
     WEATHER_LIMITS,
     WEATHER_METHOD,
     air_document,
     slip_document,
     weather_summary,
 )
-from service.responses import FastJSONResponse
+from service.output.cautions import CAUTIONS
 from service.schemas.vehicle import VehicleIn
 from service.schemas.weather import (
     StripWeatherIn,
@@ -33,7 +34,6 @@ from service.schemas.weather import (
     WeatherCorrectionResponse,
 )
 from service.units import Quantity, UnitSystem, to_si, unit_labels
-from service.vehicle_builders import build_launch, build_vehicle
 
 __all__ = ["router"]
 

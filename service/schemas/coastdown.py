@@ -6,7 +6,7 @@ from typing import Annotated, Any, Literal, Self
 
 from pydantic import ConfigDict, Field, model_validator
 
-from core.coastdown import MAX_RUNS, MIN_SAMPLES
+from core.car.coast_down import MAX_RUNS, MIN_SAMPLES
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
 from service.schemas.quantities import AirPressure, AirTemperature, Mass, RoadSpeed
 from service.schemas.vehicle import RoadLoadIn

@@ -15,7 +15,7 @@ from service.schemas.common import (
     UnitsRequest,
     schema_rules,
 )
-from service.schemas.gear_choice import StripTimeOut
+from service.schemas.comparison import StripTimeOut
 from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.job import JobField
 from service.schemas.quantities import RoadSpeed, Rollout

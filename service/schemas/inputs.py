@@ -6,7 +6,7 @@ from typing import Annotated, Any, Literal, Self
 
 from pydantic import ConfigDict, Discriminator, Field, Tag, model_validator
 
-from core.curves import MIN_RPM
+from core.engine.curves import MIN_RPM
 from service.schemas.common import ApiModel, schema_rules
 from service.schemas.quantities import CurvePower, CurveTorque, TireDiameter
 

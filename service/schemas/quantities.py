@@ -9,9 +9,9 @@ from __future__ import annotations
 
 from typing import Annotated
 
-from core.altimeter import ALTIMETER_RANGE_PA, ELEVATION_RANGE_M
-from core.atmosphere import AIR_PRESSURE_RANGE_PA, AIR_TEMPERATURE_RANGE_K, ALTITUDE_RANGE_M
-from core.correction import CELL_TEMPERATURE_RANGE_K, STATION_PRESSURE_RANGE_PA
+from core.air.altimeter import ALTIMETER_RANGE_PA, ELEVATION_RANGE_M
+from core.air.atmosphere import AIR_PRESSURE_RANGE_PA, AIR_TEMPERATURE_RANGE_K, ALTITUDE_RANGE_M
+from core.engine.correction import CELL_TEMPERATURE_RANGE_K, STATION_PRESSURE_RANGE_PA
 from service.bounds import SiLimits
 from service.units import Quantity
 

@@ -6,7 +6,7 @@ from typing import Self
 
 from pydantic import ConfigDict, Field, model_validator
 
-from core.shiftwindow import DEFAULT_TOLERANCE_S, MAX_POINTS, MIN_POINTS
+from core.shifts.window import DEFAULT_TOLERANCE_S, MAX_POINTS, MIN_POINTS
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn

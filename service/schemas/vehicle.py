@@ -6,7 +6,7 @@ from typing import Literal, Self
 
 from pydantic import ConfigDict, Field, model_validator
 
-from core.vehicle import MIN_FRICTION_COEFFICIENT
+from core.car.vehicle import MIN_FRICTION_COEFFICIENT
 from service.schemas.common import ApiModel, schema_rules
 from service.schemas.quantities import (
     AirPressure,

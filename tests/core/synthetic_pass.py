@@ -4,9 +4,9 @@ sampled at a logger's rate and given Gaussian noise with a fixed seed.
 The car (a rear-drive four-speed coupe) is invented demo data; its curve peaks at 4500 rpm
 and falls off steeply towards the 7500 rpm limit, so the net-acceleration crossover of
 every gear pair lies near 6300 rpm, well below the limit: shifting at the limiter is late,
-shifting at 80 % of the crossover is early. The simulator (``core.simulate``) stands in
+shifting at 80 % of the crossover is early. The simulator (``core.runs.simulate``) stands in
 for the car: ``simulate_run`` integrates the same net acceleration that
-``core.performance.acceleration_shifts`` finds the crossovers of, so those crossovers are
+``core.runs.performance.acceleration_shifts`` finds the crossovers of, so those crossovers are
 the truth the log analysis should recover.
 """
 
@@ -18,14 +18,14 @@ from functools import lru_cache
 import numpy as np
 from numpy.typing import NDArray
 
-from core.curves import torque_curve_from_torque
-from core.drivetrain import make_drivetrain
-from core.performance import acceleration_shifts
-from core.roadload import RoadLoad
-from core.simulate import DriveModel, RunResult, drive_model, simulate_run
-from core.tires import Tire, tire_from_diameter
-from core.traction import AxleGeometry, DriveLayout
-from core.vehicle import Launch, Vehicle
+from core.car.road_load import RoadLoad
+from core.car.traction import AxleGeometry, DriveLayout
+from core.car.vehicle import Launch, Vehicle
+from core.driveline.drivetrain import make_drivetrain
+from core.driveline.tires import Tire, tire_from_diameter
+from core.engine.curves import torque_curve_from_torque
+from core.runs.performance import acceleration_shifts
+from core.runs.simulate import DriveModel, RunResult, drive_model, simulate_run
 
 __all__ = [
     "CURVE_RPM",

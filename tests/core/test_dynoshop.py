@@ -16,11 +16,11 @@ import pint
 import pytest
 from numpy.testing import assert_allclose
 
-from core.curves import CurveSource
-from core.dynocolumns import ColumnQuantity, ColumnUnit, is_wheel_header, read_header_cell
-from core.dynoencoding import decode_export
-from core.dynofile import DynoRun, read_dyno_text
+from core.dyno.columns import ColumnQuantity, ColumnUnit, is_wheel_header, read_header_cell
+from core.dyno.file import DynoRun, read_dyno_text
+from core.engine.curves import CurveSource
 from core.errors import DynoFileError
+from core.readers.encoding import decode_export
 
 DATA = Path(__file__).resolve().parent.parent / "data"
 UREG: pint.UnitRegistry[float] = pint.UnitRegistry()

@@ -259,7 +259,7 @@ def test_thousands_of_unknown_fields_are_refused_before_validation(
 
 def test_a_wait_that_would_exceed_the_budget_is_refused_at_once() -> None:
     # two ahead of it on one busy slot at 1 s each: 3 s expected against a 2 s budget
-    from service.admission import Admission
+    from service.http.admission import Admission
 
     adm = Admission(slots=1, queue=8, budget_s=2.0, client_timeout_s=10.0, retry_after_s=1)
     assert adm.expected_wait_s() == 0.0  # a free slot: no wait

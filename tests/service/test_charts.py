@@ -11,9 +11,9 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from service.chart_data import run_chart, tractive_force_chart
-from service.charts import PNG_DPI, SIZE_IN, ChartFormat, gear_style, render_chart
-from service.computations import compute_acceleration_run, compute_shift_plan
+from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
+from service.output.chart_data import run_chart, tractive_force_chart
+from service.output.png_chart import PNG_DPI, SIZE_IN, ChartFormat, gear_style, render_chart
 from service.schemas.acceleration import AccelerationRunRequest
 from service.schemas.shift_plan import ShiftPlanRequest
 from tests.conftest import ApiClient, load_demo

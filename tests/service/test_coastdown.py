@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from core.coastdown import coast_down_speed
+from core.car.coast_down import coast_down_speed
 from tests.conftest import ApiClient, load_demo
 
 URL = "/v1/road-load/coast-down"

@@ -6,7 +6,7 @@ from email.message import Message
 
 import pytest
 
-from service.deps import declares_json
+from service.http.deps import declares_json
 
 HEADERS = [
     "application/json",

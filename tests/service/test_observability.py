@@ -16,7 +16,7 @@ from fastapi import FastAPI
 from prometheus_client.parser import text_string_to_metric_families
 
 from service.app import app, create_app
-from service.observability import JsonFormatter
+from service.http.observability import JsonFormatter
 from service.routes import health
 from tests.conftest import ApiClient
 

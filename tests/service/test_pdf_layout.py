@@ -9,8 +9,8 @@ from __future__ import annotations
 
 import pytest
 
-from service.pdf_ink import Ink
-from service.pdf_layout import Block, flow, latin, wrap
+from service.output.pdf_ink import Ink
+from service.output.pdf_layout import Block, flow, latin, wrap
 
 
 def _noop(pdf: Ink, y: float) -> None:

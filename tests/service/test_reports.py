@@ -10,8 +10,8 @@ from typing import Any
 import httpx
 import pytest
 
-from service.cautions import CAUTIONS
-from service.negotiation import choose_media_type
+from service.http.negotiation import choose_media_type
+from service.output.cautions import CAUTIONS
 from tests.conftest import ApiClient, load_demo
 
 PLAN_URL = "/v1/reports/shift-plan"

@@ -18,9 +18,9 @@ import numpy as np
 import pytest
 from matplotlib.image import imread
 
-from service.letterhead import Letterhead, get_letterhead
-from service.report_pdf import render_pdf
-from service.reports import shift_plan_report
+from service.output.letterhead import Letterhead, get_letterhead
+from service.output.pdf import render_pdf
+from service.output.shift_plan_report import shift_plan_report
 from service.settings import get_settings
 from tests.conftest import DATA, ApiClient, load_demo
 
@@ -306,7 +306,7 @@ def test_ten_gear_tables_stay_aligned(api: ApiClient) -> None:
 
 
 def test_logo_is_drawn_once_per_page(shop: Letterhead, tmp_path: Path) -> None:
-    from service.computations import compute_shift_plan
+    from service.mapping.calculations import compute_shift_plan
     from service.schemas.shift_plan import ShiftPlanRequest
 
     outcome = compute_shift_plan(ShiftPlanRequest.model_validate(load_demo("demo_coupe_us")))

@@ -385,8 +385,8 @@ def test_ring_and_pinion_with_a_ratio_is_rejected(api: Any, coupe_us: dict[str, 
 def test_inertia_in_pound_square_feet_for_us_callers() -> None:
     from scipy import constants
 
+    from service.mapping.vehicle import build_vehicle
     from service.schemas.vehicle import VehicleIn
-    from service.vehicle_builders import build_vehicle
 
     body = {
         "mass": 3450,

@@ -64,7 +64,7 @@ def test_temperature_outside_the_standard_names_the_field(api: ApiClient) -> Non
 
 def test_air_outside_the_standards_band_is_warned(api: ApiClient) -> None:
     # ISO 1585 states a validity band for its factor, 0.93..1.07 (from memory, as
-    # core.correction records it): 40 degC at 90 kPa lies outside it
+    # core.engine.correction records it): 40 degC at 90 kPa lies outside it
     body = {"standard": "iso_1585", "taken_in": {"temperature": 40, "pressure": 90}}
     r = api.post(URL, json=body)
     assert r.status_code == 200, r.text

@@ -1,0 +1,1 @@
+"""Choosing parts: setups side by side and final-drive sweeps."""

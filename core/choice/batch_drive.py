@@ -1,0 +1,298 @@
+"""Drive force, net acceleration and top speed of one car with many final drive ratios.
+
+With final drive ``f_c`` the overall ratio in gear g is ``gear_g * f_c * extra``: each
+candidate ratio c puts the same engine, converter, tires and road load behind a different
+gearing, so a gear's force and acceleration for every candidate are arrays of shape (c, n)
+evaluated in one numpy call; engine and converter come from
+:meth:`core.runs.simulate.DriveModel.gearbox_input`, the same code the one-car model uses:
+a clutch slipping at the launch rpm in the launch gear, a converter solved by
+:func:`core.converter.matching.converter_operating_points` on the flattened grid (locked 1:1
+in lock-up gears above the curve's first rpm), the traction cap, the rotating mass of the
+gear and the decoupled mass while the engine slips.
+
+Where every candidate's grid is the same in engine speed (the launch gear from rest, the
+top-speed scan) the engine and converter are solved on one row and shared; the rows agree
+to rounding, so the results agree with the one-car model to rounding.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from core.driveline.drivetrain import MAX_RATIO
+from core.engine.curves import RPM_TO_RAD_S
+from core.errors import DrivetrainError
+
+if TYPE_CHECKING:
+    from core.runs.simulate import DriveModel
+
+__all__ = [
+    "BatchTopSpeed",
+    "batch_acceleration",
+    "batch_drive",
+    "batch_top_speed",
+    "candidate_masses",
+    "checked_final_drives",
+    "overall_ratios",
+    "take_rows",
+]
+
+FloatArray = NDArray[np.float64]
+IntArray = NDArray[np.int64]
+_TOP_SPEED_GRID = 257  # as core.runs.performance.top_speed
+_SHARED_RTOL = 1e-12
+
+
+def checked_final_drives(final_drive_ratio: ArrayLike) -> FloatArray:
+    """Validate candidate final drive ratios.
+
+    Parameters
+    ----------
+    final_drive_ratio : array_like, shape (c,)
+        Ratios [-], at least one, each finite and in (0, 50].
+
+    Returns
+    -------
+    ndarray, shape (c,)
+
+    Raises
+    ------
+    DrivetrainError
+        On an empty or multi-dimensional list, or a ratio outside (0, 50].
+    """
+    f = np.asarray(final_drive_ratio, dtype=np.float64)
+    if f.ndim != 1 or f.size == 0:
+        raise DrivetrainError(
+            f"`final_drive_ratio` must list one or more ratios, got shape {f.shape}",
+            parameter="final_drive_ratio",
+        )
+    bad = np.flatnonzero(~np.isfinite(f) | (f <= 0.0) | (f > MAX_RATIO))
+    if bad.size:
+        i = int(bad[0])
+        raise DrivetrainError(
+            f"`final_drive_ratio[{i}]` must be finite and in (0, {MAX_RATIO:g}], got {f[i]}",
+            parameter=f"final_drive_ratio[{i}]",
+        )
+    return f
+
+
+def overall_ratios(model: DriveModel, final_drive_ratio: FloatArray) -> FloatArray:
+    """Overall ratio in each gear for each candidate, shape (c, g) [-]."""
+    gears = model.drivetrain.gear_ratios[None, :]
+    result: FloatArray = gears * final_drive_ratio[:, None] * model.drivetrain.extra_reduction
+    return result
+
+
+def take_rows(values: FloatArray, index: IntArray) -> FloatArray:
+    """``values[r, index[r]]`` for every row r of a (c, n) array, shape (c,)."""
+    result: FloatArray = np.take_along_axis(values, index[:, None], axis=1)[:, 0]
+    return result
+
+
+def candidate_masses(
+    model: DriveModel, final_drive_ratio: FloatArray
+) -> tuple[FloatArray, FloatArray]:
+    """Effective mass per gear and decoupled mass for each final drive ratio [kg].
+
+    Both the rotating equivalent ``[(Ie + It)*Ntf**2 + Id*Nf**2 + Iw] / r**2`` (Gillespie,
+    ch. 2) and the mass-factor estimate ``m*(1.04 + 0.0025*Ntf**2)`` are ``A + B*f**2`` in
+    the final drive ratio f, ``Ntf`` and ``Nf`` both being proportional to it; the vehicle's
+    own methods at f = 1 and f = 2 fix A and B.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car.
+    final_drive_ratio : ndarray, shape (c,)
+        Candidate final drive ratios [-].
+
+    Returns
+    -------
+    tuple of ndarray, shapes (c, g) and (c,)
+        Effective mass in each gear and decoupled mass [kg].
+    """
+    vehicle, tire, base = model.vehicle, model.tire, model.drivetrain
+    one = dataclasses.replace(base, final_drive_ratio=1.0)
+    two = dataclasses.replace(base, final_drive_ratio=2.0)
+    e1, e2 = vehicle.effective_mass_kg(one, tire), vehicle.effective_mass_kg(two, tire)
+    d1, d2 = vehicle.decoupled_mass_kg(one, tire), vehicle.decoupled_mass_kg(two, tire)
+    f2 = final_drive_ratio**2
+    b_eff = (e2 - e1) / 3.0
+    b_dec = (d2 - d1) / 3.0
+    effective = (e1 - b_eff)[None, :] + b_eff[None, :] * f2[:, None]
+    decoupled = (d1 - b_dec) + b_dec * f2
+    return effective, decoupled
+
+
+def _shared_row(n_in: FloatArray) -> FloatArray | None:
+    """The first row when every row equals it to rounding, else None."""
+    first: FloatArray = n_in[0]
+    if n_in.shape[0] == 1:
+        return first
+    scale = max(float(np.max(np.abs(first))), 1.0)
+    if float(np.max(np.abs(n_in - first))) <= _SHARED_RTOL * scale:
+        return first
+    return None
+
+
+def batch_drive(
+    model: DriveModel, gear: int, speed_m_s: FloatArray, ratio: FloatArray, launching: bool
+) -> tuple[FloatArray, FloatArray, FloatArray]:
+    """Drive force before traction, as :meth:`DriveModel.drive` for every candidate.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car.
+    gear : int
+        Gear index, 0 for first.
+    speed_m_s : ndarray, shape (c, n)
+        Road speeds of each candidate [m/s], >= 0.
+    ratio : ndarray, shape (c,)
+        Each candidate's overall ratio in this gear [-].
+    launching : bool
+        True in the launch gear from rest.
+
+    Returns
+    -------
+    tuple of ndarray, shape (c, n)
+        Force [N] (zero above the rev-limit speed), engine speed [rpm] (possibly a
+        read-only view) and gearbox input speed [rpm].
+    """
+    r = model.tire.rolling_radius_m
+    n_in = speed_m_s * ratio[:, None] / (r * RPM_TO_RAD_S)
+    row = _shared_row(n_in)
+    if row is not None:
+        t_row, e_row = model.gearbox_input(gear, row, launching=launching)
+        torque = np.broadcast_to(t_row, n_in.shape)
+        engine = np.broadcast_to(e_row, n_in.shape)
+    else:
+        torque, engine = model.gearbox_input(gear, n_in, launching=launching)
+    force = torque * ratio[:, None] * float(model.efficiency[gear]) / r
+    force = np.where(n_in > model.rev_limit_rpm * (1.0 + 1e-9), 0.0, force)
+    return force, engine, n_in
+
+
+def batch_acceleration(
+    model: DriveModel,
+    gear: int,
+    speed_m_s: FloatArray,
+    ratio: FloatArray,
+    masses: tuple[FloatArray, FloatArray],
+    launching: bool,
+) -> tuple[FloatArray, FloatArray]:
+    """Net acceleration, as :meth:`DriveModel.acceleration` for every candidate.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car.
+    gear : int
+        Gear index, 0 for first.
+    speed_m_s : ndarray, shape (c, n)
+        Road speeds [m/s], >= 0.
+    ratio : ndarray, shape (c,)
+        Overall ratio in this gear [-].
+    masses : tuple of ndarray, shapes (c,) and (c,)
+        Effective mass in this gear and decoupled mass of each candidate [kg].
+    launching : bool
+        True in the launch gear from rest.
+
+    Returns
+    -------
+    tuple of ndarray, shape (c, n)
+        Net acceleration [m/s^2] and engine speed [rpm].
+    """
+    force, engine, n_in = batch_drive(model, gear, speed_m_s, ratio, launching)
+    usable = np.minimum(force, model.traction_limit_n)
+    resist = model.vehicle.road_load.force_n(np.maximum(speed_m_s, 0.0))
+    # the engine's inertia rides with the car only while it follows the wheels
+    slipping = engine > n_in * (1.0 + 1e-6) + 1e-6
+    mass = np.where(slipping, masses[1][:, None], masses[0][:, None])
+    return (usable - resist) / mass, np.array(engine, dtype=np.float64)
+
+
+@dataclass(frozen=True)
+class BatchTopSpeed:
+    """Top speed of one car with each final drive ratio.
+
+    Attributes
+    ----------
+    speed_m_s : ndarray, shape (c,)
+        Top speed [m/s]; 0 where no gear can hold any speed.
+    gear : ndarray of int, shape (c,)
+        Gear it is reached in (1 = first).
+    limited_by : tuple of str, length c
+        ``"drag"`` or ``"rev_limit"``.
+    by_gear_m_s : ndarray, shape (c, g)
+        Top speed in each gear [m/s], NaN where the gear cannot hold any speed.
+    """
+
+    speed_m_s: FloatArray
+    gear: IntArray
+    limited_by: tuple[str, ...]
+    by_gear_m_s: FloatArray
+
+
+def batch_top_speed(model: DriveModel, final_drive_ratio: ArrayLike) -> BatchTopSpeed:
+    """Top speed with each final drive ratio, as :func:`core.runs.performance.top_speed`.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car; its final drive ratio is replaced by each candidate.
+    final_drive_ratio : array_like, shape (c,)
+        Candidate final drive ratios [-], each finite and in (0, 50].
+
+    Returns
+    -------
+    BatchTopSpeed
+    """
+    f = checked_final_drives(final_drive_ratio)
+    overall = overall_ratios(model, f)
+    r = model.tire.rolling_radius_m
+    by_gear = np.full(overall.shape, np.nan)
+    drag = np.zeros(overall.shape, dtype=np.bool_)
+    cols = np.arange(_TOP_SPEED_GRID)[None, :]
+    for g in range(overall.shape[1]):
+        ratio = overall[:, g]
+        lo = model.curve.rpm_min * RPM_TO_RAD_S * r / ratio
+        hi = model.rev_limit_rpm * RPM_TO_RAD_S * r / ratio
+        v = np.linspace(lo, hi, _TOP_SPEED_GRID, axis=-1)
+        # every scan runs over the same engine speeds, curve start to rev limit: one row of
+        # torque serves all candidates (never above the limit, so never cut)
+        row = v[0] * ratio[0] / (r * RPM_TO_RAD_S)
+        torque = model.gearbox_input(g, row)[0]
+        force = torque[None, :] * (ratio * float(model.efficiency[g]) / r)[:, None]
+        spare = np.minimum(force, model.traction_limit_n) - model.vehicle.road_load.force_n(v)
+        spare[:, -1] = np.minimum(spare[:, -1], spare[:, -2])  # the limiter cuts drive
+        strong = spare > 0.0
+        holds = strong.any(axis=1)
+        first = np.argmax(strong, axis=1)  # the car reaches the gear's range above here
+        neg = (spare <= 0.0) & (cols >= first[:, None])
+        k = np.argmax(neg, axis=1)
+        crosses = holds & neg.any(axis=1)
+        km = np.maximum(k - 1, 0)
+        s0, s1 = take_rows(spare, km), take_rows(spare, k)
+        v0, v1 = take_rows(v, km), take_rows(v, k)
+        frac = np.where(crosses, s0 / np.where(crosses, s0 - s1, 1.0), 0.0)
+        by_gear[:, g] = np.where(crosses, v0 + frac * (v1 - v0), np.where(holds, hi, np.nan))
+        drag[:, g] = crosses
+    filled = np.where(np.isnan(by_gear), -np.inf, by_gear)
+    best = np.argmax(filled, axis=1)
+    none = np.all(np.isnan(by_gear), axis=1)
+    limited = tuple(
+        "drag" if n or bool(drag[c, b]) else "rev_limit"
+        for c, (n, b) in enumerate(zip(none.tolist(), best.tolist(), strict=True))
+    )
+    return BatchTopSpeed(
+        speed_m_s=np.where(none, 0.0, take_rows(filled, best)),
+        gear=np.where(none, 1, best + 1).astype(np.int64),
+        limited_by=limited,
+        by_gear_m_s=by_gear,
+    )

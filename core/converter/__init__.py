@@ -1,0 +1,1 @@
+"""Hydrodynamic torque converters: tables, matching, the drive they give, operating map."""

@@ -1,0 +1,4 @@
+"""From crank to road.
+
+Ratios, tires, per-gear kinematics, chassis-dyno conversion, speedometer, gear spacing.
+"""

@@ -1,0 +1,1 @@
+"""Dyno exports: columns, numbers, rows and speed-based files turned into torque curves."""

@@ -1,0 +1,1 @@
+"""The engine: torque curves and their correction to standard air."""

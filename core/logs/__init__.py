@@ -1,0 +1,1 @@
+"""Logged passes: reading logger exports, signals, and the verdict on each shift."""

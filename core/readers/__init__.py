@@ -1,0 +1,1 @@
+"""What every file reader shares: decoding an upload's bytes."""

@@ -1,0 +1,1 @@
+"""Acceleration runs: one integrator, strip timing, timed-run reports, performance figures."""

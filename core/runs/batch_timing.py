@@ -1,0 +1,325 @@
+"""Strip timing of many runs at once, read from their traces as they are made.
+
+:func:`core.runs.batch.batch_runs` produces each gear of every candidate's run as a block of
+trace points, non-decreasing in time, distance and speed within the block. Rather than keep
+the traces, :class:`TraceProbes` reads each block as it comes: for each distance to time,
+the last point at or before it and the first point past it, between which
+:func:`core.runs.milestones.time_at_distance` takes the acceleration as constant; for each speed,
+the first point at or above it and the point before, between which
+:func:`core.runs.milestones.time_at_speed` interpolates linearly. :func:`timed_distances` and
+:func:`timed_speeds` then time them as :func:`core.runs.milestones.timed_distance` and
+:func:`core.runs.milestones.timed_speed` do.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+
+from core.runs.milestones import TRAP_WINDOW_M
+
+__all__ = [
+    "BatchTimedDistance",
+    "BatchTimedSpeed",
+    "TraceProbes",
+    "probe_distances",
+    "probe_speeds",
+    "timed_distances",
+    "timed_speeds",
+]
+
+FloatArray = NDArray[np.float64]
+BoolArray = NDArray[np.bool_]
+IntArray = NDArray[np.int64]
+_DIRECT_COUNT = 100_000  # pairs times points up to which counting beats bisection
+
+
+@dataclass(frozen=True)
+class BatchTimedDistance:
+    """Elapsed time over a distance, one value per candidate, NaN where not reached.
+
+    Attributes
+    ----------
+    name : str
+        Label, e.g. ``"1/4 mile"``.
+    distance_m : float
+        Distance from where the clock starts [m].
+    elapsed_s : ndarray, shape (c,)
+        Elapsed time [s].
+    speed_m_s : ndarray, shape (c,)
+        Speed crossing the line [m/s].
+    trap_speed_m_s : ndarray, shape (c,)
+        Average over the last 66 ft [m/s], NaN where not timed.
+    """
+
+    name: str
+    distance_m: float
+    elapsed_s: FloatArray
+    speed_m_s: FloatArray
+    trap_speed_m_s: FloatArray
+
+
+@dataclass(frozen=True)
+class BatchTimedSpeed:
+    """Elapsed time between two speeds, one value per candidate, NaN where not reached.
+
+    Attributes
+    ----------
+    name : str
+        Label, e.g. ``"0-60 mph"``.
+    from_m_s, to_m_s : float
+        Speeds [m/s].
+    elapsed_s : ndarray, shape (c,)
+        From first reaching ``from_m_s`` (first motion for 0) [s].
+    less_rollout_s : ndarray, shape (c,)
+        From rest: ``elapsed_s`` less the time to roll out [s]; NaN otherwise.
+    """
+
+    name: str
+    from_m_s: float
+    to_m_s: float
+    elapsed_s: FloatArray
+    less_rollout_s: FloatArray
+
+
+def _count_at_most(values: FloatArray, rows: IntArray, limits: FloatArray) -> IntArray:
+    """Per pair p, how many of ``values[rows[p]]`` (a non-decreasing row) are at most
+    ``limits[p]``: counted directly for few pairs, else by a bisection on every pair at
+    once."""
+    if rows.size * values.shape[1] <= _DIRECT_COUNT:
+        direct: IntArray = np.count_nonzero(values[rows] <= limits[:, None], axis=1)
+        return direct.astype(np.int64)
+    lo = np.zeros(rows.size, dtype=np.int64)
+    hi = np.full(rows.size, values.shape[1], dtype=np.int64)
+    while rows.size and bool(np.any(lo < hi)):
+        mid = (lo + hi) // 2
+        above = values[rows, np.minimum(mid, values.shape[1] - 1)] > limits
+        hi = np.where(above, mid, hi)
+        lo = np.where(above, lo, np.minimum(mid + 1, hi))
+    return lo
+
+
+def _count_below(values: FloatArray, rows: IntArray, limits: FloatArray) -> IntArray:
+    """Per pair p, how many of ``values[rows[p]]`` (a non-decreasing row) are below
+    ``limits[p]``."""
+    if rows.size * values.shape[1] <= _DIRECT_COUNT:
+        direct: IntArray = np.count_nonzero(values[rows] < limits[:, None], axis=1)
+        return direct.astype(np.int64)
+    lo = np.zeros(rows.size, dtype=np.int64)
+    hi = np.full(rows.size, values.shape[1], dtype=np.int64)
+    while rows.size and bool(np.any(lo < hi)):
+        mid = (lo + hi) // 2
+        reach = values[rows, np.minimum(mid, values.shape[1] - 1)] >= limits
+        hi = np.where(reach, mid, hi)
+        lo = np.where(reach, lo, np.minimum(mid + 1, hi))
+    return lo
+
+
+class TraceProbes:
+    """Many traces read block by block as they are made.
+
+    For each probe distance it keeps the last point at or before it and the first point
+    past it; for each probe speed, the first point at or above it and the point before.
+    Every block handed to :meth:`add` must be non-decreasing in distance and in speed along
+    its rows, and follow the row's earlier blocks in time (the gear segments, shift points
+    and final hold of :func:`core.runs.batch.batch_runs` are). Every trace starts at rest at
+    the origin.
+
+    Parameters
+    ----------
+    count : int
+        Number of traces (rows).
+    distances : ndarray, shape (d,)
+        Probe distances from the start of motion [m], >= 0.
+    speeds : ndarray, shape (s,)
+        Probe speeds [m/s].
+    """
+
+    def __init__(self, count: int, distances: FloatArray, speeds: FloatArray) -> None:
+        nd, ns = distances.size, speeds.size
+        self.d, self.s = distances, speeds
+        # every trace starts at rest at the origin, at or before every distance
+        self.le = [np.zeros((count, nd)) for _ in range(3)]  # t, v, x
+        self.gt = [np.full((count, nd), np.nan) for _ in range(2)]  # t, v
+        self.gt_found = np.zeros((count, nd), dtype=np.bool_)
+        self.hit = [np.full((count, ns), np.nan) for _ in range(3)]  # t, v, a
+        self.pre = [np.full((count, ns), np.nan) for _ in range(3)]
+        self.found = np.zeros((count, ns), dtype=np.bool_)
+        self.last = [np.zeros(count) for _ in range(3)]  # t, v, x
+        self.last_a = np.zeros(count)
+        self.started = np.zeros(count, dtype=np.bool_)
+
+    def add(
+        self, rows: IntArray, t: FloatArray, v: FloatArray, x: FloatArray, a: FloatArray
+    ) -> None:
+        """Read the next block of some traces.
+
+        Parameters
+        ----------
+        rows : ndarray of int, shape (r,)
+            The traces the block belongs to, each once.
+        t, v, x, a : ndarray, shape (r, w)
+            Time [s], speed [m/s], distance [m] and acceleration [m/s^2] of the block's
+            points.
+        """
+        cols = (t, v, x)
+        if self.d.size:
+            before = x[:, -1:] <= self.d[None, :]  # the whole block at or before d
+            past = x[:, :1] > self.d[None, :]  # the whole block past d
+            ri, ji = np.nonzero(before)
+            for le, col in zip(self.le, cols, strict=True):
+                le[rows[ri], ji] = col[ri, -1]
+            ri, ji = np.nonzero(~before & ~past)  # d falls inside the block
+            k = _count_at_most(x, ri, self.d[ji]) - 1
+            for le, col in zip(self.le, cols, strict=True):
+                le[rows[ri], ji] = col[ri, k]
+            for gt, col in zip(self.gt, cols[:2], strict=True):
+                gt[rows[ri], ji] = col[ri, k + 1]
+            self.gt_found[rows[ri], ji] = True
+            ri, ji = np.nonzero(past & ~self.gt_found[rows])
+            for gt, col in zip(self.gt, cols[:2], strict=True):
+                gt[rows[ri], ji] = col[ri, 0]
+            self.gt_found[rows[ri], ji] = True
+        if self.s.size:
+            ri, ji = np.nonzero(~self.found[rows] & (v[:, -1:] >= self.s[None, :]))
+            k = _count_below(v, ri, self.s[ji])
+            c = rows[ri]
+            inside = k > 0
+            lasts = [self.last[0], self.last[1], self.last_a]
+            for hit, pre, col, last in zip(self.hit, self.pre, (t, v, a), lasts, strict=True):
+                hit[c, ji] = col[ri, k]
+                pre[c, ji] = np.where(inside, col[ri, np.maximum(k - 1, 0)], last[c])
+            # the trace's very first point already reaches the speed
+            first = ~inside & ~self.started[c]
+            self.pre[0][c[first], ji[first]] = np.nan
+            self.found[c, ji] = True
+        for last, col in zip(self.last, cols, strict=True):
+            last[rows] = col[:, -1]
+        self.last_a[rows] = a[:, -1]
+        self.started[rows] = True
+
+    def passing(self, j: int) -> tuple[FloatArray, FloatArray]:
+        """Time [s] and speed [m/s] of each trace passing probe distance ``j``, shape (c,),
+        NaN where a trace does not get there; as :func:`core.runs.milestones.time_at_distance`,
+        with the acceleration constant between the points either side."""
+        d = float(self.d[j])
+        t0, v0, x0 = (le[:, j] for le in self.le)
+        found = self.gt_found[:, j]
+        t1 = np.where(found, self.gt[0][:, j], t0)
+        v1 = np.where(found, self.gt[1][:, j], v0)
+        dx = d - x0
+        flat = (t1 <= t0) | (dx <= 0.0) | ~found
+        a = (v1 - v0) / np.where(flat, 1.0, t1 - t0)
+        root = np.sqrt(np.maximum(v0 * v0 + 2.0 * a * dx, 0.0))
+        moving = ~flat & (v0 + root > 0.0)
+        tau = np.where(moving, 2.0 * dx / np.where(moving, v0 + root, 1.0), 0.0)
+        tau = np.minimum(tau, np.where(flat, 0.0, t1 - t0))
+        reach = found | (d <= self.last[2] * (1 + 1e-12))
+        return np.where(reach, t0 + tau, np.nan), np.where(reach, v0 + a * tau, np.nan)
+
+    def reaching(self, j: int) -> FloatArray:
+        """Time [s] at which each trace first reaches probe speed ``j``, shape (c,), NaN
+        where it does not; as :func:`core.runs.milestones.time_at_speed`."""
+        s = float(self.s[j])
+        t1, v1, a1 = (h[:, j] for h in self.hit)
+        t0, v0, a0 = (p[:, j] for p in self.pre)
+        first = self.found[:, j] & np.isnan(t0)
+        later = self.found[:, j] & ~first
+        dv = np.where(later, v1 - v0, 1.0)
+        ds = s - v0
+        frac = np.where(later, ds / dv, 0.0)
+        # 1/a linear in speed between two accelerating points, as the integrator takes it
+        curved = later & (a0 > 0.0) & (a1 > 0.0) & (t1 > t0)
+        i0 = 1.0 / np.where(curved, a0, 1.0)
+        i1 = 1.0 / np.where(curved, a1, 1.0)
+        shape = (ds * i0 + (i1 - i0) * ds * ds / (2.0 * dv)) / (0.5 * dv * (i0 + i1))
+        frac = np.where(curved, shape, frac)
+        time = np.where(later, t0 + frac * (t1 - t0), t1)
+        return np.where(self.found[:, j], time, np.nan)
+
+
+def _trapped(distance_m: float, trap: bool) -> bool:
+    return trap and distance_m > TRAP_WINDOW_M
+
+
+def timed_distances(
+    probes: TraceProbes, distances: Sequence[tuple[str, float, bool]], moved: BoolArray
+) -> tuple[BatchTimedDistance, ...]:
+    """Time distances as :func:`core.runs.milestones.timed_distance` does, for every trace.
+
+    Parameters
+    ----------
+    probes : TraceProbes
+        Probes at :func:`probe_distances` of the same rollout and distances.
+    distances : sequence of (str, float, bool)
+        Name, distance from where the clock starts [m] and whether to time a trap.
+    moved : ndarray of bool, shape (c,)
+        False for traces that never started; their timings are NaN.
+
+    Returns
+    -------
+    tuple of BatchTimedDistance
+    """
+    nan = np.full(moved.shape, np.nan)
+    start, _ = probes.passing(0)
+    out, entry_j = [], 1 + len(distances)
+    for j, (name, d, trap) in enumerate(distances, start=1):
+        end, speed = probes.passing(j)
+        elapsed = np.where(moved, end - start, np.nan)
+        trap_speed = nan
+        if _trapped(d, trap):
+            entry, _ = probes.passing(entry_j)
+            entry_j += 1
+            timed = moved & np.isfinite(entry) & np.isfinite(end) & (end > entry)
+            gap = np.where(timed, end - entry, 1.0)
+            trap_speed = np.where(timed, TRAP_WINDOW_M / gap, np.nan)
+        speed = np.where(np.isfinite(elapsed), speed, np.nan)
+        out.append(BatchTimedDistance(name, d, elapsed, speed, trap_speed))
+    return tuple(out)
+
+
+def timed_speeds(
+    probes: TraceProbes, speeds: Sequence[tuple[str, float, float]], moved: BoolArray
+) -> tuple[BatchTimedSpeed, ...]:
+    """Time speed intervals as :func:`core.runs.milestones.timed_speed` does on standing
+    starts, for every trace.
+
+    Parameters
+    ----------
+    probes : TraceProbes
+        Probes at :func:`probe_speeds` of the same intervals, and at the rollout first.
+    speeds : sequence of (str, float, float)
+        Name, start and end speed [m/s].
+    moved : ndarray of bool, shape (c,)
+        False for traces that never started; their timings are NaN.
+
+    Returns
+    -------
+    tuple of BatchTimedSpeed
+    """
+    rolled, _ = probes.passing(0)
+    out = []
+    for j, (name, a, b) in enumerate(speeds):
+        start = np.zeros(moved.shape) if a <= 0.0 else probes.reaching(2 * j)
+        end = probes.reaching(2 * j + 1)
+        elapsed = np.where(moved, end - start, np.nan)
+        less = np.where(moved, end - rolled, np.nan) if a == 0.0 else np.full(moved.shape, np.nan)
+        out.append(BatchTimedSpeed(name, a, b, elapsed, less))
+    return tuple(out)
+
+
+def probe_distances(rollout_m: float, distances: Sequence[tuple[str, float, bool]]) -> FloatArray:
+    """The distances from the start of motion [m] that :func:`timed_distances` reads, in
+    its order: the rollout, each distance past it, then each trap's entry."""
+    probe = [rollout_m] + [rollout_m + d for _, d, _ in distances]
+    probe += [rollout_m + d - TRAP_WINDOW_M for _, d, trap in distances if _trapped(d, trap)]
+    return np.array(probe, dtype=np.float64)
+
+
+def probe_speeds(speeds: Sequence[tuple[str, float, float]]) -> FloatArray:
+    """The speeds [m/s] that :func:`timed_speeds` reads, in its order: start and end of
+    each interval."""
+    return np.array([v for _, a, b in speeds for v in (a, b)], dtype=np.float64)

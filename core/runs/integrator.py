@@ -1,0 +1,506 @@
+"""The one integrator of acceleration runs: any number of runs of one car at once.
+
+Each row c is a run of the same engine, converter, tires and road load behind its own
+overall ratios (a final drive candidate, or just the car as it is). In each gear the net
+acceleration is a function of speed alone (quasi-static engine, converter and road load),
+
+    a_g(v) = (min(F_g(v), F_traction) - R(v)) / m_g
+
+(Gillespie ch. 2), so time and distance are integrals over speed, ``t = int dv / a`` and
+``x = int v dv / a``. Every still-running row gets a grid of ``POINTS_PER_GEAR`` speeds in
+the gear, one row of a (c, n) array whose net acceleration comes from one call of
+:func:`core.choice.batch_drive.batch_acceleration`; the integrals follow by the trapezoid rule
+along the rows. The loop runs once per gear, not once per row or per time step.
+
+Where a gear cannot reach its shift speed the acceleration falls to zero at a speed
+``v*`` (the drag-limited speed of that gear, found by a bracketed root finder on the force
+balance). The run then keeps integrating towards it: with ``d = v* - v`` and
+``q = a/d`` (smooth, tending to ``-a'(v*)``), ``dt = dv/(q d)`` is integrated exactly in
+``d`` on each interval with ``1/q`` taken linear (product integration), over a grid that
+closes in on ``v*`` geometrically down to ``d = TAIL_END * v*``, hours of driving away.
+Past that point the speed equals ``v*`` to a part per million and is carried on at it.
+A car that reaches the rev limit in top gear is held there (acceleration zero).
+
+A shift takes ``shift_time_s`` with no drive, during which the car slows at the road-load
+deceleration of the shift speed. The integrator hands its results to a sink block by
+block: :func:`core.runs.simulate.simulate_run` keeps them as a trace (a batch of one), and
+:func:`core.runs.batch.batch_runs` reads them as strip timers.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Protocol
+
+import numpy as np
+from numpy.typing import NDArray
+from scipy.optimize.elementwise import find_root
+
+from core.car.vehicle import Coupling
+from core.choice.batch_drive import batch_drive
+from core.engine.curves import RPM_TO_RAD_S
+
+if TYPE_CHECKING:
+    from core.runs.simulate import DriveModel
+
+__all__ = [
+    "MAX_SPEED_M_S",
+    "POINTS_PER_GEAR",
+    "TAIL_END",
+    "TAIL_POINTS",
+    "GearBlock",
+    "RunEnds",
+    "RunSink",
+    "RunStart",
+    "ShiftBlock",
+    "integrate_runs",
+]
+
+FloatArray = NDArray[np.float64]
+BoolArray = NDArray[np.bool_]
+IntArray = NDArray[np.int64]
+POINTS_PER_GEAR = 121
+TAIL_POINTS = 24
+TAIL_END = 1e-6  # [-] relative distance to the drag-limited speed where the approach ends
+MAX_SPEED_M_S = 150.0  # [m/s], no run integrates beyond this
+_EVEN = np.linspace(0.0, 1.0, POINTS_PER_GEAR)
+
+
+@dataclass(frozen=True)
+class GearBlock:
+    """Trace points of some rows in one gear, each row non-decreasing in time and distance.
+
+    Attributes
+    ----------
+    rows : ndarray of int, shape (r,)
+        The runs the block belongs to.
+    gear : int
+        Gear index, 0 for first.
+    time_s, speed_m_s, distance_m, engine_rpm, acceleration_m_s2 : ndarray, shape (r, n)
+        [s, m/s, m, rpm, m/s^2]; a row shorter than n repeats its last point.
+    traction_limited : ndarray of bool, shape (r, n)
+        Where the tires, not the engine, capped the drive.
+    """
+
+    rows: IntArray
+    gear: int
+    time_s: FloatArray
+    speed_m_s: FloatArray
+    distance_m: FloatArray
+    engine_rpm: FloatArray
+    acceleration_m_s2: FloatArray
+    traction_limited: BoolArray
+
+
+@dataclass(frozen=True)
+class ShiftBlock:
+    """One upshift of some rows: no drive, slowing at the road-load deceleration.
+
+    Attributes
+    ----------
+    rows : ndarray of int, shape (r,)
+        The runs shifting.
+    gear : int
+        Index of the gear being left.
+    time_s, speed_m_s, distance_m, rpm_before : ndarray, shape (r,)
+        As the shift begins [s, m/s, m, rpm].
+    end_time_s, end_speed_m_s, end_distance_m, rpm_after : ndarray, shape (r,)
+        Once the next gear takes up the drive [s, m/s, m, rpm].
+    deceleration_m_s2 : ndarray, shape (r,)
+        Road-load deceleration through the shift [m/s^2], >= 0.
+    """
+
+    rows: IntArray
+    gear: int
+    time_s: FloatArray
+    speed_m_s: FloatArray
+    distance_m: FloatArray
+    rpm_before: FloatArray
+    end_time_s: FloatArray
+    end_speed_m_s: FloatArray
+    end_distance_m: FloatArray
+    rpm_after: FloatArray
+    deceleration_m_s2: FloatArray
+
+
+class RunSink(Protocol):
+    """What receives the integrator's blocks, in time order per row."""
+
+    def gear(self, block: GearBlock) -> None:
+        """Points driven in one gear, or held at the speed the run settled at."""
+
+    def shift(self, block: ShiftBlock) -> None:
+        """An upshift."""
+
+
+@dataclass(frozen=True)
+class RunStart:
+    """Where the runs begin and how far they must go.
+
+    Attributes
+    ----------
+    speed_m_s : float
+        Start speed [m/s]; 0 for a standing start (the launch gear slips its clutch or
+        converter).
+    gear : int
+        Start gear index, 0 for first.
+    cover_distance_m : float
+        Each run goes on at least this far from the start [m] ...
+    cover_speed_m_s : float
+        ... and until this speed, if the car can reach it [m/s].
+    """
+
+    speed_m_s: float
+    gear: int
+    cover_distance_m: float
+    cover_speed_m_s: float
+
+
+@dataclass(frozen=True)
+class RunEnds:
+    """How each run ended.
+
+    Attributes
+    ----------
+    moved : ndarray of bool, shape (c,)
+        False where the car cannot accelerate at the start speed (no trace follows).
+    settled_m_s : ndarray, shape (c,)
+        The speed the run approaches (the drag-limited speed of its gear) or is held at
+        (the rev limit in top gear, or the integration ceiling) [m/s]; NaN where it did
+        neither before covering what was asked.
+    settled_by : tuple of str or None, length c
+        ``"drag"`` or ``"rev_limit"`` where it settled.
+    stalled_gear : ndarray of int, shape (c,)
+        Index of a gear that could not accelerate the car when entered after a shift (the
+        run ends there, and distances past it are not reached); -1 where none.
+    left_at_once : ndarray of bool, shape (c, g)
+        Gears entered above their own shift speed, and so left at once.
+    """
+
+    moved: BoolArray
+    settled_m_s: FloatArray
+    settled_by: tuple[str | None, ...]
+    stalled_gear: IntArray
+    left_at_once: BoolArray
+
+
+def _with_launch_lock(
+    model: DriveModel, grid: FloatArray, ratio: FloatArray
+) -> tuple[FloatArray, IntArray]:
+    """Each row with the speed where the slipping clutch locks added, as ``np.union1d``
+    does; rows without it get a copy of their last point. Returns the grid and the number
+    of real points of each row."""
+    points = grid.shape[1]
+    v_lock = model.launch_rpm * RPM_TO_RAD_S * model.tire.rolling_radius_m / ratio
+    inside = (grid[:, 0] < v_lock) & (v_lock < grid[:, -1])
+    inside &= ~np.any(grid == v_lock[:, None], axis=1)
+    pos = np.where(inside, np.sum(grid < v_lock[:, None], axis=1), points)
+    cols = np.arange(points + 1)[None, :]
+    src = np.clip(np.where(cols < pos[:, None], cols, cols - 1), 0, points - 1)
+    out = np.take_along_axis(grid, src, axis=1)
+    out[np.flatnonzero(inside), pos[inside]] = v_lock[inside]
+    return out, np.where(inside, points + 1, points).astype(np.int64)
+
+
+def _cut(arrays: list[FloatArray], at: IntArray, rows: BoolArray, ends: list[FloatArray]) -> None:
+    """In rows ``rows`` set column ``at`` and every later one to the end value: the row's
+    new last point and its padding."""
+    cols = np.arange(arrays[0].shape[1])
+    mask = rows[:, None] & (cols[None, :] >= at[:, None])
+    for arr, end in zip(arrays, ends, strict=True):
+        np.copyto(arr, np.broadcast_to(end[:, None], arr.shape), where=mask)
+
+
+def _pick(values: FloatArray, index: IntArray) -> FloatArray:
+    """``values[r, index[r]]`` for every row r, shape (r,)."""
+    picked: FloatArray = values[np.arange(index.size), index]
+    return picked
+
+
+def _cumulative(y: FloatArray, step: FloatArray) -> FloatArray:
+    """Cumulative trapezoid along rows with the steps given, starting at 0."""
+    out = np.zeros(y.shape)
+    np.cumsum(step * (y[:, 1:] + y[:, :-1]) / 2.0, axis=1, out=out[:, 1:])
+    return out
+
+
+@dataclass(frozen=True)
+class _Car:
+    """The rows' gearing and masses."""
+
+    model: DriveModel
+    ratio: FloatArray  # (c, g) overall ratios
+    mass: FloatArray  # (c, g) effective mass
+    decoupled: FloatArray  # (c,) mass while the engine slips
+
+    def net(
+        self, g: int, rows: IntArray, speed: FloatArray, launching: bool
+    ) -> tuple[FloatArray, FloatArray, BoolArray]:
+        """Net acceleration [m/s^2], engine speed [rpm] and traction-limited flags."""
+        model = self.model
+        ratio = self.ratio[rows, g]
+        force, engine, n_in = batch_drive(model, g, speed, ratio, launching)
+        limited = force > model.traction_limit_n
+        usable = np.minimum(force, model.traction_limit_n)
+        resist = model.vehicle.road_load.force_n(np.maximum(speed, 0.0))
+        # the engine's inertia rides with the car only while it follows the wheels
+        slipping = engine > n_in * (1.0 + 1e-6) + 1e-6
+        mass = np.where(slipping, self.decoupled[rows][:, None], self.mass[rows, g][:, None])
+        return (usable - resist) / mass, np.array(engine, dtype=np.float64), limited
+
+
+def _drag_limited_speed(
+    car: _Car, g: int, rows: IntArray, lo: FloatArray, hi: FloatArray, launching: bool
+) -> FloatArray:
+    """Speed [m/s] in (lo, hi] where the net acceleration falls to zero, per row."""
+
+    def accel(v: FloatArray, idx: FloatArray) -> FloatArray:
+        flat = v.ravel()
+        a = car.net(g, rows[idx.ravel().astype(np.int64)], flat[:, None], launching)[0]
+        return a[:, 0].reshape(v.shape)
+
+    found = find_root(
+        accel,
+        (lo, hi),
+        args=(np.arange(rows.size, dtype=np.float64),),
+        tolerances={"xatol": 1e-9, "xrtol": 1e-12},
+    )
+    return np.clip(np.asarray(found.x, dtype=np.float64), lo, hi)
+
+
+def _approach(
+    car: _Car,
+    g: int,
+    rows: IntArray,
+    v_in: FloatArray,
+    v_star: FloatArray,
+    start: tuple[FloatArray, FloatArray],
+    launching: bool,
+) -> GearBlock:
+    """Integrate rows from ``v_in`` towards their drag-limited speed ``v_star``, with
+    ``POINTS_PER_GEAR + TAIL_POINTS`` points each."""
+    span = v_star - v_in
+    body = np.linspace(0.0, 1.0, POINTS_PER_GEAR, endpoint=False)
+    last = 1.0 / POINTS_PER_GEAR  # relative distance to v* after the evenly spaced part
+    tail = np.geomspace(last, TAIL_END * v_star / span, TAIL_POINTS + 1)
+    rel = np.concatenate([np.broadcast_to(1.0 - body, (rows.size, body.size)), tail.T[:, 1:]], 1)
+    d = rel * span[:, None]  # distance to v*, falling
+    v = v_star[:, None] - d
+    a, rpm, limited = car.net(g, rows, v, launching)
+    q_inv = d / np.where(a > 0.0, a, np.nan)
+    # product integration: int dv/(q d) with 1/q linear on each interval
+    mean_inv = 0.5 * (q_inv[:, 1:] + q_inv[:, :-1])
+    dt = mean_inv * np.log(d[:, :-1] / d[:, 1:])
+    dx = v_star[:, None] * dt - mean_inv * (v[:, 1:] - v[:, :-1])
+    t = np.zeros(v.shape)
+    x = np.zeros(v.shape)
+    np.cumsum(dt, axis=1, out=t[:, 1:])
+    np.cumsum(dx, axis=1, out=x[:, 1:])
+    t += start[0][:, None]
+    x += start[1][:, None]
+    return GearBlock(rows, g, t, v, x, rpm, a, limited)
+
+
+class _State:
+    """Per-row progress of the runs."""
+
+    def __init__(self, count: int, gears: int, start: RunStart) -> None:
+        self.v = np.full(count, start.speed_m_s)
+        self.t = np.zeros(count)
+        self.x = np.zeros(count)
+        self.n = np.zeros(count)  # engine speed [rpm]
+        self.gear = np.full(count, start.gear, dtype=np.int64)
+        self.active = np.ones(count, dtype=np.bool_)
+        self.moved = np.ones(count, dtype=np.bool_)
+        self.settled = np.full(count, np.nan)
+        self.settled_by: list[str | None] = [None] * count
+        self.stalled = np.full(count, -1, dtype=np.int64)
+        self.left_at_once = np.zeros((count, gears), dtype=np.bool_)
+
+    def settle(self, rows: IntArray, speeds: FloatArray, how: str) -> None:
+        self.settled[rows] = speeds
+        for c in rows.tolist():
+            self.settled_by[c] = how
+
+
+def _gear(
+    car: _Car,
+    g: int,
+    rows: IntArray,
+    shift_speed: FloatArray,
+    shift_rpm: FloatArray | None,
+    state: _State,
+    sink: RunSink,
+    launching: bool,
+) -> BoolArray:
+    """Drive rows through gear index ``g``; returns which rows go on to shift."""
+    model = car.model
+    v_in, v_top = state.v[rows], np.minimum(shift_speed, MAX_SPEED_M_S)
+    grid = v_in[:, None] + (v_top - v_in)[:, None] * _EVEN
+    grid[:, -1] = v_top
+    valid = np.full(rows.size, POINTS_PER_GEAR, dtype=np.int64)
+    if launching and model.launch.coupling is Coupling.CLUTCH:
+        grid, valid = _with_launch_lock(model, grid, car.ratio[rows, g])
+    a, rpm, limited = car.net(g, rows, grid, launching)
+    v_end = v_top.copy()
+    if shift_rpm is not None:
+        # leave the gear when the engine reaches the shift rpm: with a slipping converter
+        # that comes before the coupled speed of the shift rpm
+        due = rpm >= shift_rpm[:, None] * (1.0 - 1e-9)
+        k = np.argmax(due, axis=1)
+        cut = due.any(axis=1) & (k > 0) & (k < valid - 1)
+        if cut.any():
+            km = np.maximum(k - 1, 0)
+            r0, r1 = _pick(rpm, km), _pick(rpm, k)
+            frac = np.where(cut, (shift_rpm - r0) / np.where(cut, r1 - r0, 1.0), 0.0)
+            v_cut = _pick(grid, km) + frac * (_pick(grid, k) - _pick(grid, km))
+            a_cut = _pick(a, km) + frac * (_pick(a, k) - _pick(a, km))
+            v_end = np.where(cut, v_cut, v_end)
+            ends = [v_cut, a_cut, shift_rpm]
+            _cut([grid, a, rpm], k, cut, ends)
+            after = cut[:, None] & (np.arange(grid.shape[1])[None, :] >= k[:, None])
+            limited = np.where(after, limited[np.arange(k.size), km][:, None], limited)
+    weak = a <= 0.0
+    kw = np.argmax(weak, axis=1)
+    stuck = weak.any(axis=1) & (kw == 0)
+    drag = weak.any(axis=1) & (kw > 0)
+    if stuck.any():
+        # no acceleration where the gear is entered: the car cannot move off (before any
+        # motion), or this gear cannot pull it after a shift and the run ends here
+        first = stuck & (state.t[rows] == 0.0)
+        state.moved[rows[first]] = False
+        state.stalled[rows[stuck & ~first]] = g
+        state.active[rows[stuck]] = False
+    go: BoolArray = ~stuck & ~drag
+    if go.any():
+        step = np.diff(grid[go], axis=1)
+        inv = 1.0 / a[go]
+        t = state.t[rows[go]][:, None] + _cumulative(inv, step)
+        x = state.x[rows[go]][:, None] + _cumulative(grid[go] * inv, step)
+        sink.gear(GearBlock(rows[go], g, t, grid[go], x, rpm[go], a[go], limited[go]))
+        moving = rows[go]
+        state.t[moving], state.x[moving], state.v[moving] = t[:, -1], x[:, -1], v_end[go]
+        state.n[moving] = rpm[go][:, -1]
+    if drag.any():
+        d_rows = rows[drag]
+        km = np.maximum(kw - 1, 0)[drag]
+        lo, hi = _pick(grid[drag], km), _pick(grid[drag], kw[drag])
+        v_star = _drag_limited_speed(car, g, d_rows, lo, hi, launching)
+        block = _approach(
+            car, g, d_rows, v_in[drag], v_star, (state.t[d_rows], state.x[d_rows]), launching
+        )
+        sink.gear(block)
+        state.t[d_rows], state.x[d_rows] = block.time_s[:, -1], block.distance_m[:, -1]
+        state.v[d_rows], state.n[d_rows] = block.speed_m_s[:, -1], block.engine_rpm[:, -1]
+        state.settle(d_rows, v_star, "drag")
+        state.active[d_rows] = False
+    return go
+
+
+def _shift(car: _Car, g: int, rows: IntArray, state: _State) -> ShiftBlock:
+    """The shift out of gear index ``g``: no drive for shift_time_s."""
+    model = car.model
+    ts = model.launch.shift_time_s
+    v_out, t0, x0, rpm_before = state.v[rows], state.t[rows], state.x[rows], state.n[rows]
+    decel = model.vehicle.road_load.force_n(v_out) / model.vehicle.mass_kg
+    v_after = np.maximum(v_out - decel * ts, 0.0)
+    n_after = v_after * car.ratio[rows, g + 1] / (model.tire.rolling_radius_m * RPM_TO_RAD_S)
+    x_after = x0 + 0.5 * (v_out + v_after) * ts
+    block = ShiftBlock(
+        rows, g, t0, v_out, x0, rpm_before, t0 + ts, v_after, x_after, n_after, decel
+    )
+    state.t[rows], state.x[rows], state.v[rows] = t0 + ts, x_after, v_after
+    state.n[rows], state.gear[rows] = n_after, g + 1
+    return block
+
+
+def _hold(car: _Car, state: _State, start: RunStart, sink: RunSink) -> None:
+    """Carry settled rows on at their last speed over the rest of the distance asked."""
+    hold = np.flatnonzero(np.isfinite(state.settled) & (state.x < start.cover_distance_m))
+    if hold.size == 0:
+        return
+    v = state.v[hold]
+    extra = (start.cover_distance_m - state.x[hold]) / np.maximum(v, 1e-9)
+    t = np.stack([state.t[hold], state.t[hold] + extra], axis=1)
+    x = np.stack([state.x[hold], np.full(hold.size, start.cover_distance_m)], axis=1)
+    vv = np.stack([v, v], axis=1)
+    rpm = np.stack([state.n[hold], state.n[hold]], axis=1)
+    zero = np.zeros((hold.size, 2))
+    for g in np.unique(state.gear[hold]).tolist():
+        k = state.gear[hold] == g
+        sink.gear(GearBlock(hold[k], g, t[k], vv[k], x[k], rpm[k], zero[k], zero[k] > 0.0))
+
+
+def integrate_runs(
+    model: DriveModel,
+    overall_ratio: FloatArray,
+    masses: tuple[FloatArray, FloatArray],
+    shift_rpm: FloatArray,
+    start: RunStart,
+    sink: RunSink,
+) -> RunEnds:
+    """Integrate full-throttle runs of one car with each row's gearing.
+
+    Parameters
+    ----------
+    model : DriveModel
+        The car (engine, converter, tires, road load, traction limit, shift time).
+    overall_ratio : ndarray, shape (c, g)
+        Overall ratio of each row in each gear [-].
+    masses : tuple of ndarray, shapes (c, g) and (c,)
+        Effective mass in each gear and mass while the engine slips, per row [kg].
+    shift_rpm : ndarray, shape (g - 1,) or (c, g - 1)
+        Engine speed at which to leave each gear [rpm], checked; the same for every row,
+        or one row of them per run.
+    start : RunStart
+        Start speed and gear, and how far to go.
+    sink : RunSink
+        Receives the trace block by block.
+
+    Returns
+    -------
+    RunEnds
+    """
+    count, gears = overall_ratio.shape
+    car = _Car(model, overall_ratio, masses[0], masses[1])
+    r = model.tire.rolling_radius_m
+    limits = np.empty((count, gears))
+    limits[:, :-1] = shift_rpm
+    limits[:, -1] = model.rev_limit_rpm
+    shift_speed = limits * RPM_TO_RAD_S * r / overall_ratio
+    state = _State(count, gears, start)
+    target_v = min(max(start.cover_speed_m_s, 0.0), MAX_SPEED_M_S)
+    for g in range(start.gear, gears):
+        idx = np.flatnonzero(state.active)
+        if idx.size == 0:
+            break
+        top = g == gears - 1
+        launching = start.speed_m_s == 0.0 and g == start.gear
+        v_top = shift_speed[idx, g]
+        state.n[idx] = state.v[idx] * overall_ratio[idx, g] / (r * RPM_TO_RAD_S)
+        skip = np.zeros(idx.size, dtype=np.bool_)
+        if not top:  # a gear entered above its own shift speed is left at once
+            skip = state.v[idx] >= np.minimum(v_top, MAX_SPEED_M_S)
+            state.left_at_once[idx[skip], g] = True
+        driven = np.flatnonzero(~skip)
+        if driven.size:
+            rows = idx[driven]
+            shift = None if top else limits[rows, g]
+            go = _gear(car, g, rows, v_top[driven], shift, state, sink, launching)
+            rows = rows[go]
+            held = rows if top else rows[state.v[rows] >= MAX_SPEED_M_S * (1 - 1e-12)]
+            state.settle(held, state.v[held], "rev_limit")
+            state.active[held] = False
+            finished = (state.x[rows] >= start.cover_distance_m) & (state.v[rows] >= target_v)
+            state.active[rows[finished]] = False
+        shifting = idx[state.active[idx]]
+        if shifting.size and not top:
+            sink.shift(_shift(car, g, shifting, state))
+    _hold(car, state, start, sink)
+    return RunEnds(
+        moved=state.moved,
+        settled_m_s=state.settled,
+        settled_by=tuple(state.settled_by),
+        stalled_gear=state.stalled,
+        left_at_once=state.left_at_once,
+    )

@@ -1,0 +1,337 @@
+"""The shift plan: gear tables plus the shift for every gear change, from wheel force."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+
+from core.converter.drive import ConverterDrive, converter_input
+from core.driveline.drivetrain import Drivetrain
+from core.driveline.gearing import GearTable, gear_tables, road_speed_m_s, rpm_grid
+from core.driveline.tires import Tire
+from core.engine.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
+from core.errors import CurveError
+from core.shifts.best import ShiftReason, best_shifts
+
+__all__ = ["Notice", "ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan"]
+
+FloatArray = NDArray[np.float64]
+
+
+@dataclass(frozen=True)
+class Notice:
+    """Something the caller should know about a result.
+
+    Attributes
+    ----------
+    code : str
+        Stable identifier, e.g. ``"rev_limit_clipped"``.
+    message : str
+        One plain sentence.
+    parameter : str or None
+        The core argument concerned, if any.
+    """
+
+    code: str
+    message: str
+    parameter: str | None = None
+
+
+@dataclass(frozen=True)
+class ShiftPoint:
+    """One gear change.
+
+    Attributes
+    ----------
+    from_gear, to_gear : int
+        Gear numbers, 1 for first.
+    shift_rpm : float
+        Engine speed at the shift [rpm].
+    shift_speed_m_s : float
+        Road speed at the shift [m/s].
+    rpm_after : float
+        Engine speed after the shift, shift_rpm * ratio_next / ratio_current [rpm] (with a
+        slipping torque converter, the engine speed it settles at in the next gear).
+    rpm_drop : float
+        shift_rpm - rpm_after [rpm].
+    reason : ShiftReason
+        Force crossover or rev limit.
+    force_before_n, force_after_n : float
+        Tractive force just before and just after the shift [N].
+    crossings : int
+        Number of points in the gears' shared range where the next gear overtakes.
+    coincident_rpm : tuple of float or None
+        Band of shift rpm where both gears give the same force, if any.
+    intersections : int
+        How many times the two gears' curves intersect in the shared range, either way.
+    overtake_rpm : tuple of float
+        Engine rpm in the current gear at each point where the next gear overtakes.
+    """
+
+    from_gear: int
+    to_gear: int
+    shift_rpm: float
+    shift_speed_m_s: float
+    rpm_after: float
+    rpm_drop: float
+    reason: ShiftReason
+    force_before_n: float
+    force_after_n: float
+    crossings: int
+    coincident_rpm: tuple[float, float] | None
+    intersections: int = 0
+    overtake_rpm: tuple[float, ...] = ()
+
+
+@dataclass(frozen=True)
+class ShiftPlan:
+    """Gear tables and shifts for one curve, drivetrain and tire.
+
+    Attributes
+    ----------
+    gears : tuple of GearTable
+        One table per forward gear.
+    shifts : tuple of ShiftPoint
+        One per gear change (gear count - 1).
+    rev_limit_rpm : float
+        Rev limit used [rpm], after clipping to the curve.
+    efficiency_applied : bool
+        False for a chassis-dyno curve, which is already net of driveline losses.
+    peak_torque_rpm, peak_power_rpm : float
+        Where the curve peaks [rpm].
+    peak_torque_nm, peak_power_w : float
+        The peaks themselves [N*m, W].
+    notices : tuple of Notice
+        Warnings about the inputs or the result.
+    """
+
+    gears: tuple[GearTable, ...]
+    shifts: tuple[ShiftPoint, ...]
+    rev_limit_rpm: float
+    efficiency_applied: bool
+    peak_torque_rpm: float
+    peak_power_rpm: float
+    peak_torque_nm: float
+    peak_power_w: float
+    notices: tuple[Notice, ...]
+
+
+def resolve_rev_limit(
+    curve: TorqueCurve, rev_limit_rpm: float | None
+) -> tuple[float, tuple[Notice, ...]]:
+    """The rev limit to use: the caller's, clipped to the curve's last point.
+
+    Parameters
+    ----------
+    curve : TorqueCurve
+        The torque curve.
+    rev_limit_rpm : float or None
+        Caller's rev limit [rpm]; None means the curve's last point.
+
+    Returns
+    -------
+    tuple of (float, tuple of Notice)
+        The rev limit [rpm] and any notice about clipping.
+
+    Raises
+    ------
+    CurveError
+        When the rev limit is not finite or does not exceed the curve's first point.
+    """
+    if rev_limit_rpm is None:
+        return curve.rpm_max, ()
+    if not math.isfinite(rev_limit_rpm) or rev_limit_rpm <= curve.rpm_min:
+        raise CurveError(
+            f"`rev_limit_rpm` must be above the curve's first point ({curve.rpm_min:g} rpm), "
+            f"got {rev_limit_rpm:g}",
+            parameter="rev_limit_rpm",
+        )
+    if rev_limit_rpm > curve.rpm_max:
+        note = Notice(
+            "rev_limit_clipped",
+            f"Rev limit {rev_limit_rpm:g} rpm is above the curve's last point; the plan "
+            f"stops at {curve.rpm_max:g} rpm (the curve is not extrapolated).",
+            "rev_limit_rpm",
+        )
+        return curve.rpm_max, (note,)
+    return float(rev_limit_rpm), ()
+
+
+def shift_plan(
+    curve: TorqueCurve,
+    drivetrain: Drivetrain,
+    tire: Tire,
+    *,
+    rev_limit_rpm: float | None = None,
+    rpm_step: float | None = None,
+    converter: ConverterDrive | None = None,
+) -> ShiftPlan:
+    """Gear tables and wheel-force shift points.
+
+    With a torque converter the tables and the force comparison count its torque ratio at
+    the speed ratio it runs at; each shift is found in gearbox input (turbine) speed, which
+    is proportional to road speed, and reported at the engine speed the tachometer shows.
+
+    Parameters
+    ----------
+    curve : TorqueCurve
+        Torque over engine speed; a chassis curve is used without efficiency.
+    drivetrain : Drivetrain
+        Gear ratios, final drive, extra reduction and efficiency.
+    tire : Tire
+        Driven tires.
+    rev_limit_rpm : float, optional
+        Rev limit [rpm]; defaults to the curve's last point and is clipped to it.
+    rpm_step : float, optional
+        Row spacing of the gear tables [rpm]; default the curve's own points.
+    converter : ConverterDrive, optional
+        The torque converter and its lock-up gears, if the drivetrain has one.
+
+    Returns
+    -------
+    ShiftPlan
+
+    Examples
+    --------
+    >>> from core.engine.curves import torque_curve_from_torque, Interpolation
+    >>> from core.driveline.drivetrain import make_drivetrain
+    >>> from core.driveline.tires import tire_from_diameter
+    >>> c = torque_curve_from_torque([1000, 4000, 7000], [350, 200, 50],
+    ...                              interpolation=Interpolation.LINEAR)
+    >>> p = shift_plan(c, make_drivetrain([3.0, 2.0], 1.0), tire_from_diameter(0.6))
+    >>> round(p.shifts[0].shift_rpm, 3), round(p.shifts[0].rpm_after, 3)
+    (4800.0, 3200.0)
+    """
+    limit, notices = resolve_rev_limit(curve, rev_limit_rpm)
+    notes = list(notices)
+    chassis = curve.source is CurveSource.CHASSIS
+    efficiency = np.ones(drivetrain.gear_count) if chassis else drivetrain.efficiency
+    if chassis and np.any(drivetrain.efficiency != 1.0):
+        notes.append(
+            Notice(
+                "efficiency_not_applied",
+                "The curve is from a chassis dyno and already net of driveline losses; the "
+                "given efficiency is not applied again.",
+                "efficiency",
+            )
+        )
+    rows = rpm_grid(curve, limit, rpm_step)
+    tables = gear_tables(curve, drivetrain, tire, rows, efficiency, converter)
+    ratios = drivetrain.overall_ratios
+    r = tire.rolling_radius_m
+    k_cur = ratios[:-1] * efficiency[:-1] / r
+    k_next = ratios[1:] * efficiency[1:] / r
+    step = ratios[1:] / ratios[:-1]
+
+    def input_torque(gear: int, n: FloatArray) -> FloatArray:
+        if converter is None:
+            return curve.torque_at(n)
+        return converter_input(converter, curve, limit, gear, n).torque_nm
+
+    def one_torque(gear: int, n: float) -> float:
+        # without a converter the scalar path: the same arithmetic, none of the array setup
+        if converter is None:
+            return torque(n)
+        return float(input_torque(gear, np.array([n]))[0])
+
+    def engine_rpm(gear: int, n: float) -> float:
+        if converter is None:
+            return n
+        return float(converter_input(converter, curve, limit, gear, np.array([n])).engine_rpm[0])
+
+    def efforts(n: FloatArray) -> tuple[FloatArray, FloatArray]:
+        if converter is None:
+            return (
+                k_cur[:, None] * curve.torque_at(n),
+                k_next[:, None] * curve.torque_at(n * step[:, None]),
+            )
+        cur = np.stack([k_cur[k] * input_torque(k, n[k]) for k in range(step.size)])
+        nxt = np.stack([k_next[k] * input_torque(k + 1, n[k] * step[k]) for k in range(step.size)])
+        return cur, nxt
+
+    kc: list[float] = k_cur.tolist()
+    kn: list[float] = k_next.tolist()
+    qs: list[float] = step.tolist()
+    torque = curve.torque_scalar
+
+    def diff_scalar(k: int, n: float) -> float:
+        return kc[k] * torque(n) - kn[k] * torque(n * qs[k])
+
+    low = curve.rpm_min / step
+    choices = best_shifts(
+        efforts, diff_scalar if converter is None else None, low, np.full(step.size, limit)
+    )
+    shifts = []
+    for i, choice in enumerate(choices):
+        g1 = float(ratios[i])
+        q = qs[i]
+        turbine = choice.shift_rpm
+        n_s = engine_rpm(i, turbine)
+        after = engine_rpm(i + 1, turbine * q)
+        if after < curve.rpm_min:
+            notes.append(
+                Notice(
+                    "gear_gap",
+                    f"Shifting {i + 1}-{i + 2} at the rev limit drops the engine to "
+                    f"{after:.0f} rpm, below the curve's first point ({curve.rpm_min:g} rpm); "
+                    "the force after the shift is taken at that point.",
+                    "gear_ratios",
+                )
+            )
+        if choice.coincident_rpm is not None:
+            lo, hi = choice.coincident_rpm
+            notes.append(
+                Notice(
+                    "coincident_force",
+                    f"Gears {i + 1} and {i + 2} give the same tractive force from {lo:.0f} "
+                    f"to {hi:.0f} rpm; any shift in that band is equally quick.",
+                )
+            )
+        if choice.crossings > 1:
+            notes.append(
+                Notice(
+                    "multiple_crossovers",
+                    f"Gears {i + 1} and {i + 2} cross {choice.crossings} times; the shift "
+                    "that crosses their shared speed range quickest was chosen.",
+                )
+            )
+        if choice.below_range:
+            notes.append(
+                Notice(
+                    "next_gear_stronger",
+                    f"Gear {i + 2} pulls harder than gear {i + 1} wherever both are on the "
+                    "curve; shift as soon as the next gear reaches the curve's first point.",
+                )
+            )
+        shifts.append(
+            ShiftPoint(
+                from_gear=i + 1,
+                to_gear=i + 2,
+                shift_rpm=n_s,
+                shift_speed_m_s=float(road_speed_m_s(turbine, g1, r)),
+                rpm_after=after,
+                rpm_drop=n_s - after,
+                reason=choice.reason,
+                force_before_n=kc[i] * one_torque(i, turbine),
+                force_after_n=kn[i] * one_torque(i + 1, turbine * q),
+                crossings=choice.crossings,
+                coincident_rpm=choice.coincident_rpm,
+                intersections=choice.intersections,
+                overtake_rpm=tuple(engine_rpm(i, x) for x in choice.overtake_rpm),
+            )
+        )
+    torque_rpm, power_rpm = curve.peak_torque_rpm(), curve.peak_power_rpm()
+    return ShiftPlan(
+        gears=tables,
+        shifts=tuple(shifts),
+        rev_limit_rpm=limit,
+        efficiency_applied=not chassis,
+        peak_torque_rpm=torque_rpm,
+        peak_power_rpm=power_rpm,
+        peak_torque_nm=curve.torque_scalar(torque_rpm),
+        peak_power_w=curve.torque_scalar(power_rpm) * power_rpm * RPM_TO_RAD_S,
+        notices=tuple(notes),
+    )

@@ -1,0 +1,4 @@
+"""The HTTP edge.
+
+Admission, limits, caching, headers, negotiation, problems, observability, OpenAPI.
+"""

@@ -1,0 +1,211 @@
+"""Core results to response documents in the caller's units (NumPy arrays kept for orjson)."""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Mapping
+from typing import Any
+
+import numpy as np
+from numpy.typing import NDArray
+
+from core import (
+    DriveModel,
+    Drivetrain,
+    GearTable,
+    Notice,
+    ShiftPlan,
+    Tire,
+    TorqueCurve,
+    cruise_rpm,
+    top_speed,
+)
+from core.car.gradeability import MAX_GRADE_ANGLE_DEG, GradeLimit, gradeability
+from service.mapping.inputs import request_field
+from service.output.cautions import CAUTIONS
+from service.units import Quantity, UnitSystem, from_si, unit_labels
+
+__all__ = [
+    "grade_notices",
+    "notices_out",
+    "performance_document",
+    "rounded",
+    "shift_plan_document",
+    "tire_document",
+]
+
+FloatArray = NDArray[np.float64]
+
+
+def rounded(values: FloatArray | float, digits: int = 3) -> Any:
+    """Round for display; arrays stay NumPy arrays (orjson writes them directly)."""
+    if isinstance(values, np.ndarray):
+        return np.round(values, digits)
+    return round(float(values), digits)
+
+
+def notices_out(notices: Iterable[Notice], fields: Mapping[str, str]) -> list[dict[str, Any]]:
+    """Warnings with the request field each concerns."""
+    return [
+        {"code": n.code, "message": n.message, "field": request_field(n.parameter, fields)}
+        for n in notices
+    ]
+
+
+def tire_document(tire: Tire, units: UnitSystem) -> dict[str, Any]:
+    """The tire as used, in the caller's length unit."""
+
+    def length(x: float) -> float:
+        return rounded(from_si(x, Quantity.LENGTH, units), 2)  # type: ignore[no-any-return]
+
+    return {
+        "size": tire.designation,
+        "diameter": None if tire.free_diameter_m is None else length(tire.free_diameter_m),
+        "rolling_radius": length(tire.rolling_radius_m),
+        "circumference": length(tire.circumference_m),
+        "revs_per_mile": rounded(tire.revs_per_mile, 2),
+        "revs_per_km": rounded(tire.revs_per_km, 2),
+    }
+
+
+def _converter_columns(table: GearTable) -> dict[str, Any]:
+    """A converter gear's engine rpm and torque ratio per row; nothing without a converter."""
+    if table.engine_rpm is None or table.torque_ratio is None:
+        return {}
+    return {
+        "engine_rpm": rounded(table.engine_rpm, 1),
+        "torque_ratio": rounded(table.torque_ratio, 4),
+    }
+
+
+def shift_plan_document(
+    plan: ShiftPlan,
+    curve: TorqueCurve,
+    drivetrain: Drivetrain,
+    tire: Tire,
+    units: UnitSystem,
+    fields: Mapping[str, str],
+) -> dict[str, Any]:
+    """The body of a shift-plan response, without reference and summary."""
+    speed, force, torque, power = Quantity.SPEED, Quantity.FORCE, Quantity.TORQUE, Quantity.POWER
+    tables = plan.gears
+    # every gear's columns converted and rounded together, one array operation per quantity
+    v = rounded(from_si(np.stack([g.speed_m_s for g in tables]), speed, units), 2)
+    wt = rounded(from_si(np.stack([g.wheel_torque_nm for g in tables]), torque, units), 1)
+    tf = rounded(from_si(np.stack([g.tractive_force_n for g in tables]), force, units), 1)
+    wp = rounded(from_si(np.stack([g.wheel_power_w for g in tables]), power, units), 2)
+    rpm = rounded(tables[0].rpm, 1)
+    gears = [
+        {
+            "gear": g.gear,
+            "ratio": ratio,
+            "overall_ratio": round(g.overall_ratio, 4),
+            "efficiency": g.efficiency,
+            "max_speed": round(from_si(g.max_speed_m_s, speed, units), 2),
+            "table": {
+                "rpm": rpm,
+                "speed": v[i],
+                "wheel_torque": wt[i],
+                "tractive_force": tf[i],
+                "wheel_power": wp[i],
+                **_converter_columns(g),
+            },
+        }
+        for i, (g, ratio) in enumerate(zip(tables, drivetrain.gear_ratios.tolist(), strict=True))
+    ]
+    shifts = [
+        {
+            "from_gear": s.from_gear,
+            "to_gear": s.to_gear,
+            "shift_rpm": round(s.shift_rpm, 1),
+            "shift_speed": round(from_si(s.shift_speed_m_s, speed, units), 2),
+            "reason": s.reason.value,
+            "rpm_after": round(s.rpm_after, 1),
+            "rpm_drop": round(s.rpm_drop, 1),
+            "force_before": round(from_si(s.force_before_n, force, units), 1),
+            "force_after": round(from_si(s.force_after_n, force, units), 1),
+            "crossings": s.crossings,
+            "intersections": s.intersections,
+            "overtake_rpm": [rounded(x, 1) for x in s.overtake_rpm],
+            "coincident_rpm": None
+            if s.coincident_rpm is None
+            else [round(s.coincident_rpm[0], 1), round(s.coincident_rpm[1], 1)],
+        }
+        for s in plan.shifts  # plain floats (core's fields), rounded without a helper
+    ]
+    t_peak, p_peak = plan.peak_torque_nm, plan.peak_power_w
+    return {
+        "units": unit_labels(units),
+        "engine": {
+            "source": curve.source.value,
+            "efficiency_applied": plan.efficiency_applied,
+            "rev_limit_rpm": rounded(plan.rev_limit_rpm, 1),
+            "curve_rpm_min": rounded(curve.rpm_min, 1),
+            "peak_torque": rounded(from_si(t_peak, torque, units), 2),
+            "peak_torque_rpm": rounded(plan.peak_torque_rpm, 1),
+            "peak_power": rounded(from_si(p_peak, power, units), 2),
+            "peak_power_rpm": rounded(plan.peak_power_rpm, 1),
+            "table": {
+                "rpm": rpm,
+                "torque": rounded(from_si(tables[0].engine_torque_nm, torque, units), 2),
+                "power": rounded(from_si(tables[0].engine_power_w, power, units), 2),
+            },
+        },
+        "tire": tire_document(tire, units),
+        "gears": gears,
+        "shifts": shifts,
+        "warnings": notices_out(plan.notices, fields),
+        "cautions": list(CAUTIONS),
+    }
+
+
+def grade_notices(limits: tuple[GradeLimit, ...]) -> list[Notice]:
+    """Say where grip, or the stated cap, rather than the drive force sets the gradeability."""
+    out = []
+    grip = [i + 1 for i, lim in enumerate(limits) if lim is GradeLimit.GRIP]
+    capped = [i + 1 for i, lim in enumerate(limits) if lim is GradeLimit.CAP]
+    if grip:
+        out.append(
+            Notice(
+                "gradeability_grip_limited",
+                f"Gradeability in gear {', '.join(map(str, grip))} is set by the tires' grip on "
+                "the slope (weight transfer counted), not by the drive force.",
+                "friction_coefficient",
+            )
+        )
+    if capped:
+        out.append(
+            Notice(
+                "gradeability_capped",
+                f"Gradeability in gear {', '.join(map(str, capped))} reaches the reported "
+                f"maximum of {MAX_GRADE_ANGLE_DEG:g} degrees before drive or grip run out.",
+            )
+        )
+    return out
+
+
+def performance_document(
+    model: DriveModel, plan: ShiftPlan, cruise_speeds_m_s: list[float], units: UnitSystem
+) -> tuple[dict[str, Any], list[Notice]]:
+    """Top speed, gradeability, cruise rpm and grip of a described car, and its notices."""
+    top = top_speed(model)
+    grade = gradeability(model)
+    doc = {
+        "top_speed": {
+            "speed": round(from_si(top.speed_m_s, Quantity.SPEED, units), 2),
+            "gear": top.gear,
+            "limited_by": top.limited_by,
+        },
+        "gradeability": rounded(grade.grade_percent, 2),
+        "gradeability_speed": rounded(from_si(grade.speed_m_s, Quantity.SPEED, units), 2),
+        "gradeability_limited_by": [lim.value for lim in grade.limited_by],
+        "cruise": [
+            {
+                "speed": round(from_si(v, Quantity.SPEED, units), 2),
+                "rpm": rounded(cruise_rpm(model, v), 0),
+            }
+            for v in cruise_speeds_m_s
+        ],
+        "traction_limit": round(from_si(model.traction_limit_n, Quantity.FORCE, units), 1),
+        "force_crossover_rpm": [round(s.shift_rpm, 1) for s in plan.shifts],
+    }
+    return doc, grade_notices(grade.limited_by)
