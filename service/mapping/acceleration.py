@@ -10,7 +10,7 @@ import numpy as np
 from core import OptimalShifts, RunReport, TimedDistance, TimedSpeed, sample_trace
 from core.runs.report import QUARTER_MILE_M
 from core.runs.simulate import DriveModel
-from service.mapping.shift_plan import notices_out, rounded
+from service.mapping.documents import notices_out, rounded
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels

@@ -32,16 +32,9 @@ from core import (
 )
 from core.runs.report import QUARTER_MILE_M
 from service.mapping.acceleration import run_document
-from service.mapping.inputs import (
-    DRIVETRAIN_FIELDS,
-    ENGINE_FIELDS,
-    build_curve,
-    build_drivetrain,
-    build_tire,
-    core_fields,
-)
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
 from service.mapping.shift_plan import performance_document, shift_plan_document
-from service.mapping.vehicle import LAUNCH_FIELDS, VEHICLE_FIELDS, build_launch, build_vehicle
+from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.schemas.acceleration import AccelerationRunRequest, RunOptions
 from service.schemas.shift_plan import ShiftPlanRequest
 from service.schemas.vehicle import LaunchIn
@@ -59,17 +52,11 @@ __all__ = [
 
 # core parameter -> request field, for errors and warnings
 PLAN_FIELDS = {
-    **ENGINE_FIELDS,
-    **DRIVETRAIN_FIELDS,
-    **VEHICLE_FIELDS,
-    **LAUNCH_FIELDS,
+    **CAR_FIELDS,
     "rpm_step": "table.rpm_step",
 }
 RUN_FIELDS = {
-    **ENGINE_FIELDS,
-    **DRIVETRAIN_FIELDS,
-    **VEHICLE_FIELDS,
-    **LAUNCH_FIELDS,
+    **CAR_FIELDS,
     "shift_rpm": "shifts.rpm",
     "start_speed_m_s": "run.start_speed",
     "start_gear": "run.start_gear",

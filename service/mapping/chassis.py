@@ -8,7 +8,7 @@ from typing import Any
 import numpy as np
 
 from core.driveline.chassis import ChassisConversion
-from service.mapping.shift_plan import notices_out, rounded
+from service.mapping.documents import notices_out, rounded
 from service.output.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 

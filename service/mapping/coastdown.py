@@ -6,7 +6,7 @@ from collections.abc import Mapping
 from typing import Any
 
 from core.car.coast_down import REFERENCE_PRESSURE_PA, REFERENCE_TEMPERATURE_K, CoastDownFit
-from service.mapping.shift_plan import notices_out
+from service.mapping.documents import notices_out
 from service.output.cautions import CAUTIONS
 from service.output.sheets import summary_sheet, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels

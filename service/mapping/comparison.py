@@ -1,49 +1,219 @@
-"""Comparison results to response documents and a printable summary, in the caller's
-units; the summary helpers shared by the gear-choice and design sheets."""
+"""Comparison requests to core setups and back: the base setup and each variant's, in SI
+(naming a variant's own field on error), their figures computed, and the response document
+in the caller's units, with each setup's engine curve and each variant's change against
+the base."""
 
 from __future__ import annotations
 
-import math
-import re
-import textwrap
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
 from typing import Any
 
-from core.choice.setups import SetupFigures
+import numpy as np
+
+from core.choice.setups import Setup, SetupFigures, setup_figures
+from core.engine.curves import RPM_TO_RAD_S
+from core.runs.performance import ShiftCriterion
 from core.shifts.plan import Notice
-from service.mapping.comparison_curves import (
-    curve_notices,
-    curves_summary,
-    engine_document,
-    peak_numbers,
+from service.mapping.documents import (
+    notices_out,
+    rounded,
+    seconds_out,
+    speed_out,
+    tire_document,
 )
-from service.mapping.setups import NamedSetup
-from service.mapping.shift_plan import notices_out, rounded, tire_document
+from service.mapping.inputs import (
+    build_curve,
+    build_drivetrain,
+    build_tire,
+    check_ratio_floor,
+    core_fields,
+    renamed_fields,
+    renamed_path,
+)
+from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS
-from service.output.sheets import WIDTH, summary_sheet, wrap_text
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+from service.schemas.comparison import OVERRIDES, ComparisonRequest, VariantIn
+from service.schemas.vehicle import LaunchIn
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
 __all__ = [
-    "cell",
+    "COMPARISON_FIELDS",
+    "Comparison",
+    "NamedSetup",
+    "build_setups",
+    "compare_setups",
     "comparison_document",
-    "comparison_summary",
-    "seconds_out",
-    "speed_out",
+    "curve_notices",
+    "has_own_curve",
+    "numbers_delta",
+    "peak_numbers",
+    "setup_numbers",
 ]
 
+COMPARISON_FIELDS: Mapping[str, str] = {
+    **CAR_FIELDS,
+    "start_speed_m_s": "vehicle",  # a car that cannot move off from rest
+}
+
+# a variant's replaced input -> the base request path it replaces
+_REPLACED = {
+    "final_drive_ratio": "drivetrain.final_drive_ratio",
+    "gear_ratios": "drivetrain.gear_ratios",
+    "tire": "drivetrain.tire",
+    "rev_limit_rpm": "engine.rev_limit_rpm",
+    "mass": "vehicle.mass",
+    "converter": "launch.converter",
+    "curve": "engine.curve",
+}
+
+
+@dataclass(frozen=True)
+class NamedSetup:
+    """A setup of a comparison with its label, what it replaces and its field paths."""
+
+    name: str
+    changes: tuple[str, ...]
+    setup: Setup
+    renames: Mapping[str, str]
+
+
+def _setup(body: ComparisonRequest, variant: VariantIn | None, units: UnitSystem) -> Setup:
+    own_curve = None if variant is None else variant.curve
+    curve = build_curve(own_curve or body.engine.curve, units)
+    drive_in, vehicle_in, launch_in = body.drivetrain, body.vehicle, body.launch
+    rev_limit = body.engine.rev_limit_rpm
+    if variant is not None:
+        update = {
+            k: getattr(variant, k)
+            for k in ("final_drive_ratio", "gear_ratios", "tire")
+            if getattr(variant, k) is not None
+        }
+        drive_in = drive_in.model_copy(update=update)
+        if variant.rev_limit_rpm is not None:
+            rev_limit = variant.rev_limit_rpm
+        if vehicle_in is not None and variant.mass is not None:
+            vehicle_in = vehicle_in.model_copy(update={"mass": variant.mass})
+        if variant.converter is not None:
+            launch_in = (launch_in or LaunchIn()).model_copy(
+                update={"coupling": "converter", "converter": variant.converter}
+            )
+    vehicle = None if vehicle_in is None else build_vehicle(vehicle_in, units)
+    launch = None if vehicle is None else build_launch(launch_in or LaunchIn(), curve, units)
+    return Setup(
+        curve=curve,
+        drivetrain=build_drivetrain(drive_in),
+        tire=build_tire(drive_in.tire, units),
+        rev_limit_rpm=rev_limit,
+        vehicle=vehicle,
+        launch=launch,
+    )
+
+
+def build_setups(body: ComparisonRequest) -> list[NamedSetup]:
+    """The base setup, then each variant's, as core setups."""
+    check_ratio_floor(body.drivetrain)
+    out = [NamedSetup("base", (), _setup(body, None, body.units), {})]
+    for i, variant in enumerate(body.variants):
+        changes = tuple(name for name in OVERRIDES if getattr(variant, name) is not None)
+        renames = {_REPLACED[name]: f"variants[{i}].{name}" for name in changes}
+        with renamed_fields(renames):
+            setup = _setup(body, variant, body.units)
+        out.append(NamedSetup(variant.name or f"variant {i + 1}", changes, setup, renames))
+    return out
+
+
+@dataclass(frozen=True)
+class Comparison:
+    """The setups compared, the figures of each and the cruise speeds [m/s] used."""
+
+    setups: Sequence[NamedSetup]
+    figures: Sequence[SetupFigures]
+    cruise_speeds_m_s: Sequence[float]
+
+
+def compare_setups(body: ComparisonRequest) -> Comparison:
+    """The figures of the base setup and of each variant (core errors become 422 problems
+    naming the variant's own field where it replaced the base's)."""
+    setups = build_setups(body)
+    speeds = [to_si(v, Quantity.SPEED, body.units) for v in body.cruise_speeds]
+    criterion = ShiftCriterion(body.shift_criterion)
+    figures = []
+    for named in setups:
+        with renamed_fields(named.renames), core_fields(COMPARISON_FIELDS):
+            figures.append(
+                setup_figures(named.setup, criterion=criterion, cruise_speeds_m_s=speeds)
+            )
+    return Comparison(setups, figures, speeds)
+
+
+def has_own_curve(named: NamedSetup) -> bool:
+    """Whether a setup brings its own engine curve (the base always does)."""
+    return not named.changes or "curve" in named.changes
+
+
+def peak_numbers(fig: SetupFigures, units: UnitSystem) -> dict[str, float]:
+    """The curve's peaks in the caller's units, unrounded (what a delta is taken of)."""
+    plan = fig.plan
+    return {
+        "peak_torque": float(from_si(plan.peak_torque_nm, Quantity.TORQUE, units)),
+        "peak_torque_rpm": plan.peak_torque_rpm,
+        "peak_power": float(from_si(plan.peak_power_w, Quantity.POWER, units)),
+        "peak_power_rpm": plan.peak_power_rpm,
+    }
+
+
+def engine_document(named: NamedSetup, fig: SetupFigures, units: UnitSystem) -> dict[str, Any]:
+    """A setup's ``engine`` block: source, peaks, and its curve's points if its own."""
+    curve = named.setup.curve
+    peaks = peak_numbers(fig, units)
+    points = None
+    if has_own_curve(named):
+        power_w = curve.torque_nm * curve.rpm * RPM_TO_RAD_S
+        points = {
+            "rpm": rounded(np.asarray(curve.rpm), 1),
+            "torque": rounded(from_si(np.asarray(curve.torque_nm), Quantity.TORQUE, units), 3),
+            "power": rounded(from_si(np.asarray(power_w), Quantity.POWER, units), 3),
+        }
+    return {
+        "source": curve.source.value,
+        "peak_torque": round(peaks["peak_torque"], 2),
+        "peak_torque_rpm": round(peaks["peak_torque_rpm"], 0),
+        "peak_power": round(peaks["peak_power"], 2),
+        "peak_power_rpm": round(peaks["peak_power_rpm"], 0),
+        "curve": points,
+    }
+
+
+def curve_notices(setups: Sequence[NamedSetup]) -> list[list[Notice]]:
+    """Per setup, a warning when its own curve was measured elsewhere than the base's (one
+    at the crank, the other at the wheels): their peak deltas mix the two."""
+    base = setups[0].setup.curve.source
+    out: list[list[Notice]] = []
+    for i, named in enumerate(setups):
+        mine = named.setup.curve.source
+        if i == 0 or not has_own_curve(named) or mine is base:
+            out.append([])
+            continue
+        out.append(
+            [
+                Notice(
+                    "curve_source_differs",
+                    f"{named.name}: its curve was measured at the {_where(mine)} and the "
+                    f"base's at the {_where(base)}; the peak deltas compare the two as "
+                    "measured.",
+                    f"variants[{i - 1}].curve",
+                )
+            ]
+        )
+    return out
+
+
+def _where(source: object) -> str:
+    return "wheels" if getattr(source, "value", "") == "chassis" else "crankshaft"
+
+
 Number = float | None
-
-
-def speed_out(v: float | None, units: UnitSystem, digits: int = 2) -> float | None:
-    """A road speed [m/s] in the caller's unit, rounded; None for a missing one."""
-    if v is None or not math.isfinite(v):
-        return None
-    return round(from_si(float(v), Quantity.SPEED, units), digits)
-
-
-def seconds_out(t: float | None) -> float | None:
-    """A time [s] to the millisecond; None for a missing one."""
-    return None if t is None or not math.isfinite(t) else round(float(t), 3)
 
 
 def _minus(a: Number, b: Number, digits: int) -> Number:
@@ -52,10 +222,8 @@ def _minus(a: Number, b: Number, digits: int) -> Number:
 
 def _renamed(items: list[dict[str, Any]], renames: Mapping[str, str]) -> list[dict[str, Any]]:
     for item in items:
-        for old, new in renames.items():
-            field = item.get("field")
-            if field is not None and re.match(rf"^{re.escape(old)}(?=$|[.\[])", field):
-                item["field"] = new + field[len(old) :]
+        if item.get("field") is not None:
+            item["field"] = renamed_path(item["field"], renames)
     return items
 
 
@@ -68,7 +236,7 @@ def _timed(fig: SetupFigures, name: str) -> tuple[Number, Number]:
     return None, None
 
 
-def _numbers(fig: SetupFigures, units: UnitSystem) -> dict[str, Any]:
+def setup_numbers(fig: SetupFigures, units: UnitSystem) -> dict[str, Any]:
     """The figures a delta is taken of, unrounded, in the caller's units."""
     speed = Quantity.SPEED
     sixty, _ = _timed(fig, "60 ft")
@@ -101,7 +269,7 @@ def _numbers(fig: SetupFigures, units: UnitSystem) -> dict[str, Any]:
     }
 
 
-def _delta(mine: dict[str, Any], base: dict[str, Any]) -> dict[str, Any]:
+def numbers_delta(mine: dict[str, Any], base: dict[str, Any]) -> dict[str, Any]:
     out: dict[str, Any] = {}
     for key, value in mine.items():
         digits = 1 if "rpm" in key else 3
@@ -147,18 +315,15 @@ def _round(value: Number, digits: int) -> Number:
 
 
 def comparison_document(
-    setups: Sequence[NamedSetup],
-    figures: Sequence[SetupFigures],
-    cruise_speeds_m_s: Sequence[float],
-    units: UnitSystem,
-    fields: Mapping[str, str],
+    comparison: Comparison, units: UnitSystem, fields: Mapping[str, str]
 ) -> dict[str, Any]:
     """The body of a comparison response, without reference, criterion and summary."""
-    base = _numbers(figures[0], units)
+    setups, figures = comparison.setups, comparison.figures
+    base = setup_numbers(figures[0], units)
     out = []
     own_notices = curve_notices(setups)
     for named, fig, own in zip(setups, figures, own_notices, strict=True):
-        s, numbers = named.setup, _numbers(fig, units)
+        s, numbers = named.setup, setup_numbers(fig, units)
         ratios = s.drivetrain.overall_ratios.tolist()
         out.append(
             {
@@ -198,88 +363,12 @@ def comparison_document(
                         "rpm": rounded(row, 0),
                         "top_gear_rpm": round(float(row[-1]), 0),
                     }
-                    for v, row in zip(cruise_speeds_m_s, fig.cruise_rpm, strict=True)
+                    for v, row in zip(comparison.cruise_speeds_m_s, fig.cruise_rpm, strict=True)
                 ],
                 "run": _run(fig, numbers),
-                "delta": None if not named.changes else _delta(numbers, base),
+                "delta": None if not named.changes else numbers_delta(numbers, base),
                 "warnings": _renamed(notices_out(fig.notices, fields), named.renames)
                 + notices_out(own, fields),
             }
         )
     return {"units": unit_labels(units), "setups": out, "cautions": list(CAUTIONS)}
-
-
-def cell(value: Number, width: int, fmt: str, signed: bool = False) -> str:
-    """A number right-aligned in ``width`` columns, ``-`` for a missing one."""
-    if value is None or not math.isfinite(value):
-        return "-".rjust(width)
-    return format(value, ("+" if signed else "") + fmt).rjust(width)
-
-
-def comparison_summary(
-    setups: Sequence[NamedSetup],
-    figures: Sequence[SetupFigures],
-    cruise_speeds_m_s: Sequence[float],
-    units: UnitSystem,
-    reference: str | None,
-) -> str:
-    """The comparison as a printable sheet of at most 80 columns."""
-    lab = unit_labels(units)
-    spd, lng = lab["speed"], lab["length"]
-    numbers = [_numbers(f, units) for f in figures]
-    cruise_v = speed_out(cruise_speeds_m_s[0], units, 0) if cruise_speeds_m_s else None
-    columns: list[tuple[str, int, str, Callable[[dict[str, Any]], Number]]] = [
-        ("Reach", 6, ".1f", lambda n: n["speed_at_rev_limit"][-1]),
-    ]
-    if cruise_v is not None:
-        columns.append((f"rpm@{cruise_v:g}", 7, ".0f", lambda n: n["cruise_top_gear_rpm"][0]))
-    if figures[0].report is not None:
-        columns += [
-            ("60ft", 5, ".2f", lambda n: n["sixty_ft"]),
-            (
-                ("0-60", 5, ".2f", lambda n: n["zero_to_60_mph"])
-                if units is UnitSystem.US
-                else ("0-100", 5, ".2f", lambda n: n["zero_to_100_kmh"])
-            ),
-            ("1/4", 6, ".2f", lambda n: n["quarter_mile_elapsed"]),
-            ("Trap", 6, ".1f", lambda n: n["quarter_mile_trap_speed"]),
-            ("Top", 6, ".1f", lambda n: n["top_speed"]),
-        ]
-    legend = "Reach: top gear at the rev limit; "
-    if cruise_v is not None:
-        legend += f"rpm@: top gear at {cruise_v:g} {spd}; "
-    legend += f"speeds in {spd}, tire diameter in {lng}"
-    if figures[0].report is not None:
-        sprint = "0-60 mph" if units is UnitSystem.US else "0-100 km/h"
-        legend += f"; times in s (60 ft, {sprint}, 1/4 mile); Top: top speed"
-    body = ["", *wrap_text(legend + ".")]
-    body += [""]
-    head = f"{'Setup':<12} {'Axle':>5} {'Tire':>6}" + "".join(
-        f" {h:>{w}}" for h, w, _, _ in columns
-    )
-    body.append(head)
-    for named, n in zip(setups, numbers, strict=True):
-        dia = 2.0 * from_si(named.setup.tire.rolling_radius_m, Quantity.LENGTH, units)
-        row = f"{named.name[:12]:<12} {named.setup.drivetrain.final_drive_ratio:>5.2f} {dia:>6.1f}"
-        body.append(row + "".join(f" {cell(get(n), w, f)}" for _, w, f, get in columns))
-    if len(setups) > 1:
-        body += ["", "Change against base:"]
-        for named, n in zip(setups[1:], numbers[1:], strict=True):
-            d = _delta(n, numbers[0])
-            body.append(
-                f"{named.name[:25]:<25}"
-                + "".join(f" {cell(get(d), w, f, signed=True)}" for _, w, f, get in columns)
-            )
-    body += curves_summary(setups, figures, units)
-    body += ["", "Shifts 1-2, 2-3, ... (rpm at the shift > rpm after it):"]
-    for named, fig in zip(setups, figures, strict=True):
-        text = "  ".join(f"{p.shift_rpm:.0f}>{p.rpm_after:.0f}" for p in fig.shifts)
-        body += textwrap.wrap(
-            f"{named.name[:12]:<12} {text or 'one gear, no shifts'}",
-            WIDTH,
-            subsequent_indent=" " * 13,
-        )
-    notices: list[Notice] = []
-    for fig, own in zip(figures, curve_notices(setups), strict=True):
-        notices += [x for x in (*fig.notices, *own) if x not in notices]
-    return summary_sheet("GEARWORK SETUP COMPARISON", reference, body, notices)

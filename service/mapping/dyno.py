@@ -17,9 +17,8 @@ from core.errors import DynoFileError
 from core.readers.encoding import decode_export
 from service.bounds import bound_violations
 from service.http.problems import ProblemError, field_path
-from service.mapping.inputs import build_tire
-from service.mapping.setups import renamed_fields
-from service.mapping.shift_plan import notices_out, rounded
+from service.mapping.documents import notices_out, rounded
+from service.mapping.inputs import build_tire, renamed_fields
 from service.schemas.common import ApiModel
 from service.schemas.inputs import TireIn
 from service.units import Quantity, UnitSystem, from_si, unit_labels

@@ -1,26 +1,138 @@
-"""Final-drive sweep results to a response document and a printable summary, in the
-caller's units."""
+"""Final-drive sweep requests to core inputs in SI, the sweep run, and its results to a
+response document and a printable summary in the caller's units."""
 
 from __future__ import annotations
 
 import math
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
+from numpy.typing import NDArray
 
-from core.choice.sweep import FinalDriveSweep
-from core.choice.sweep_spec import Rejection, SweepConstraints, SweepObjective
+from core.choice.sweep import FinalDriveSweep, sweep_final_drives
+from core.choice.sweep_spec import (
+    CruiseTarget,
+    Rejection,
+    SweepConstraints,
+    SweepObjective,
+    final_drive_range,
+)
 from core.runs.batch_timing import BatchTimedDistance
-from service.mapping.comparison import cell, seconds_out, speed_out
-from service.mapping.shift_plan import notices_out, rounded
+from service.http.problems import ProblemError
+from service.mapping.documents import notices_out, rounded, seconds_out, speed_out
+from service.mapping.inputs import (
+    build_curve,
+    build_drivetrain,
+    build_tire,
+    check_ratio_floor,
+    core_fields,
+)
+from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS
-from service.output.sheets import summary_sheet, wrap_text
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+from service.output.sheets import cell, summary_sheet, wrap_text
+from service.schemas.final_drive import FinalDriveSweepRequest, SweepConstraintsIn
+from service.schemas.vehicle import LaunchIn
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
-__all__ = ["sweep_document", "sweep_summary"]
+__all__ = [
+    "SWEEP_FIELDS",
+    "SweptRatios",
+    "sweep_candidates",
+    "sweep_constraints",
+    "sweep_cruise_target",
+    "sweep_document",
+    "sweep_ratios",
+    "sweep_summary",
+]
 
+FloatArray = NDArray[np.float64]
 Number = float | None
+SWEEP_FIELDS: Mapping[str, str] = {
+    **CAR_FIELDS,
+    "start_speed_m_s": "vehicle",  # a car that cannot move off from rest
+    "low": "ratio_range.low",
+    "high": "ratio_range.high",
+    "step": "ratio_range.step",
+    "shift_rpm": "shift_rpm",
+    "vehicle": "vehicle",
+    "cruise_target": "cruise_target",
+    "max_cruise_rpm": "constraints.cruise.max_rpm",
+    "cruise_speed_m_s": "constraints.cruise.speed",
+    "min_top_speed_m_s": "constraints.min_top_speed",
+    "min_rpm_after_shift": "constraints.min_rpm_after_shift",
+    "speed_m_s": "cruise_target.speed",
+}
+
+
+def sweep_candidates(body: FinalDriveSweepRequest) -> FloatArray:
+    """The candidate ratios: the list given, or the range spelled out."""
+    if body.ratios is not None:
+        return np.asarray(body.ratios, dtype=np.float64)
+    r = body.ratio_range
+    if r is None:  # the request model requires one of the two
+        raise ProblemError(422, "give `ratios` or `ratio_range`", field="ratios")
+    with core_fields(SWEEP_FIELDS):
+        return final_drive_range(r.low, r.high, r.step)
+
+
+def sweep_constraints(body: SweepConstraintsIn, units: UnitSystem) -> SweepConstraints:
+    """The sweep's constraints in SI."""
+    speed = Quantity.SPEED
+    cruise = body.cruise
+    return SweepConstraints(
+        max_cruise_rpm=None if cruise is None else cruise.max_rpm,
+        cruise_speed_m_s=None if cruise is None else to_si(cruise.speed, speed, units),
+        min_top_speed_m_s=None
+        if body.min_top_speed is None
+        else to_si(body.min_top_speed, speed, units),
+        min_rpm_after_shift=body.min_rpm_after_shift,
+    )
+
+
+def sweep_cruise_target(body: FinalDriveSweepRequest) -> CruiseTarget | None:
+    """The cruise target in SI, if any."""
+    target = body.cruise_target
+    if target is None:
+        return None
+    return CruiseTarget(to_si(target.speed, Quantity.SPEED, body.units), target.rpm)
+
+
+@dataclass(frozen=True)
+class SweptRatios:
+    """A final-drive sweep with the constraints it was ranked under, in SI."""
+
+    sweep: FinalDriveSweep
+    limits: SweepConstraints
+
+
+def sweep_ratios(body: FinalDriveSweepRequest) -> SweptRatios:
+    """What POST /v1/final-drive-sweep computes (core errors become 422 problems)."""
+    u = body.units
+    check_ratio_floor(body.drivetrain)
+    curve = build_curve(body.engine.curve, u)
+    drivetrain, tire = build_drivetrain(body.drivetrain), build_tire(body.drivetrain.tire, u)
+    vehicle = None if body.vehicle is None else build_vehicle(body.vehicle, u)
+    launch = None if vehicle is None else build_launch(body.launch or LaunchIn(), curve, u)
+    limits = sweep_constraints(body.constraints, u)
+    rollout = 0.3048 if body.rollout is None else to_si(body.rollout, Quantity.LENGTH, u)
+    with core_fields({**SWEEP_FIELDS, "final_drive_ratio": "ratios"}):
+        sweep = sweep_final_drives(
+            curve,
+            drivetrain,
+            tire,
+            sweep_candidates(body),
+            SweepObjective(body.objective),
+            vehicle=vehicle,
+            launch=launch,
+            rev_limit_rpm=body.engine.rev_limit_rpm,
+            shift_rpm=body.shift_rpm,
+            constraints=limits,
+            cruise_target=sweep_cruise_target(body),
+            rollout_m=rollout,
+        )
+    return SweptRatios(sweep, limits)
 
 
 _OBJECTIVE_TEXT = {

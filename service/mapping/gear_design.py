@@ -1,18 +1,217 @@
-"""Gear-spacing and speedometer results to response documents and printable summaries."""
+"""Gear-spacing and speedometer requests to core results in SI (naming fields on error),
+and those results to response documents in the caller's units."""
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
 from typing import Any
 
-from core.shifts.plan import Notice
-from service.mapping.gear_design_inputs import GearSetStudy, SpeedometerStudy
-from service.mapping.shift_plan import notices_out, rounded, tire_document
-from service.output.cautions import CAUTIONS, SPEEDOMETER_CAUTIONS, SPEEDOMETER_SHORT_CAUTION
-from service.output.sheets import summary_sheet, wrap_text
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+import numpy as np
+from numpy.typing import NDArray
 
-__all__ = ["spacing_document", "spacing_summary", "speedometer_document", "speedometer_summary"]
+from core.driveline.landing import LandingAnalysis, LandingBand, landing_analysis
+from core.driveline.spacing import (
+    ShiftLandings,
+    geometric_gear_set,
+    max_progression_factor,
+    progressive_gear_set,
+    shift_landings,
+)
+from core.driveline.speedometer import (
+    DistanceReadings,
+    DrivenGearChange,
+    SpeedometerCorrection,
+    SpeedometerDrive,
+    SpeedReadings,
+    driven_gear_change,
+    odometer_readings,
+    speed_readings,
+    speedometer_correction,
+    speedometer_setup,
+)
+from core.driveline.tires import Tire
+from core.engine.curves import TorqueCurve
+from core.shifts.plan import Notice, resolve_rev_limit
+from service.http.problems import ProblemError
+from service.mapping.documents import notices_out, rounded, tire_document
+from service.mapping.inputs import (
+    ENGINE_FIELDS,
+    build_curve,
+    build_tire,
+    core_fields,
+    renamed_fields,
+)
+from service.output.cautions import CAUTIONS, SPEEDOMETER_CAUTIONS
+from service.schemas.gear_design import GearSpacingRequest, SpeedometerRequest
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
+
+__all__ = [
+    "DEFAULT_DISTANCES",
+    "DEFAULT_SPEEDS",
+    "SPACING_FIELDS",
+    "GearSetStudy",
+    "SpeedometerStudy",
+    "gear_set_studies",
+    "spacing_document",
+    "speedometer_document",
+    "speedometer_study",
+]
+
+FloatArray = NDArray[np.float64]
+DEFAULT_PROGRESSION = 1.1
+DEFAULT_SPEEDS = {
+    UnitSystem.METRIC: (50.0, 80.0, 100.0, 120.0, 130.0),
+    UnitSystem.US: (30.0, 45.0, 55.0, 65.0, 75.0),
+}
+DEFAULT_DISTANCES = (100.0, 1000.0, 10000.0)
+SPACING_FIELDS: Mapping[str, str] = {
+    **ENGINE_FIELDS,
+    "first_ratio": "spacing.first_ratio",
+    "top_ratio": "spacing.top_ratio",
+    "gear_count": "spacing.gear_count",
+    "progression_factor": "spacing.progression_factor",
+    "gear_ratios": "gear_ratios",
+    "shift_rpm": "shift_rpm",
+    "band": "landing_band_rpm",
+}
+
+
+@dataclass(frozen=True)
+class GearSetStudy:
+    """One gear set with its landings and, given a curve, their distance from the peaks."""
+
+    name: str
+    gear_ratios: FloatArray
+    progression_factor: float | None
+    landings: ShiftLandings
+    analysis: LandingAnalysis | None
+
+
+def _band(body: GearSpacingRequest) -> LandingBand | tuple[float, float]:
+    if body.landing_band_rpm is not None:
+        return (body.landing_band_rpm[0], body.landing_band_rpm[1])
+    return LandingBand(body.landing_band)
+
+
+def _shift_rpm(
+    body: GearSpacingRequest, curve: TorqueCurve | None
+) -> tuple[float | list[float], list[Notice]]:
+    if body.shift_rpm is not None:
+        return (body.shift_rpm[0] if len(body.shift_rpm) == 1 else list(body.shift_rpm)), []
+    if curve is None or body.engine is None:  # the request model asks for one of them
+        raise ProblemError(
+            422, "give `shift_rpm`, or `engine` for its rev limit", field="shift_rpm"
+        )
+    limit, notes = resolve_rev_limit(curve, body.engine.rev_limit_rpm)
+    return limit, list(notes)
+
+
+def gear_set_studies(
+    body: GearSpacingRequest,
+) -> tuple[list[GearSetStudy], float | None, list[Notice]]:
+    """The geometric, progressive and given sets with their landings, the largest usable
+    progression factor for the spacing's ends, and notices."""
+    curve = None if body.engine is None else build_curve(body.engine.curve, body.units)
+    sets: list[tuple[str, FloatArray, float | None]] = []
+    limit_factor = None
+    with core_fields(SPACING_FIELDS):
+        shift, notes = _shift_rpm(body, curve)
+        if body.spacing is not None:
+            sp = body.spacing
+            ends = (sp.first_ratio, sp.top_ratio, sp.gear_count)
+            limit_factor = max_progression_factor(*ends)
+            psi = sp.progression_factor
+            if psi is None:
+                psi = min(DEFAULT_PROGRESSION, math.sqrt(limit_factor))
+                notes.append(
+                    Notice(
+                        "progression_factor_chosen",
+                        f"The progressive set uses a progression factor of {psi:.4g}; the "
+                        f"largest usable for these ends is {limit_factor:.4g}.",
+                        "progression_factor",
+                    )
+                )
+            prog = progressive_gear_set(*ends, progression_factor=psi)
+            sets.append(("geometric", geometric_gear_set(*ends).gear_ratios, 1.0))
+            sets.append(("progressive", prog.gear_ratios, psi))
+        if body.gear_ratios is not None:
+            sets.append(("given", np.asarray(body.gear_ratios, dtype=np.float64), None))
+        studies = []
+        for name, ratios, factor in sets:
+            analysis = None
+            if curve is not None:
+                analysis = landing_analysis(curve, ratios, shift, band=_band(body))
+                notes += [n for n in analysis.notices if n not in notes]
+            landings = shift_landings(ratios, shift) if analysis is None else analysis.landings
+            studies.append(GearSetStudy(name, ratios, factor, landings, analysis))
+    if limit_factor is not None and math.isinf(limit_factor):
+        limit_factor = None  # two gears: one step, the factor plays no part
+    return studies, limit_factor, notes
+
+
+@dataclass(frozen=True)
+class SpeedometerStudy:
+    """The correction, the tires as used, and the readings corrected."""
+
+    correction: SpeedometerCorrection
+    original_tire: Tire
+    new_tire: Tire
+    speeds: SpeedReadings
+    distances: DistanceReadings
+    driven_gear: DrivenGearChange | None
+    notices: tuple[Notice, ...]
+    axle_given: bool = True  # False: no ratio was sent and 1.0 stands in (it cancels)
+
+
+def speedometer_study(body: SpeedometerRequest) -> SpeedometerStudy:
+    """Correct the readings of a speedometer after a tire or axle change."""
+    u = body.units
+    with renamed_fields({"drivetrain.tire": "original.tire"}):
+        old_tire = build_tire(body.original.tire, u)
+    new_tire = old_tire
+    if body.new.tire is not None:
+        with renamed_fields({"drivetrain.tire": "new.tire"}):
+            new_tire = build_tire(body.new.tire, u)
+    old_axle = body.original.final_drive_ratio or 1.0
+    new_axle = body.new.final_drive_ratio or old_axle
+    drive = SpeedometerDrive(body.drive)
+    notes = []
+    if drive is SpeedometerDrive.WHEEL and new_axle != old_axle:
+        notes.append(
+            Notice(
+                "axle_change_not_seen",
+                "A wheel-speed sensor does not see the axle ratio; only the tire change "
+                "affects the reading.",
+                "final_drive_ratio",
+            )
+        )
+    speeds = DEFAULT_SPEEDS[u] if body.indicated_speeds is None else body.indicated_speeds
+    lengths = DEFAULT_DISTANCES if body.indicated_distances is None else body.indicated_distances
+    with core_fields({"rolling_radius_m": "new.tire", "driven_teeth": "driven_teeth"}):
+        correction = speedometer_correction(
+            speedometer_setup(old_tire, old_axle),
+            speedometer_setup(new_tire, new_axle),
+            drive=drive,
+        )
+        readings = speed_readings(
+            correction, to_si(np.asarray(speeds, dtype=np.float64), Quantity.SPEED, u)
+        )
+        odometer = odometer_readings(correction, np.asarray(lengths, dtype=np.float64))
+        teeth = None
+        if body.driven_teeth is not None:
+            teeth = driven_gear_change(correction, body.driven_teeth)
+    return SpeedometerStudy(
+        correction,
+        old_tire,
+        new_tire,
+        readings,
+        odometer,
+        teeth,
+        tuple(notes),
+        axle_given=body.original.final_drive_ratio is not None,
+    )
 
 
 def _maybe(values: Any, i: int, digits: int) -> float | None:
@@ -86,44 +285,6 @@ def spacing_document(
     }
 
 
-def spacing_summary(
-    studies: Sequence[GearSetStudy], notices: Sequence[Notice], reference: str | None
-) -> str:
-    """The gear sets and their landings as a printable sheet of at most 80 columns."""
-    body: list[str] = []
-    for study in studies:
-        ratios = ", ".join(f"{r:.3f}" for r in study.gear_ratios.tolist())
-        factor = (
-            "" if study.progression_factor is None else f", factor {study.progression_factor:.4g}"
-        )
-        body += ["", *wrap_text(f"{study.name.capitalize()} set{factor}: {ratios}")]
-        an = study.analysis
-        head = (
-            f"{'Shift':>5}  {'Step':>6}  {'At rpm':>6}  {'Lands':>6}  {'Drop':>5}  {'Drop %':>6}"
-        )
-        if an is not None:
-            head += f"  {'vs Tq pk':>8}  {'vs Pw pk':>8}  Band"
-        body.append(head)
-        lan = study.landings
-        for i, gear in enumerate(lan.from_gear.tolist()):
-            row = (
-                f"{gear:>3}-{gear + 1:<1}  {lan.steps[i]:>6.3f}  {lan.shift_rpm[i]:>6.0f}  "
-                f"{lan.landing_rpm[i]:>6.0f}  {lan.rpm_drop[i]:>5.0f}  {lan.drop_percent[i]:>6.1f}"
-            )
-            if an is not None:
-                row += (
-                    f"  {an.from_torque_peak_rpm[i]:>+8.0f}  {an.from_power_peak_rpm[i]:>+8.0f}  "
-                    + ("in" if an.in_band[i] else "out")
-                )
-            body.append(row)
-        if an is not None:
-            body.append(
-                f"Torque peak {an.peak_torque_rpm:.0f} rpm, power peak {an.peak_power_rpm:.0f} "
-                f"rpm; band {an.band_low_rpm:.0f}-{an.band_high_rpm:.0f} rpm."
-            )
-    return summary_sheet("GEARWORK GEAR SPACING", reference, body, notices)
-
-
 def _setup_out(study: SpeedometerStudy, new: bool, units: UnitSystem) -> dict[str, Any]:
     setup = study.correction.new if new else study.correction.original
     return {
@@ -174,59 +335,3 @@ def speedometer_document(study: SpeedometerStudy, units: UnitSystem) -> dict[str
         "warnings": notices_out(study.notices, {"final_drive_ratio": "new.final_drive_ratio"}),
         "cautions": list(SPEEDOMETER_CAUTIONS),
     }
-
-
-def speedometer_summary(study: SpeedometerStudy, units: UnitSystem, reference: str | None) -> str:
-    """The correction as a printable sheet of at most 80 columns."""
-    c = study.correction
-    spd, lng = unit_labels(units)["speed"], unit_labels(units)["length"]
-
-    def tire(t: Any) -> str:
-        dia = 2.0 * from_si(t.rolling_radius_m, Quantity.LENGTH, units)
-        size = f"{t.designation} " if t.designation else ""
-        return f"{size}tire of {dia:.1f} {lng} rolling diameter"
-
-    where = "transmission output" if c.drive.value == "transmission_output" else "a wheel sensor"
-    body = [""]
-    body += wrap_text(f"Signal from {where}.")
-    if study.axle_given:
-        body += wrap_text(
-            f"Calibrated for {tire(study.original_tire)}, axle {c.original.final_drive_ratio:g}; "
-            f"now {tire(study.new_tire)}, axle {c.new.final_drive_ratio:g}."
-        )
-    else:
-        body += wrap_text(
-            f"Calibrated for {tire(study.original_tire)}; now {tire(study.new_tire)}."
-        )
-    sense = "high" if c.reading_error_percent > 0 else "low"
-    body += wrap_text(
-        f"The instrument reads {abs(c.reading_error_percent):.2f} % {sense}: true speed is "
-        f"{c.true_per_indicated:.4f} x the reading. Multiply the pulses-per-distance setting "
-        f"(or the driven/drive teeth ratio) by {c.pulses_per_distance_factor:.4f}."
-    )
-    body += ["", f"{'Indicated':>10}  {'True':>8}  ({spd})"]
-    s = study.speeds
-    for i, t in zip(
-        from_si(s.indicated_m_s, Quantity.SPEED, units).tolist(),
-        from_si(s.true_m_s, Quantity.SPEED, units).tolist(),
-        strict=True,
-    ):
-        body.append(f"{i:>10.1f}  {t:>8.1f}")
-    d = study.distances
-    body += ["", f"{'Odometer':>10}  {'True':>8}  (the odometer's own unit)"]
-    for i, t in zip(d.indicated_m.tolist(), d.true_m.tolist(), strict=True):
-        body.append(f"{i:>10.1f}  {t:>8.1f}")
-    gear = study.driven_gear
-    if gear is not None:
-        body.append("")
-        body += wrap_text(
-            f"Driven gear: {gear.original_teeth} teeth now; {gear.exact_teeth:.2f} would read "
-            f"true; {gear.nearest_teeth} teeth leaves {gear.residual_error_percent:+.2f} %."
-        )
-    return summary_sheet(
-        "GEARWORK SPEEDOMETER CORRECTION",
-        reference,
-        body,
-        study.notices,
-        caution=SPEEDOMETER_SHORT_CAUTION,
-    )

@@ -27,7 +27,19 @@ from service.http.problems import ProblemError
 from service.schemas.inputs import CurveIn, DrivetrainIn, TireIn
 from service.units import Quantity, UnitSystem, from_si, to_si, unit_label
 
-__all__ = ["build_curve", "build_drivetrain", "build_tire", "core_fields", "request_field"]
+__all__ = [
+    "DRIVETRAIN_FIELDS",
+    "ENGINE_FIELDS",
+    "MIN_RATIO",
+    "build_curve",
+    "build_drivetrain",
+    "build_tire",
+    "check_ratio_floor",
+    "core_fields",
+    "renamed_fields",
+    "renamed_path",
+    "request_field",
+]
 
 _INDEXED = re.compile(r"^(?P<name>[a-z_]+)(?P<index>(\[\d+\])*)$")
 
@@ -49,6 +61,7 @@ DRIVETRAIN_FIELDS: Mapping[str, str] = {
     "revs_per_km": "drivetrain.tire.revs_per_km",
     "rolling_factor": "drivetrain.tire.rolling_factor",
 }
+MIN_RATIO = 0.01  # no gearbox or axle has a smaller ratio
 
 
 def request_field(parameter: str | None, fields: Mapping[str, str]) -> str | None:
@@ -98,6 +111,44 @@ def core_fields(fields: Mapping[str, str], units: UnitSystem | None = None) -> I
         if units is not None:
             message = in_callers_units(message, units)
         raise ProblemError(422, message, field=field) from exc
+
+
+def renamed_path(field: str, renames: Mapping[str, str]) -> str:
+    """A request path with a replaced base field's prefix swapped for the field that
+    replaced it (``drivetrain.tire.size`` -> ``variants[0].tire.size``)."""
+    for old, new in renames.items():
+        if re.match(rf"^{re.escape(old)}(?=$|[.\[])", field):
+            field = new + field[len(old) :]
+    return field
+
+
+@contextmanager
+def renamed_fields(renames: Mapping[str, str]) -> Iterator[None]:
+    """Point a problem raised inside the block at the variant's own field when the base
+    field it names was replaced by the variant."""
+    try:
+        yield
+    except ProblemError as exc:
+        field = None if exc.field is None else renamed_path(exc.field, renames)
+        detail = exc.detail
+        for old, new in renames.items():
+            detail = re.sub(rf"`{re.escape(old)}(?=[`.\[])", f"`{new}", detail)
+        raise ProblemError(exc.status, detail, field=field, slug=exc.slug) from exc
+
+
+def check_ratio_floor(drivetrain: DrivetrainIn) -> None:
+    """Reject ratios below 0.01, naming the field: no gearbox or axle has one, and road
+    speeds from such a ratio overflow."""
+    named = [(f"drivetrain.gear_ratios[{i}]", r) for i, r in enumerate(drivetrain.gear_ratios)]
+    named += [
+        ("drivetrain.final_drive_ratio", drivetrain.final_drive_ratio),
+        ("drivetrain.extra_reduction", drivetrain.extra_reduction),
+    ]
+    for field, value in named:
+        if value < MIN_RATIO:
+            raise ProblemError(
+                422, f"`{field}` must be >= {MIN_RATIO:g}, got {value:g}", field=field
+            )
 
 
 def build_curve(curve: CurveIn, units: UnitSystem) -> TorqueCurve:

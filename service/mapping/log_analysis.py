@@ -1,21 +1,36 @@
-"""A checked pass to its response document and an 80-column printable summary."""
+"""Log-analysis requests to a core pass log (and the model's shift rpm) in SI, and a
+checked pass to its response document and an 80-column printable summary."""
 
 from __future__ import annotations
 
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
+from core import Drivetrain, Tire, acceleration_shifts, drive_model, shift_plan
 from core.logs.check import PassAnalysis
-from core.logs.pass_data import PassLog
+from core.logs.pass_data import AccelerationUnit, LogDataError, PassLog, SpeedUnit, pass_log
 from core.logs.shift import LoggedShift
-from core.logs.text import LogText
-from service.mapping.log_analysis_inputs import ModelShifts
-from service.mapping.shift_plan import notices_out
+from core.logs.text import LogText, read_log_text
+from service.http.problems import ProblemError
+from service.mapping.documents import notices_out
+from service.mapping.inputs import build_curve, core_fields
+from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.sheets import printable, title_line, wrap_text
+from service.schemas.log_analysis import LogAnalysisRequest, LogIn
+from service.schemas.vehicle import LaunchIn
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
-__all__ = ["VERDICT_RULE", "log_analysis_document", "log_summary"]
+__all__ = [
+    "LOG_FIELDS",
+    "VERDICT_RULE",
+    "ModelShifts",
+    "build_pass_log",
+    "log_analysis_document",
+    "log_summary",
+    "model_shifts",
+]
 
 G = 9.80665  # [m/s^2]; accelerations are reported in g, as in the acceleration-run trace
 VERDICT_RULE = (
@@ -25,6 +40,85 @@ VERDICT_RULE = (
     "of the target speed (the same share in rpm), or where both gears pull alike at the "
     "shift; early below, late above."
 )
+
+
+LOG_FIELDS: Mapping[str, str] = {
+    "time": "log.time",
+    "speed": "log.speed",
+    "rpm": "log.rpm",
+    "acceleration": "log.acceleration",
+    "tolerance": "options.tolerance_percent",
+    "smoothing_window_s": "options.smoothing_window",
+    "start_gear": "options.start_gear",
+    "rev_limit_rpm": "options.rev_limit_rpm",
+}
+
+
+def build_pass_log(body: LogIn, units: UnitSystem) -> tuple[PassLog, LogText | None]:
+    """The core pass of the request's log, and the text's reading if text was sent.
+
+    Text errors name ``log.text:line N, column M``; array errors the channel and index.
+    """
+    if body.text is not None:
+        try:
+            text = read_log_text(body.text)
+        except LogDataError as exc:
+            where = "log.text"
+            if exc.line is not None:
+                where += f":line {exc.line}" + (
+                    "" if exc.column is None else f", column {exc.column}"
+                )
+            raise ProblemError(422, exc.message, field=where) from exc
+        return text.log, text
+    default = SpeedUnit.KM_H if units is UnitSystem.METRIC else SpeedUnit.MPH
+    with core_fields(LOG_FIELDS):
+        log = pass_log(
+            body.time or [],
+            body.speed or [],
+            speed_unit=default if body.speed_unit is None else SpeedUnit(body.speed_unit),
+            rpm=body.rpm,
+            acceleration=body.acceleration,
+            acceleration_unit=AccelerationUnit(body.acceleration_unit),
+        )
+    return log, None
+
+
+@dataclass(frozen=True)
+class ModelShifts:
+    """The model's shift rpm per gear change, the criterion and the rev limit used.
+
+    Attributes
+    ----------
+    rpm : list of float
+        Shift rpm for each gear change (empty without an engine) [rpm].
+    criterion : str or None
+        ``tractive_force`` or ``net_acceleration``; None without an engine.
+    rev_limit_rpm : float or None
+        Rev limit the verdicts use [rpm].
+    """
+
+    rpm: list[float]
+    criterion: str | None
+    rev_limit_rpm: float | None
+
+
+def model_shifts(body: LogAnalysisRequest, drivetrain: Drivetrain, tire: Tire) -> ModelShifts:
+    """Shift rpm of the wheel-force plan, or of net acceleration with a vehicle."""
+    if body.engine is None:
+        return ModelShifts([], None, body.options.rev_limit_rpm)
+    units = body.units
+    curve = build_curve(body.engine.curve, units)
+    limit = body.engine.rev_limit_rpm or body.options.rev_limit_rpm
+    with core_fields(CAR_FIELDS):
+        plan = shift_plan(curve, drivetrain, tire, rev_limit_rpm=limit)
+        if body.vehicle is None:
+            rpm = [s.shift_rpm for s in plan.shifts]
+            return ModelShifts(rpm, "tractive_force", plan.rev_limit_rpm)
+        vehicle = build_vehicle(body.vehicle, units)
+        launch = build_launch(LaunchIn(), curve, units)
+        model = drive_model(curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=limit)
+        rpm = [c.shift_rpm for c in acceleration_shifts(model)]
+        return ModelShifts(rpm, "net_acceleration", model.rev_limit_rpm)
 
 
 def _speed(v: float | None, units: UnitSystem) -> float | None:

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Mapping
+from collections.abc import Mapping
 from typing import Any
 
 import numpy as np
@@ -20,51 +20,13 @@ from core import (
     top_speed,
 )
 from core.car.gradeability import MAX_GRADE_ANGLE_DEG, GradeLimit, gradeability
-from service.mapping.inputs import request_field
+from service.mapping.documents import notices_out, rounded, tire_document
 from service.output.cautions import CAUTIONS
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
-__all__ = [
-    "grade_notices",
-    "notices_out",
-    "performance_document",
-    "rounded",
-    "shift_plan_document",
-    "tire_document",
-]
+__all__ = ["grade_notices", "performance_document", "shift_plan_document"]
 
 FloatArray = NDArray[np.float64]
-
-
-def rounded(values: FloatArray | float, digits: int = 3) -> Any:
-    """Round for display; arrays stay NumPy arrays (orjson writes them directly)."""
-    if isinstance(values, np.ndarray):
-        return np.round(values, digits)
-    return round(float(values), digits)
-
-
-def notices_out(notices: Iterable[Notice], fields: Mapping[str, str]) -> list[dict[str, Any]]:
-    """Warnings with the request field each concerns."""
-    return [
-        {"code": n.code, "message": n.message, "field": request_field(n.parameter, fields)}
-        for n in notices
-    ]
-
-
-def tire_document(tire: Tire, units: UnitSystem) -> dict[str, Any]:
-    """The tire as used, in the caller's length unit."""
-
-    def length(x: float) -> float:
-        return rounded(from_si(x, Quantity.LENGTH, units), 2)  # type: ignore[no-any-return]
-
-    return {
-        "size": tire.designation,
-        "diameter": None if tire.free_diameter_m is None else length(tire.free_diameter_m),
-        "rolling_radius": length(tire.rolling_radius_m),
-        "circumference": length(tire.circumference_m),
-        "revs_per_mile": rounded(tire.revs_per_mile, 2),
-        "revs_per_km": rounded(tire.revs_per_km, 2),
-    }
 
 
 def _converter_columns(table: GearTable) -> dict[str, Any]:

@@ -8,7 +8,7 @@ from typing import Any
 
 from core import Notice
 from core.shifts.window import ShiftWindow, ShiftWindows
-from service.mapping.shift_plan import notices_out
+from service.mapping.documents import notices_out
 from service.output.cautions import CAUTIONS
 from service.output.sheets import summary_sheet, wrap_text
 from service.units import UnitSystem, unit_labels

@@ -18,11 +18,11 @@ from core import (
     Vehicle,
     air_state,
 )
-from service.mapping.inputs import core_fields
+from service.mapping.inputs import DRIVETRAIN_FIELDS, ENGINE_FIELDS, core_fields
 from service.schemas.vehicle import LaunchIn, VehicleIn
 from service.units import Quantity, UnitSystem, to_si
 
-__all__ = ["LAUNCH_FIELDS", "VEHICLE_FIELDS", "build_launch", "build_vehicle"]
+__all__ = ["CAR_FIELDS", "LAUNCH_FIELDS", "VEHICLE_FIELDS", "build_launch", "build_vehicle"]
 
 VEHICLE_FIELDS: Mapping[str, str] = {
     "mass_kg": "vehicle.mass",
@@ -58,6 +58,13 @@ LAUNCH_FIELDS: Mapping[str, str] = {
     "speed_ratio": "launch.converter.speed_ratio",
     "k_factor": "launch.converter.k_factor_table",
     "torque_ratio": "launch.converter.torque_ratio_table",
+}
+# the whole car: engine, drivetrain, vehicle and launch, as most calculations take it
+CAR_FIELDS: Mapping[str, str] = {
+    **ENGINE_FIELDS,
+    **DRIVETRAIN_FIELDS,
+    **VEHICLE_FIELDS,
+    **LAUNCH_FIELDS,
 }
 
 

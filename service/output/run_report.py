@@ -9,7 +9,7 @@ from typing import Any
 
 from core import CurveSource
 from service.mapping.calculations import RunOutcome
-from service.mapping.shift_plan import tire_document
+from service.mapping.documents import tire_document
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.inputs import (
     curve_facts,

@@ -6,13 +6,22 @@ same whichever endpoint writes it.
 
 from __future__ import annotations
 
+import math
 import textwrap
 from collections.abc import Iterable, Sequence
 
 from core import Notice
 from service.output.cautions import SHORT_CAUTION
 
-__all__ = ["WIDTH", "printable", "printable_line", "summary_sheet", "title_line", "wrap_text"]
+__all__ = [
+    "WIDTH",
+    "cell",
+    "printable",
+    "printable_line",
+    "summary_sheet",
+    "title_line",
+    "wrap_text",
+]
 
 WIDTH = 80
 
@@ -22,6 +31,13 @@ def wrap_text(text: str, indent: str = "") -> list[str]:
     return textwrap.wrap(
         text, WIDTH, initial_indent=indent, subsequent_indent="  ", break_on_hyphens=False
     )
+
+
+def cell(value: float | None, width: int, fmt: str, signed: bool = False) -> str:
+    """A number right-aligned in ``width`` columns, ``-`` for a missing one."""
+    if value is None or not math.isfinite(value):
+        return "-".rjust(width)
+    return format(value, ("+" if signed else "") + fmt).rjust(width)
 
 
 def title_line(head: str, reference: str | None) -> str:

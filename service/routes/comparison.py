@@ -5,16 +5,12 @@ from __future__ import annotations
 from fastapi import APIRouter
 from starlette.responses import Response
 
-from core.choice.setups import setup_figures
-from core.runs.performance import ShiftCriterion
 from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
-from service.mapping.comparison import comparison_document, comparison_summary
-from service.mapping.inputs import core_fields
-from service.mapping.setups import COMPARISON_FIELDS, build_setups, renamed_fields
+from service.mapping.comparison import COMPARISON_FIELDS, compare_setups, comparison_document
+from service.output.comparison_summary import comparison_summary
 from service.schemas.comparison import ComparisonRequest, ComparisonResponse
-from service.units import Quantity, to_si
 
 __all__ = ["router"]
 
@@ -33,17 +29,9 @@ async def create_comparison(body: ComparisonRequest, _json: JsonBody) -> Respons
     and with the car described top speed, 60 ft, 1/8 and 1/4 mile times and traps and
     0-60 mph, for the base setup and each variant, with each variant's change against the
     base and a printable summary."""
-    setups = build_setups(body)
-    speeds = [to_si(v, Quantity.SPEED, body.units) for v in body.cruise_speeds]
-    criterion = ShiftCriterion(body.shift_criterion)
-    figures = []
-    for named in setups:
-        with renamed_fields(named.renames), core_fields(COMPARISON_FIELDS):
-            figures.append(
-                setup_figures(named.setup, criterion=criterion, cruise_speeds_m_s=speeds)
-            )
-    doc = comparison_document(setups, figures, speeds, body.units, COMPARISON_FIELDS)
-    summary = comparison_summary(setups, figures, speeds, body.units, body.reference)
+    comparison = compare_setups(body)
+    doc = comparison_document(comparison, body.units, COMPARISON_FIELDS)
+    summary = comparison_summary(comparison, body.units, body.reference)
     return FastJSONResponse(
         {
             "reference": body.reference,

@@ -19,6 +19,7 @@ from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.problems import ProblemError
 from service.http.responses import FastJSONResponse
+from service.mapping.documents import notices_out, rounded
 from service.mapping.dyno import (
     GEAR_FIELDS,
     decoded_text,
@@ -28,7 +29,6 @@ from service.mapping.dyno import (
     uploaded_file,
 )
 from service.mapping.inputs import ENGINE_FIELDS, build_curve, core_fields
-from service.mapping.shift_plan import notices_out, rounded
 from service.schemas.dyno import (
     DynoCorrectionRequest,
     DynoCorrectionResponse,

@@ -9,12 +9,13 @@ from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.gear_design import (
+    SPACING_FIELDS,
+    gear_set_studies,
     spacing_document,
-    spacing_summary,
     speedometer_document,
-    speedometer_summary,
+    speedometer_study,
 )
-from service.mapping.gear_design_inputs import SPACING_FIELDS, gear_set_studies, speedometer_study
+from service.output.gear_design_summary import spacing_summary, speedometer_summary
 from service.schemas.gear_design import (
     GearSpacingRequest,
     GearSpacingResponse,

@@ -10,8 +10,13 @@ from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.inputs import build_drivetrain, build_tire, core_fields
-from service.mapping.log_analysis import log_analysis_document, log_summary
-from service.mapping.log_analysis_inputs import LOG_FIELDS, build_pass_log, model_shifts
+from service.mapping.log_analysis import (
+    LOG_FIELDS,
+    build_pass_log,
+    log_analysis_document,
+    log_summary,
+    model_shifts,
+)
 from service.schemas.log_analysis import LogAnalysisRequest, LogAnalysisResponse
 
 __all__ = ["router"]

@@ -16,8 +16,8 @@ from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.calculations import RUN_FIELDS
+from service.mapping.documents import notices_out
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
-from service.mapping.shift_plan import notices_out
 from service.mapping.vehicle import build_launch, build_vehicle
 from service.mapping.weather import (
     WEATHER_LIMITS,
