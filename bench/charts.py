@@ -42,7 +42,8 @@ def main() -> None:
         f"{_import_cost('service.output.png_chart'):.3f} s"
     )
 
-    from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
+    from service.mapping.acceleration import compute_acceleration_run
+    from service.mapping.shift_plan import compute_shift_plan
     from service.output.chart_data import run_chart, tractive_force_chart
     from service.output.html import render_html
     from service.output.pdf import render_pdf

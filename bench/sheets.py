@@ -89,7 +89,8 @@ def main() -> None:
 
     logging.getLogger("matplotlib.font_manager").setLevel(logging.ERROR)
 
-    from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
+    from service.mapping.acceleration import compute_acceleration_run
+    from service.mapping.shift_plan import compute_shift_plan
     from service.output.chart_data import run_chart, tractive_force_chart
     from service.output.pdf import render_pdf
     from service.output.png_chart import chart_figure, drawing

@@ -1,23 +1,59 @@
-"""Acceleration-run results to response documents and a printable summary."""
+"""Acceleration-run requests to core inputs in SI, the run simulated and kept whole
+(printable reports and charts take the same document plus the core objects behind it), and
+its results to a response document and a printable summary in the caller's units."""
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 
-from core import OptimalShifts, RunReport, TimedDistance, TimedSpeed, sample_trace
+from core import (
+    Coupling,
+    OptimalShifts,
+    RunReport,
+    ShiftCriterion,
+    TimedDistance,
+    TimedSpeed,
+    drive_model,
+    optimal_shift_rpm,
+    planned_shift_rpm,
+    run_report,
+    sample_trace,
+)
 from core.runs.report import QUARTER_MILE_M
 from core.runs.simulate import DriveModel
 from service.mapping.documents import notices_out, rounded
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
+from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.sheets import printable, title_line, wrap_text
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+from service.schemas.acceleration import AccelerationRunRequest, RunOptions
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_label, unit_labels
 
-__all__ = ["run_document", "run_summary"]
+__all__ = [
+    "RUN_FIELDS",
+    "SEARCH_BUDGET",
+    "RunOutcome",
+    "caller_named",
+    "compute_acceleration_run",
+    "run_document",
+    "run_summary",
+]
 
 G = 9.80665
+# core parameter -> request field, for errors and warnings
+RUN_FIELDS = {
+    **CAR_FIELDS,
+    "shift_rpm": "shifts.rpm",
+    "start_speed_m_s": "run.start_speed",
+    "start_gear": "run.start_gear",
+}
+# simulated runs the shift search may spend: fixed, so the same request gets the same answer
+SEARCH_BUDGET = {Coupling.CLUTCH: 160, Coupling.CONVERTER: 160}
 
 
 def _speed(v: float | None, units: UnitSystem) -> float | None:
@@ -205,3 +241,102 @@ def run_summary(
     lines.append("")
     lines += wrap_text("Caution: " + SHORT_CAUTION)
     return printable(lines)
+
+
+@dataclass(frozen=True)
+class RunOutcome:
+    """A simulated acceleration run with everything behind it.
+
+    Attributes
+    ----------
+    body : AccelerationRunRequest
+        The request.
+    model : DriveModel
+        The car (curve, drivetrain, tire, vehicle, launch).
+    report : RunReport
+        The timed run.
+    optimal : OptimalShifts or None
+        The shift search, when asked for.
+    document : dict
+        The JSON endpoint's response body without its summary, in the caller's units.
+    """
+
+    body: AccelerationRunRequest
+    model: DriveModel
+    report: RunReport
+    optimal: OptimalShifts | None
+    document: dict[str, Any]
+
+
+def caller_named(report: RunReport, run: RunOptions, units: UnitSystem) -> RunReport:
+    """The report with the caller's extra distances and speed intervals named in their units
+    (``1320 ft``, ``50-70 mph``) rather than in SI; they follow the standard ones."""
+    d_unit, v_unit = unit_label(Quantity.DISTANCE, units), unit_label(Quantity.SPEED, units)
+    dists, speeds = list(report.distances), list(report.speeds)
+    first_d, first_v = (
+        len(dists) - len(run.extra_distances),
+        len(speeds) - len(run.extra_speed_intervals),
+    )
+    for k, d in enumerate(run.extra_distances):
+        dists[first_d + k] = dataclasses.replace(dists[first_d + k], name=f"{d:g} {d_unit}")
+    for k, i in enumerate(run.extra_speed_intervals):
+        name = f"{i.start:g}-{i.end:g} {v_unit}"
+        speeds[first_v + k] = dataclasses.replace(speeds[first_v + k], name=name)
+    return dataclasses.replace(report, distances=tuple(dists), speeds=tuple(speeds))
+
+
+def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
+    """What POST /v1/acceleration-run computes, kept whole (core errors become 422s)."""
+    u, run = body.units, body.run
+    curve = build_curve(body.engine.curve, u)
+    drivetrain, tire = build_drivetrain(body.drivetrain), build_tire(body.drivetrain.tire, u)
+    vehicle, launch = build_vehicle(body.vehicle, u), build_launch(body.launch, curve, u)
+    speed = Quantity.SPEED
+    rollout = 0.3048 if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
+    start = to_si(run.start_speed, speed, u)
+    with core_fields(RUN_FIELDS, u):
+        model = drive_model(
+            curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
+        )
+        crit = body.shifts.criterion
+        rpm = (
+            body.shifts.rpm if crit == "custom" else planned_shift_rpm(model, ShiftCriterion(crit))
+        )
+        finish_d = (
+            None
+            if run.finish_distance is None
+            else to_si(run.finish_distance, Quantity.DISTANCE, u)
+        )
+        finish_v = None if run.finish_speed is None else to_si(run.finish_speed, speed, u)
+        if finish_d is None and finish_v is None:
+            finish_d = QUARTER_MILE_M
+        report = run_report(
+            model,
+            [] if rpm is None else rpm,
+            start_speed_m_s=start,
+            start_gear=run.start_gear,
+            rollout_m=rollout,
+            finish_distance_m=finish_d,
+            finish_speed_m_s=finish_v,
+            extra_distances_m=[to_si(d, Quantity.DISTANCE, u) for d in run.extra_distances],
+            extra_speeds_m_s=[
+                (to_si(i.start, speed, u), to_si(i.end, speed, u))
+                for i in run.extra_speed_intervals
+            ],
+        )
+        report = caller_named(report, run, u)
+        optimal = None
+        if body.shifts.optimise:
+            optimal = optimal_shift_rpm(
+                model,
+                report.run.shift_rpm,
+                start_speed_m_s=start,
+                rollout_m=rollout,
+                finish_distance_m=finish_d if finish_v is None else None,
+                finish_speed_m_s=finish_v,
+                max_evaluations=SEARCH_BUDGET[launch.coupling],
+                initial_name=crit,
+            )
+    doc = run_document(report, model, optimal, crit, u, run.trace_points, RUN_FIELDS)
+    document = {"reference": body.reference, **doc}
+    return RunOutcome(body, model, report, optimal, document)

@@ -1,14 +1,20 @@
-"""Core results to response documents in the caller's units (NumPy arrays kept for orjson)."""
+"""Shift-plan requests to core inputs in SI, the plan computed and kept whole (printable
+reports and charts take the same document plus the core objects behind it, so a report says
+exactly what the JSON says), and core results to response documents in the caller's units
+(NumPy arrays kept for orjson)."""
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
 
 from core import (
+    ConverterDrive,
     DriveModel,
     Drivetrain,
     GearTable,
@@ -16,17 +22,36 @@ from core import (
     ShiftPlan,
     Tire,
     TorqueCurve,
+    acceleration_shift_points,
     cruise_rpm,
+    drive_model,
+    shift_plan,
     top_speed,
 )
 from core.car.gradeability import MAX_GRADE_ANGLE_DEG, GradeLimit, gradeability
 from service.mapping.documents import notices_out, rounded, tire_document
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
+from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+from service.schemas.shift_plan import ShiftPlanRequest
+from service.schemas.vehicle import LaunchIn
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
-__all__ = ["grade_notices", "performance_document", "shift_plan_document"]
+__all__ = [
+    "PLAN_FIELDS",
+    "PlanOutcome",
+    "compute_shift_plan",
+    "grade_notices",
+    "performance_document",
+    "shift_plan_document",
+]
 
 FloatArray = NDArray[np.float64]
+# core parameter -> request field, for errors and warnings
+PLAN_FIELDS = {
+    **CAR_FIELDS,
+    "rpm_step": "table.rpm_step",
+}
 
 
 def _converter_columns(table: GearTable) -> dict[str, Any]:
@@ -171,3 +196,72 @@ def performance_document(
         "force_crossover_rpm": [round(s.shift_rpm, 1) for s in plan.shifts],
     }
     return doc, grade_notices(grade.limited_by)
+
+
+@dataclass(frozen=True)
+class PlanOutcome:
+    """A computed shift plan with everything behind it.
+
+    Attributes
+    ----------
+    body : ShiftPlanRequest
+        The request.
+    curve, drivetrain, tire
+        Core inputs, in SI.
+    plan : ShiftPlan
+        The plan (its shifts by net acceleration when the request asked for that).
+    model : DriveModel or None
+        The car, when the request described one.
+    document : dict
+        The JSON endpoint's response body without its summary, in the caller's units.
+    """
+
+    body: ShiftPlanRequest
+    curve: TorqueCurve
+    drivetrain: Drivetrain
+    tire: Tire
+    plan: ShiftPlan
+    model: DriveModel | None
+    document: dict[str, Any]
+
+
+def compute_shift_plan(body: ShiftPlanRequest) -> PlanOutcome:
+    """What POST /v1/shift-plan computes, kept whole (core errors become 422 problems)."""
+    units = body.units
+    curve = build_curve(body.engine.curve, units)
+    drivetrain = build_drivetrain(body.drivetrain)
+    tire = build_tire(body.drivetrain.tire, units)
+    launch = None
+    if body.vehicle is not None:
+        launch = build_launch(body.launch or LaunchIn(), curve, units)
+    converter = ConverterDrive.of_launch(launch)
+    with core_fields(PLAN_FIELDS):
+        plan = shift_plan(
+            curve,
+            drivetrain,
+            tire,
+            rev_limit_rpm=body.engine.rev_limit_rpm,
+            rpm_step=body.table.rpm_step,
+            converter=converter,
+        )
+    performance = None
+    model = None
+    if body.vehicle is not None and launch is not None:
+        vehicle = build_vehicle(body.vehicle, units)
+        with core_fields(PLAN_FIELDS):
+            model = drive_model(
+                curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
+            )
+            speeds = [to_si(v, Quantity.SPEED, units) for v in body.cruise_speeds]
+            performance, grade_notes = performance_document(model, plan, speeds, units)
+            if body.shift_criterion == "net_acceleration":
+                plan = dataclasses.replace(plan, shifts=acceleration_shift_points(model))
+            plan = dataclasses.replace(plan, notices=plan.notices + tuple(grade_notes))
+    doc = shift_plan_document(plan, curve, drivetrain, tire, units, PLAN_FIELDS)
+    document = {
+        "reference": body.reference,
+        **doc,
+        "shift_criterion": body.shift_criterion,
+        "performance": performance,
+    }
+    return PlanOutcome(body, curve, drivetrain, tire, plan, model, document)

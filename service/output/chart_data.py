@@ -14,7 +14,8 @@ from numpy.typing import NDArray
 
 from core import ConverterDrive, gear_tables, sample_trace
 from core.runs.milestones import time_at_distance
-from service.mapping.calculations import PlanOutcome, RunOutcome
+from service.mapping.acceleration import RunOutcome
+from service.mapping.shift_plan import PlanOutcome
 from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
 __all__ = [

@@ -8,7 +8,7 @@ from __future__ import annotations
 from typing import Any
 
 from core import CurveSource
-from service.mapping.calculations import RunOutcome
+from service.mapping.acceleration import RunOutcome
 from service.mapping.documents import tire_document
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.inputs import (

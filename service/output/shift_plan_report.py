@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from service.mapping.calculations import PlanOutcome
+from service.mapping.shift_plan import PlanOutcome
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.inputs import (
     curve_facts,

@@ -8,8 +8,7 @@ from starlette.responses import Response
 from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
-from service.mapping.acceleration import run_summary
-from service.mapping.calculations import compute_acceleration_run
+from service.mapping.acceleration import compute_acceleration_run, run_summary
 from service.schemas.acceleration import AccelerationRunRequest, AccelerationRunResponse
 
 __all__ = ["router"]

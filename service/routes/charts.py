@@ -11,7 +11,7 @@ from starlette.responses import Response
 from service.http.deps import JsonBody
 from service.http.negotiation import inline_disposition, negotiate
 from service.http.openapi import PROBLEM_RESPONSES
-from service.mapping.calculations import compute_shift_plan
+from service.mapping.shift_plan import compute_shift_plan
 from service.output.chart_data import tractive_force_chart
 from service.output.png_chart import ChartFormat, render_chart
 from service.schemas.common import Problem

@@ -6,7 +6,8 @@ from fastapi import APIRouter, Request
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
-from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
+from service.mapping.acceleration import compute_acceleration_run
+from service.mapping.shift_plan import compute_shift_plan
 from service.output.chart_data import run_chart, tractive_force_chart
 from service.output.run_report import acceleration_run_report
 from service.output.sheet_response import (

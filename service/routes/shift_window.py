@@ -14,7 +14,7 @@ from core.shifts.window import shift_windows
 from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
-from service.mapping.calculations import RUN_FIELDS, SEARCH_BUDGET
+from service.mapping.acceleration import RUN_FIELDS, SEARCH_BUDGET
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
 from service.mapping.shift_window import shift_window_document, shift_window_summary
 from service.mapping.vehicle import build_launch, build_vehicle

@@ -15,7 +15,7 @@ from core.runs.report import QUARTER_MILE_M
 from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
-from service.mapping.calculations import RUN_FIELDS
+from service.mapping.acceleration import RUN_FIELDS
 from service.mapping.documents import notices_out
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
 from service.mapping.vehicle import build_launch, build_vehicle

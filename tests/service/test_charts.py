@@ -11,7 +11,8 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
+from service.mapping.acceleration import compute_acceleration_run
+from service.mapping.shift_plan import compute_shift_plan
 from service.output.chart_data import run_chart, tractive_force_chart
 from service.output.png_chart import PNG_DPI, SIZE_IN, ChartFormat, gear_style, render_chart
 from service.schemas.acceleration import AccelerationRunRequest

@@ -306,7 +306,7 @@ def test_ten_gear_tables_stay_aligned(api: ApiClient) -> None:
 
 
 def test_logo_is_drawn_once_per_page(shop: Letterhead, tmp_path: Path) -> None:
-    from service.mapping.calculations import compute_shift_plan
+    from service.mapping.shift_plan import compute_shift_plan
     from service.schemas.shift_plan import ShiftPlanRequest
 
     outcome = compute_shift_plan(ShiftPlanRequest.model_validate(load_demo("demo_coupe_us")))

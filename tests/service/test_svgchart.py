@@ -10,7 +10,7 @@ import pytest
 from matplotlib.ticker import MaxNLocator
 from numpy.testing import assert_allclose
 
-from service.mapping.calculations import compute_shift_plan
+from service.mapping.shift_plan import compute_shift_plan
 from service.output.chart_data import tractive_force_chart
 from service.output.svg_chart import nice_ticks, svg_chart
 from service.schemas.shift_plan import ShiftPlanRequest
