@@ -32,6 +32,7 @@ __all__ = [
     "OFFERED",
     "SHEET_RESPONSES",
     "AppendixQuery",
+    "ChartMaker",
     "FormatQuery",
     "SheetFormat",
     "sheet_response",
