@@ -27,7 +27,13 @@ from core import (
 from core.runs.report import QUARTER_MILE_M
 from core.runs.simulate import DriveModel
 from service.mapping.documents import notices_out, rounded
-from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
+from service.mapping.inputs import (
+    build_curve,
+    build_drivetrain,
+    build_tire,
+    core_fields,
+    rollout_m,
+)
 from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.sheets import printable, title_line, wrap_text
@@ -292,7 +298,7 @@ def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
     drivetrain, tire = build_drivetrain(body.drivetrain), build_tire(body.drivetrain.tire, u)
     vehicle, launch = build_vehicle(body.vehicle, u), build_launch(body.launch, curve, u)
     speed = Quantity.SPEED
-    rollout = 0.3048 if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
+    rollout = rollout_m(run.rollout, u)
     start = to_si(run.start_speed, speed, u)
     with core_fields(RUN_FIELDS, u):
         model = drive_model(

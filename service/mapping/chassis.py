@@ -1,4 +1,5 @@
-"""A chassis-dyno conversion to its response document and an 80-column printable summary."""
+"""Chassis-dyno requests to a core conversion in SI, and the conversion to its response
+document and an 80-column printable summary."""
 
 from __future__ import annotations
 
@@ -7,19 +8,80 @@ from typing import Any
 
 import numpy as np
 
-from core.driveline.chassis import ChassisConversion
+from core.driveline.chassis import (
+    ChassisConversion,
+    MeasuredAt,
+    chassis_conversion,
+    efficiency_from_loss,
+)
 from service.mapping.documents import notices_out, rounded
+from service.mapping.inputs import core_fields
 from service.output.sheets import printable, title_line, wrap_text
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+from service.schemas.chassis import ChassisConversionRequest
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
-__all__ = ["MODEL_NOTE", "chassis_document", "chassis_summary"]
+__all__ = [
+    "CHASSIS_FIELDS",
+    "MODEL_NOTE",
+    "chassis_document",
+    "chassis_fields",
+    "chassis_summary",
+    "convert_chassis_curve",
+]
 
+CHASSIS_FIELDS: Mapping[str, str] = {
+    "rpm": "curve.rpm",
+    "torque_nm": "curve.torque",
+    "power_w": "curve.power",
+    "loss_percent": "driveline.loss_percent",
+    "measured_gear": "driveline.measured_gear",
+    "fixed_loss_w": "driveline.fixed_loss",
+}
 SUMMARY_ROWS = 15
 MODEL_NOTE = (
     "Model: wheel = engine x efficiency at the same engine rpm (common practice); in gear "
     "j the wheel curve measured in gear k is scaled by eta_j / eta_k. Torque at the wheels "
     "is wheel power over engine angular speed. An estimate: real losses vary."
 )
+
+
+def chassis_fields(body: ChassisConversionRequest) -> dict[str, str]:
+    """Core parameter -> request field, the efficiency named as the request gave it."""
+    per_gear = body.driveline.gear_efficiencies is not None
+    return {
+        **CHASSIS_FIELDS,
+        "efficiency": "driveline.gear_efficiencies" if per_gear else "driveline.efficiency",
+    }
+
+
+def _efficiency(body: ChassisConversionRequest) -> float | list[float]:
+    loss = body.driveline
+    if loss.gear_efficiencies is not None:
+        return loss.gear_efficiencies
+    if loss.efficiency is not None:
+        return loss.efficiency
+    return efficiency_from_loss(float(loss.loss_percent or 0.0))
+
+
+def convert_chassis_curve(body: ChassisConversionRequest) -> ChassisConversion:
+    """What POST /v1/chassis-dyno/convert computes (core errors become 422 problems)."""
+    u, curve, loss = body.units, body.curve, body.driveline
+
+    def si(values: list[float] | None, quantity: Quantity) -> np.ndarray | None:
+        return None if values is None else to_si(np.asarray(values, np.float64), quantity, u)
+
+    with core_fields(chassis_fields(body)):
+        return chassis_conversion(
+            curve.rpm,
+            measured_at=MeasuredAt(curve.measured_at),
+            efficiency=_efficiency(body),
+            torque_nm=si(curve.torque, Quantity.TORQUE),
+            power_w=si(curve.power, Quantity.POWER),
+            measured_gear=loss.measured_gear,
+            fixed_loss_w=0.0
+            if loss.fixed_loss is None
+            else to_si(loss.fixed_loss, Quantity.POWER, u),
+        )
 
 
 def chassis_document(

@@ -1,17 +1,44 @@
-"""A coast-down fit to its response document and an 80-column printable summary."""
+"""Coast-down requests to core runs in SI, the fit, and the fit to its response document
+and an 80-column printable summary."""
 
 from __future__ import annotations
 
 from collections.abc import Mapping
 from typing import Any
 
-from core.car.coast_down import REFERENCE_PRESSURE_PA, REFERENCE_TEMPERATURE_K, CoastDownFit
+import numpy as np
+
+from core.car.coast_down import (
+    REFERENCE_PRESSURE_PA,
+    REFERENCE_TEMPERATURE_K,
+    CoastDownFit,
+    CoastDownRun,
+    TravelDirection,
+    fit_coast_down,
+)
 from service.mapping.documents import notices_out
+from service.mapping.inputs import core_fields
 from service.output.cautions import CAUTIONS
 from service.output.sheets import summary_sheet, wrap_text
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+from service.schemas.coastdown import CoastDownRequest
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
-__all__ = ["COAST_DOWN_METHOD", "REFERENCE_METHOD", "coast_down_document", "coast_down_summary"]
+__all__ = [
+    "COAST_DOWN_FIELDS",
+    "COAST_DOWN_METHOD",
+    "REFERENCE_METHOD",
+    "coast_down_document",
+    "coast_down_summary",
+    "fit_coast_downs",
+]
+
+COAST_DOWN_FIELDS: Mapping[str, str] = {
+    "mass_kg": "mass",
+    "equivalent_mass_kg": "equivalent_mass",
+    "runs": "runs",
+    "temperature_k": "conditions.temperature",
+    "pressure_pa": "conditions.pressure",
+}
 
 COAST_DOWN_METHOD = (
     "Each run is fitted by integrating m_e dv/dt = -(F0 + F1 v + F2 v^2) from a fitted "
@@ -24,6 +51,30 @@ REFERENCE_METHOD = (
     "20 degC)); reference 20 degC, 98.21 kPa, dry air (values from memory). No wind or "
     "grade correction beyond the paired runs."
 )
+
+
+def fit_coast_downs(body: CoastDownRequest) -> CoastDownFit:
+    """What POST /v1/road-load/coast-down computes (core errors become 422 problems)."""
+    u, c = body.units, body.conditions
+    runs = [
+        CoastDownRun(
+            np.asarray(r.time, np.float64),
+            to_si(np.asarray(r.speed, np.float64), Quantity.SPEED, u),
+            TravelDirection(r.direction),
+        )
+        for r in body.runs
+    ]
+    with core_fields(COAST_DOWN_FIELDS):
+        return fit_coast_down(
+            runs,
+            to_si(body.mass, Quantity.MASS, u),
+            None
+            if body.equivalent_mass is None
+            else to_si(body.equivalent_mass, Quantity.MASS, u),
+            temperature_k=None if c is None else to_si(c.temperature, Quantity.TEMPERATURE, u),
+            pressure_pa=None if c is None else to_si(c.pressure, Quantity.PRESSURE, u),
+            relative_humidity=0.0 if c is None else c.relative_humidity / 100.0,
+        )
 
 
 def _scales(units: UnitSystem) -> tuple[float, float, float]:

@@ -1,10 +1,12 @@
-"""The edge of POST /v1/torque-curves/import: the upload's bytes and fields, the gear of a
-speed-based export, dyno-file errors as problems naming the line and column, and the
-response document in the caller's units."""
+"""The edge of the dyno helpers. POST /v1/dyno-correction: the cell's air to correction
+factors and the chosen standard applied to a curve. POST /v1/torque-curves/import: the
+upload's bytes and fields, the gear of a speed-based export, dyno-file errors as problems
+naming the line and column. Both answers as response documents in the caller's units."""
 
 from __future__ import annotations
 
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -12,26 +14,56 @@ from pydantic import ValidationError
 from starlette.datastructures import UploadFile
 from starlette.requests import Request
 
+from core import (
+    Correction,
+    CorrectionStandard,
+    TorqueCurve,
+    apply_correction,
+    correction_factors,
+    read_dyno_text,
+)
 from core.dyno.file import DynoRun
 from core.errors import DynoFileError
 from core.readers.encoding import decode_export
 from service.bounds import bound_violations
 from service.http.problems import ProblemError, field_path
 from service.mapping.documents import notices_out, rounded
-from service.mapping.inputs import build_tire, renamed_fields
+from service.mapping.inputs import (
+    ENGINE_FIELDS,
+    build_curve,
+    build_tire,
+    core_fields,
+    renamed_fields,
+)
 from service.schemas.common import ApiModel
+from service.schemas.dyno import DynoCorrectionRequest
 from service.schemas.inputs import TireIn
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
 __all__ = [
+    "AMBIENT_FIELDS",
     "GEAR_FIELDS",
+    "AirCorrection",
     "GearFields",
+    "correct_to_standard_air",
     "decoded_text",
+    "dyno_correction_document",
     "dyno_problem",
     "imported_document",
+    "read_upload",
     "road_speed_gear",
+    "uploaded_body",
     "uploaded_file",
 ]
+
+AMBIENT_FIELDS: Mapping[str, str] = {
+    "temperature_k": "ambient.temperature",
+    "relative_humidity": "ambient.relative_humidity",
+    "station_pressure_pa": "ambient.station_pressure",
+    "altimeter_setting_pa": "ambient.altimeter_setting",
+    "elevation_m": "ambient.elevation",
+    **{k: v.replace("engine.curve", "curve") for k, v in ENGINE_FIELDS.items()},
+}
 
 # the speed-based export's gear, as query parameters or multipart fields
 GEAR_FIELDS = (
@@ -46,6 +78,71 @@ _TIRE_NAMES = {f"drivetrain.tire.{name[5:]}": name for name in GEAR_FIELDS[1:]}
 _TIRE_ONE_OF = (
     "the tire (`tire_size`, `tire_diameter`, `tire_revs_per_mile` or `tire_revs_per_km`)"
 )
+
+
+@dataclass(frozen=True)
+class AirCorrection:
+    """Every standard's correction for the cell's air, the one chosen, and the curve
+    corrected by it (None without a curve)."""
+
+    factors: Mapping[CorrectionStandard, Correction]
+    chosen: Correction
+    curve: TorqueCurve | None
+
+
+def correct_to_standard_air(body: DynoCorrectionRequest) -> AirCorrection:
+    """What POST /v1/dyno-correction computes (core errors become 422 problems)."""
+    u, amb, p = body.units, body.ambient, Quantity.PRESSURE
+    with core_fields(AMBIENT_FIELDS, u):
+        factors = correction_factors(
+            to_si(amb.temperature, Quantity.TEMPERATURE, u),
+            amb.relative_humidity / 100.0,
+            station_pressure_pa=None
+            if amb.station_pressure is None
+            else to_si(amb.station_pressure, p, u),
+            altimeter_setting_pa=None
+            if amb.altimeter_setting is None
+            else to_si(amb.altimeter_setting, p, u),
+            elevation_m=None
+            if amb.elevation is None
+            else to_si(amb.elevation, Quantity.DISTANCE, u),
+        )
+        chosen = factors[CorrectionStandard(body.standard)]
+        curve = None
+        if body.curve is not None:
+            curve = apply_correction(build_curve(body.curve, u), chosen)
+    return AirCorrection(factors, chosen, curve)
+
+
+def dyno_correction_document(body: DynoCorrectionRequest, air: AirCorrection) -> dict[str, Any]:
+    """The response body of a dyno correction, in the caller's units."""
+    u, p, curve = body.units, Quantity.PRESSURE, air.curve
+    corrected = None
+    if curve is not None:
+        corrected = {
+            "rpm": rounded(curve.rpm, 1),
+            "source": curve.source.value,
+            "interpolation": curve.interpolation.value,
+            "torque": rounded(from_si(curve.torque_nm, Quantity.TORQUE, u), 3),
+        }
+    return {
+        "reference": body.reference,
+        "units": unit_labels(u),
+        "station_pressure": round(from_si(air.chosen.station_pressure_pa, p, u), 4),
+        "corrections": [
+            {
+                "standard": c.standard.value,
+                "factor": round(c.factor, 5),
+                "within_validity": c.within_validity,
+                "dry_pressure": round(from_si(c.dry_pressure_pa, p, u), 4),
+                "vapour_pressure": round(from_si(c.vapour_pressure_pa, p, u), 4),
+            }
+            for c in air.factors.values()
+        ],
+        "applied": body.standard,
+        "corrected_curve": corrected,
+        "warnings": notices_out(air.chosen.notices, AMBIENT_FIELDS),
+    }
 
 
 class GearFields(ApiModel):
@@ -74,6 +171,39 @@ async def uploaded_file(request: Request) -> tuple[bytes, dict[str, str]]:
     data = await files[0].read()
     await form.close()
     return data, fields
+
+
+async def uploaded_body(request: Request) -> tuple[bytes, dict[str, str]]:
+    """The dyno file's bytes, as text or a multipart upload, and the upload's text fields
+    (none for a text body); 415 for any other content type."""
+    kind = request.headers.get("content-type", "").split(";")[0].strip().lower()
+    if kind == "multipart/form-data":
+        return await uploaded_file(request)
+    if kind in {"text/csv", "text/plain", "text/tab-separated-values", ""}:
+        return await request.body(), {}
+    raise ProblemError(
+        415, "Send the dyno file as text/csv (or text/plain), or as a multipart upload."
+    )
+
+
+def read_upload(
+    text: str,
+    rpm_step: float | None,
+    smoothing_rpm: float | None,
+    gear: tuple[float | None, float | None],
+) -> DynoRun:
+    """The dyno file's text read into a curve; ``gear`` is a speed-based export's overall
+    ratio and rolling radius [m]. Errors name the line and column."""
+    try:
+        return read_dyno_text(
+            text,
+            rpm_step=rpm_step,
+            smoothing_window_rpm=smoothing_rpm,
+            overall_ratio=gear[0],
+            rolling_radius_m=gear[1],
+        )
+    except DynoFileError as exc:
+        raise dyno_problem(exc) from exc
 
 
 def decoded_text(raw: bytes) -> tuple[str, str]:

@@ -28,6 +28,7 @@ from service.mapping.inputs import (
     build_tire,
     check_ratio_floor,
     core_fields,
+    rollout_m,
 )
 from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS
@@ -116,7 +117,7 @@ def sweep_ratios(body: FinalDriveSweepRequest) -> SweptRatios:
     vehicle = None if body.vehicle is None else build_vehicle(body.vehicle, u)
     launch = None if vehicle is None else build_launch(body.launch or LaunchIn(), curve, u)
     limits = sweep_constraints(body.constraints, u)
-    rollout = 0.3048 if body.rollout is None else to_si(body.rollout, Quantity.LENGTH, u)
+    rollout = rollout_m(body.rollout, u)
     with core_fields({**SWEEP_FIELDS, "final_drive_ratio": "ratios"}):
         sweep = sweep_final_drives(
             curve,

@@ -31,6 +31,7 @@ __all__ = [
     "DRIVETRAIN_FIELDS",
     "ENGINE_FIELDS",
     "MIN_RATIO",
+    "ROLLOUT_M",
     "build_curve",
     "build_drivetrain",
     "build_tire",
@@ -39,6 +40,7 @@ __all__ = [
     "renamed_fields",
     "renamed_path",
     "request_field",
+    "rollout_m",
 ]
 
 _INDEXED = re.compile(r"^(?P<name>[a-z_]+)(?P<index>(\[\d+\])*)$")
@@ -62,6 +64,7 @@ DRIVETRAIN_FIELDS: Mapping[str, str] = {
     "rolling_factor": "drivetrain.tire.rolling_factor",
 }
 MIN_RATIO = 0.01  # no gearbox or axle has a smaller ratio
+ROLLOUT_M = 0.3048  # one foot before the timer starts: the strip's rollout (common practice)
 
 
 def request_field(parameter: str | None, fields: Mapping[str, str]) -> str | None:
@@ -149,6 +152,11 @@ def check_ratio_floor(drivetrain: DrivetrainIn) -> None:
             raise ProblemError(
                 422, f"`{field}` must be >= {MIN_RATIO:g}, got {value:g}", field=field
             )
+
+
+def rollout_m(rollout: float | None, units: UnitSystem) -> float:
+    """The rollout [m]: the caller's, else the strip's one foot."""
+    return ROLLOUT_M if rollout is None else to_si(rollout, Quantity.LENGTH, units)
 
 
 def build_curve(curve: CurveIn, units: UnitSystem) -> TorqueCurve:

@@ -8,13 +8,13 @@ from dataclasses import dataclass
 from typing import Any
 
 from core import Drivetrain, Tire, acceleration_shifts, drive_model, shift_plan
-from core.logs.check import PassAnalysis
+from core.logs.check import PassAnalysis, analyse_pass
 from core.logs.pass_data import AccelerationUnit, LogDataError, PassLog, SpeedUnit, pass_log
 from core.logs.shift import LoggedShift
 from core.logs.text import LogText, read_log_text
 from service.http.problems import ProblemError
 from service.mapping.documents import notices_out
-from service.mapping.inputs import build_curve, core_fields
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
 from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.sheets import printable, title_line, wrap_text
@@ -25,8 +25,10 @@ from service.units import Quantity, UnitSystem, from_si, unit_labels
 __all__ = [
     "LOG_FIELDS",
     "VERDICT_RULE",
+    "CheckedPass",
     "ModelShifts",
     "build_pass_log",
+    "check_logged_pass",
     "log_analysis_document",
     "log_summary",
     "model_shifts",
@@ -119,6 +121,37 @@ def model_shifts(body: LogAnalysisRequest, drivetrain: Drivetrain, tire: Tire) -
         model = drive_model(curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=limit)
         rpm = [c.shift_rpm for c in acceleration_shifts(model)]
         return ModelShifts(rpm, "net_acceleration", model.rev_limit_rpm)
+
+
+@dataclass(frozen=True)
+class CheckedPass:
+    """A logged pass checked: the analysis, the pass, the text's reading (None for
+    arrays) and the model's shifts it was judged against."""
+
+    analysis: PassAnalysis
+    log: PassLog
+    text: LogText | None
+    model: ModelShifts
+
+
+def check_logged_pass(body: LogAnalysisRequest) -> CheckedPass:
+    """What POST /v1/log-analysis computes (core errors become 422 problems)."""
+    units, opts = body.units, body.options
+    drivetrain = build_drivetrain(body.drivetrain)
+    tire = build_tire(body.drivetrain.tire, units)
+    log, text = build_pass_log(body.log, units)
+    model = model_shifts(body, drivetrain, tire)
+    with core_fields(LOG_FIELDS):
+        analysis = analyse_pass(
+            log,
+            drivetrain,
+            tire,
+            rev_limit_rpm=model.rev_limit_rpm,
+            start_gear=opts.start_gear,
+            tolerance=opts.tolerance_percent / 100.0,
+            smoothing_window_s=opts.smoothing_window,
+        )
+    return CheckedPass(analysis, log, text, model)
 
 
 def _speed(v: float | None, units: UnitSystem) -> float | None:

@@ -1,16 +1,44 @@
-"""Strip weather and a carried slip to their response document and an 80-column summary."""
+"""Weather-correction requests to core weathers (and, with a car, a drive model) in SI,
+the air and the carried slip computed, and both to their response document and an
+80-column summary."""
 
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
 from typing import Any
 
-from core import Notice
-from core.air.weather import SlipPrediction, WeatherAir
+from core import Notice, air_state, drive_model
+from core.air.weather import SlipPrediction, Weather, WeatherAir, predict_slip, weather_air
+from core.engine.correction import CorrectionStandard
+from core.runs.report import QUARTER_MILE_M
+from service.mapping.acceleration import RUN_FIELDS
+from service.mapping.documents import notices_out
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
+from service.mapping.vehicle import build_launch, build_vehicle
+from service.output.cautions import CAUTIONS
 from service.output.sheets import summary_sheet, wrap_text
-from service.units import Quantity, UnitSystem, from_si
+from service.schemas.vehicle import VehicleIn
+from service.schemas.weather import StripWeatherIn, WeatherCorrectionRequest
+from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
-__all__ = ["WEATHER_LIMITS", "WEATHER_METHOD", "air_document", "slip_document", "weather_summary"]
+__all__ = [
+    "WEATHER_FIELDS",
+    "WEATHER_LIMITS",
+    "WEATHER_METHOD",
+    "WeatherStudy",
+    "air_document",
+    "slip_document",
+    "study_weather",
+    "weather_document",
+    "weather_summary",
+]
+
+WEATHER_FIELDS: Mapping[str, str] = {
+    **RUN_FIELDS,
+    "finish_distance_m": "finish_distance",
+    "density_kg_m3": "taken_in",
+}
 
 WEATHER_METHOD = (
     "Density altitude: the ISO 2533 standard-atmosphere altitude of the same moist-air "
@@ -26,6 +54,104 @@ WEATHER_LIMITS = (
     "(turbocharged and supercharged engines respond differently); shifts follow the "
     "net-acceleration plan in each weather."
 )
+
+
+@dataclass(frozen=True)
+class WeatherStudy:
+    """The air a slip was taken in, the slip carried to the other weather (None without a
+    car or a second weather), and the notices of both."""
+
+    standard: CorrectionStandard
+    taken_in: WeatherAir
+    prediction: SlipPrediction | None
+    notices: tuple[Notice, ...]
+
+
+def _weather(w: StripWeatherIn, u: UnitSystem) -> Weather:
+    return Weather(
+        to_si(w.temperature, Quantity.TEMPERATURE, u),
+        to_si(w.pressure, Quantity.PRESSURE, u),
+        w.relative_humidity / 100.0,
+    )
+
+
+def _vehicle_density(v: VehicleIn, u: UnitSystem) -> float:
+    """Density the vehicle's road load was built for, from its `air` block."""
+    air = v.air
+    t = 288.15 if air.temperature is None else to_si(air.temperature, Quantity.TEMPERATURE, u)
+    state = air_state(
+        t,
+        air.relative_humidity / 100.0,
+        pressure_pa=None if air.pressure is None else to_si(air.pressure, Quantity.PRESSURE, u),
+        altitude_m=None
+        if air.pressure is not None
+        else to_si(air.altitude or 0.0, Quantity.DISTANCE, u),
+    )
+    return state.density_kg_m3
+
+
+def _carried_slip(
+    body: WeatherCorrectionRequest, taken: Weather, standard: CorrectionStandard
+) -> SlipPrediction | None:
+    """The slip carried to ``predict_for`` by re-running the car in both weathers."""
+    if body.predict_for is None or not (body.engine and body.drivetrain and body.vehicle):
+        return None
+    u = body.units
+    curve = build_curve(body.engine.curve, u)
+    drivetrain = build_drivetrain(body.drivetrain)
+    tire = build_tire(body.drivetrain.tire, u)
+    vehicle, launch = build_vehicle(body.vehicle, u), build_launch(body.launch, curve, u)
+    finish = (
+        QUARTER_MILE_M
+        if body.finish_distance is None
+        else to_si(body.finish_distance, Quantity.DISTANCE, u)
+    )
+    with core_fields({**WEATHER_FIELDS, "temperature_k": "predict_for.temperature"}):
+        model = drive_model(
+            curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
+        )
+        return predict_slip(
+            model,
+            _vehicle_density(body.vehicle, u),
+            taken,
+            _weather(body.predict_for, u),
+            standard,
+            finish_distance_m=finish,
+            measured_et_s=None if body.slip is None else body.slip.et,
+            measured_trap_m_s=None
+            if body.slip is None
+            else to_si(body.slip.trap, Quantity.SPEED, u),
+        )
+
+
+def study_weather(body: WeatherCorrectionRequest) -> WeatherStudy:
+    """What POST /v1/weather-correction computes (core errors become 422 problems)."""
+    standard = CorrectionStandard(body.standard)
+    taken = _weather(body.taken_in, body.units)
+    with core_fields({**WEATHER_FIELDS, "temperature_k": "taken_in.temperature"}):
+        air = weather_air(taken, standard)
+    notices = list(air.notices)
+    prediction = _carried_slip(body, taken, standard)
+    if prediction is not None:
+        notices += [n for n in prediction.predict_for.notices if n not in notices]
+    return WeatherStudy(standard, air, prediction, tuple(notices))
+
+
+def weather_document(body: WeatherCorrectionRequest, study: WeatherStudy) -> dict[str, Any]:
+    """The body of a weather-correction response, without its summary."""
+    u, p = body.units, study.prediction
+    return {
+        "reference": body.reference,
+        "units": unit_labels(u),
+        "standard": study.standard.value,
+        "taken_in": air_document(study.taken_in, u),
+        "predict_for": None if p is None else air_document(p.predict_for, u),
+        "slip": None if p is None else slip_document(p, u),
+        "method": WEATHER_METHOD,
+        "limits": WEATHER_LIMITS,
+        "warnings": notices_out(study.notices, WEATHER_FIELDS),
+        "cautions": list(CAUTIONS),
+    }
 
 
 def air_document(air: WeatherAir, units: UnitSystem) -> dict[str, Any]:

@@ -15,8 +15,9 @@ from numpy.typing import NDArray
 from core import ConverterDrive, gear_tables, sample_trace
 from core.runs.milestones import time_at_distance
 from service.mapping.acceleration import RunOutcome
+from service.mapping.inputs import rollout_m
 from service.mapping.shift_plan import PlanOutcome
-from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
+from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = [
     "GearCurve",
@@ -180,9 +181,7 @@ def _rollout_m(outcome: RunOutcome) -> float:
     run = outcome.body.run
     if run.start_speed != 0.0:
         return 0.0
-    if run.rollout is None:
-        return 0.3048
-    return to_si(run.rollout, Quantity.LENGTH, outcome.body.units)
+    return rollout_m(run.rollout, outcome.body.units)
 
 
 def run_chart(outcome: RunOutcome) -> RunChart:

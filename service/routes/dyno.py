@@ -7,34 +7,26 @@ from typing import Annotated
 from fastapi import APIRouter, Query, Request
 from starlette.responses import Response
 
-from core import (
-    CorrectionStandard,
-    DynoFileError,
-    apply_correction,
-    correction_factors,
-    read_dyno_text,
-)
 from core.dyno.road import MAX_OVERALL_RATIO
 from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
-from service.http.problems import ProblemError
 from service.http.responses import FastJSONResponse
-from service.mapping.documents import notices_out, rounded
 from service.mapping.dyno import (
     GEAR_FIELDS,
+    correct_to_standard_air,
     decoded_text,
-    dyno_problem,
+    dyno_correction_document,
     imported_document,
+    read_upload,
     road_speed_gear,
-    uploaded_file,
+    uploaded_body,
 )
-from service.mapping.inputs import ENGINE_FIELDS, build_curve, core_fields
 from service.schemas.dyno import (
     DynoCorrectionRequest,
     DynoCorrectionResponse,
     ImportedCurveResponse,
 )
-from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
+from service.units import UnitSystem
 
 __all__ = ["router"]
 
@@ -48,14 +40,6 @@ _TIRE = "Speed-based export only: the driven tire's size, e.g. `245/40R18`."
 _DIA = "Speed-based export only: the driven tire's overall diameter [mm | in]."
 _REVS = "Speed-based export only: the tire maker's revolutions per mile or per km."
 _ROLLING = "Speed-based export only: rolling radius as a fraction of the free radius."
-AMBIENT_FIELDS = {
-    "temperature_k": "ambient.temperature",
-    "relative_humidity": "ambient.relative_humidity",
-    "station_pressure_pa": "ambient.station_pressure",
-    "altimeter_setting_pa": "ambient.altimeter_setting",
-    "elevation_m": "ambient.elevation",
-    **{k: v.replace("engine.curve", "curve") for k, v in ENGINE_FIELDS.items()},
-}
 
 
 @router.post(
@@ -68,51 +52,8 @@ AMBIENT_FIELDS = {
 async def create_dyno_correction(body: DynoCorrectionRequest, _json: JsonBody) -> Response:
     """Correction factors under SAE J1349 (1990 and 2004), SAE J607, DIN 70020 and ISO 1585
     for the cell's air, and the chosen standard applied to a curve if one is sent."""
-    u, amb, p = body.units, body.ambient, Quantity.PRESSURE
-    with core_fields(AMBIENT_FIELDS, u):
-        factors = correction_factors(
-            to_si(amb.temperature, Quantity.TEMPERATURE, u),
-            amb.relative_humidity / 100.0,
-            station_pressure_pa=None
-            if amb.station_pressure is None
-            else to_si(amb.station_pressure, p, u),
-            altimeter_setting_pa=None
-            if amb.altimeter_setting is None
-            else to_si(amb.altimeter_setting, p, u),
-            elevation_m=None
-            if amb.elevation is None
-            else to_si(amb.elevation, Quantity.DISTANCE, u),
-        )
-        chosen = factors[CorrectionStandard(body.standard)]
-        corrected = None
-        if body.curve is not None:
-            curve = apply_correction(build_curve(body.curve, u), chosen)
-            corrected = {
-                "rpm": rounded(curve.rpm, 1),
-                "source": curve.source.value,
-                "interpolation": curve.interpolation.value,
-                "torque": rounded(from_si(curve.torque_nm, Quantity.TORQUE, u), 3),
-            }
-    return FastJSONResponse(
-        {
-            "reference": body.reference,
-            "units": unit_labels(u),
-            "station_pressure": round(from_si(chosen.station_pressure_pa, p, u), 4),
-            "corrections": [
-                {
-                    "standard": c.standard.value,
-                    "factor": round(c.factor, 5),
-                    "within_validity": c.within_validity,
-                    "dry_pressure": round(from_si(c.dry_pressure_pa, p, u), 4),
-                    "vapour_pressure": round(from_si(c.vapour_pressure_pa, p, u), 4),
-                }
-                for c in factors.values()
-            ],
-            "applied": body.standard,
-            "corrected_curve": corrected,
-            "warnings": notices_out(chosen.notices, AMBIENT_FIELDS),
-        }
-    )
+    air = correct_to_standard_air(body)
+    return FastJSONResponse(dyno_correction_document(body, air))
 
 
 @router.post(
@@ -163,16 +104,7 @@ async def import_torque_curve(
     blank cells are skipped with a warning; a speed-based export (road speed with power or
     tractive force) needs `overall_ratio` and the tire, as query parameters or multipart
     fields. Errors name the line and column."""
-    kind = request.headers.get("content-type", "").split(";")[0].strip().lower()
-    form: dict[str, str] = {}
-    if kind == "multipart/form-data":
-        raw, form = await uploaded_file(request)
-    elif kind in {"text/csv", "text/plain", "text/tab-separated-values", ""}:
-        raw = await request.body()
-    else:
-        raise ProblemError(
-            415, "Send the dyno file as text/csv (or text/plain), or as a multipart upload."
-        )
+    raw, form = await uploaded_body(request)
     text, encoding = decoded_text(raw)
     query = {
         "overall_ratio": overall_ratio,
@@ -182,15 +114,6 @@ async def import_torque_curve(
         "tire_revs_per_km": tire_revs_per_km,
         "tire_rolling_factor": tire_rolling_factor,
     }
-    ratio, radius = road_speed_gear(query, form, units)
-    try:
-        run = read_dyno_text(
-            text,
-            rpm_step=rpm_step,
-            smoothing_window_rpm=smoothing_rpm,
-            overall_ratio=ratio,
-            rolling_radius_m=radius,
-        )
-    except DynoFileError as exc:
-        raise dyno_problem(exc) from exc
+    gear = road_speed_gear(query, form, units)
+    run = read_upload(text, rpm_step, smoothing_rpm, gear)
     return FastJSONResponse(imported_document(run, units, encoding))

@@ -24,7 +24,7 @@ from service.http.responses import FastJSONResponse
 from service.schemas.common import ApiModel, Problem
 from service.settings import get_settings
 
-__all__ = ["router"]
+__all__ = ["not_ready_because", "probe_shift_rpm", "router"]
 
 router = APIRouter(tags=["health"])
 # a linear curve falling from 350 to 50 N*m over 1000-7000 rpm on ratios 3 and 2 shifts
@@ -64,6 +64,21 @@ def probe_shift_rpm() -> float:
     return plan.shifts[0].shift_rpm
 
 
+def not_ready_because(request: Request) -> str | None:
+    """Why this worker is not ready (saturated, draining, or its self-check failed), or
+    None when it is."""
+    admission: Admission | None = getattr(request.app.state, "admission", None)
+    if admission is not None and admission.saturated():
+        why = "is shutting down" if admission.draining else "is saturated (queue full)"
+        return f"This worker {why}; not ready."
+    try:
+        ok = math.isclose(probe_shift_rpm(), _PROBE_SHIFT_RPM, rel_tol=1e-9)
+    except Exception:  # any failure of the self-check means "not ready", never a 500
+        _log.exception("readiness self-check failed")
+        ok = False
+    return None if ok else "The shift-plan self-check failed; this worker is not ready."
+
+
 @router.get(
     "/readyz",
     operation_id="get_readiness",
@@ -75,25 +90,11 @@ async def readiness(request: Request) -> Response:
     """Ready when this worker computes a tiny shift plan and gets the known answer, and
     is neither saturated (every calculation slot busy and the queue full) nor draining
     for shutdown."""
-    admission: Admission | None = getattr(request.app.state, "admission", None)
-    if admission is not None and admission.saturated():
-        why = "is shutting down" if admission.draining else "is saturated (queue full)"
+    why = not_ready_because(request)
+    if why is not None:
         return problem_response(
             503,
-            f"This worker {why}; not ready.",
-            request.url.path,
-            slug="not-ready",
-            headers={"Retry-After": str(get_settings().retry_after_s)},
-        )
-    try:
-        ok = math.isclose(probe_shift_rpm(), _PROBE_SHIFT_RPM, rel_tol=1e-9)
-    except Exception:  # any failure of the self-check means "not ready", never a 500
-        _log.exception("readiness self-check failed")
-        ok = False
-    if not ok:
-        return problem_response(
-            503,
-            "The shift-plan self-check failed; this worker is not ready.",
+            why,
             request.url.path,
             slug="not-ready",
             headers={"Retry-After": str(get_settings().retry_after_s)},

@@ -5,17 +5,14 @@ from __future__ import annotations
 from fastapi import APIRouter
 from starlette.responses import Response
 
-from core.logs.check import analyse_pass
 from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
-from service.mapping.inputs import build_drivetrain, build_tire, core_fields
 from service.mapping.log_analysis import (
     LOG_FIELDS,
-    build_pass_log,
+    check_logged_pass,
     log_analysis_document,
     log_summary,
-    model_shifts,
 )
 from service.schemas.log_analysis import LogAnalysisRequest, LogAnalysisResponse
 
@@ -36,21 +33,8 @@ async def create_log_analysis(body: LogAnalysisRequest, _json: JsonBody) -> Resp
     shift with its times, speeds, rpm and accelerations before and after, the empirical
     crossover of the two gears' logged acceleration, and whether the shift came early,
     late or about right; warnings, cautions and a printable summary."""
-    units, opts = body.units, body.options
-    drivetrain = build_drivetrain(body.drivetrain)
-    tire = build_tire(body.drivetrain.tire, units)
-    log, text = build_pass_log(body.log, units)
-    model = model_shifts(body, drivetrain, tire)
-    with core_fields(LOG_FIELDS):
-        analysis = analyse_pass(
-            log,
-            drivetrain,
-            tire,
-            rev_limit_rpm=model.rev_limit_rpm,
-            start_gear=opts.start_gear,
-            tolerance=opts.tolerance_percent / 100.0,
-            smoothing_window_s=opts.smoothing_window,
-        )
-    doc = log_analysis_document(analysis, log, text, model, units, LOG_FIELDS)
-    summary = log_summary(analysis, log, units, body.reference, model)
+    checked = check_logged_pass(body)
+    analysis, log, model = checked.analysis, checked.log, checked.model
+    doc = log_analysis_document(analysis, log, checked.text, model, body.units, LOG_FIELDS)
+    summary = log_summary(analysis, log, body.units, body.reference, model)
     return FastJSONResponse({"reference": body.reference, **doc, "summary": summary})
