@@ -12,17 +12,15 @@ time-optimal shift search <= 30 runs' worth.
 
 from __future__ import annotations
 
-import json
 from collections.abc import Callable
 from pathlib import Path
 
 import numpy as np
 from numpy.typing import NDArray
 
-from bench.inprocess import healthz_call, interleaved_ms
+from bench.common import demo_drive_model, healthz_call, interleaved_ms
 from core import (
     ShiftCriterion,
-    drive_model,
     optimal_shift_rpm,
     planned_shift_rpm,
     run_report,
@@ -33,26 +31,13 @@ from core.runs.milestones import STANDARD_DISTANCES
 from core.runs.report import QUARTER_MILE_M
 from core.runs.simulate import DriveModel
 from service.mapping.acceleration import SEARCH_BUDGET
-from service.mapping.inputs import build_curve, build_drivetrain, build_tire
-from service.mapping.vehicle import build_launch, build_vehicle
-from service.schemas.acceleration import AccelerationRunRequest
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 ROUNDS = 9
 
 
 def _model(name: str) -> tuple[DriveModel, NDArray[np.float64]]:
-    body = AccelerationRunRequest.model_validate(json.loads((DATA / f"{name}.json").read_text()))
-    u = body.units
-    curve = build_curve(body.engine.curve, u)
-    model = drive_model(
-        curve,
-        build_drivetrain(body.drivetrain),
-        build_tire(body.drivetrain.tire, u),
-        build_vehicle(body.vehicle, u),
-        build_launch(body.launch, curve, u),
-        rev_limit_rpm=body.engine.rev_limit_rpm,
-    )
+    model = demo_drive_model(name)
     return model, planned_shift_rpm(model, ShiftCriterion.NET_ACCELERATION)
 
 

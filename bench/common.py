@@ -1,39 +1,47 @@
-"""Benchmark helpers: repeated timing with median/p99, a uvicorn server, wrk runs."""
+"""Benchmark helpers measured in process: repeated timing with median and p99, cases
+interleaved round by round, the in-process ``GET /healthz`` baseline, CPU per request
+through the whole ASGI app, and the demo cars as core drive models.
+
+Interleaving: every case is timed in turn within each round, so that a busy moment of the
+shared machine touches all of them alike. Interleaved figures are CPU time of this process
+(``time.process_time``): on a machine shared with other work a long call is preempted more
+often than a short one, which wall-clock ratios would count against it.
+"""
 
 from __future__ import annotations
 
+import asyncio
 import json
-import os
-import re
-import shutil
-import socket
-import subprocess
-import sys
-import tempfile
+import statistics
 import time
-import urllib.request
-from collections.abc import Callable, Iterator
-from contextlib import contextmanager
+from collections.abc import Callable, Collection
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+import httpx
 import numpy as np
 
+from core import Drivetrain, Tire, drive_model, make_drivetrain, tire_from_diameter
+from core.runs.simulate import DriveModel
+from service.mapping.inputs import build_curve, build_drivetrain, build_tire
+from service.mapping.vehicle import build_launch, build_vehicle
+from service.schemas.acceleration import AccelerationRunRequest
+
 __all__ = [
-    "VARY",
+    "DATA",
     "Timing",
-    "WrkResult",
     "app_cpu_per_request",
-    "median_wrk",
+    "demo_drive_model",
+    "demo_log",
+    "healthz_call",
+    "interleaved_ms",
     "ratio_line",
-    "serve",
     "side_by_side",
     "time_call",
-    "wrk",
 ]
 
-VARY = "__N__"  # in a wrk body: replaced by a request counter, so no two bodies are alike
+DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 
 
 @dataclass(frozen=True)
@@ -63,29 +71,104 @@ def time_call(fn: Callable[[], object], *, runs: int = 300, warmup: int = 20) ->
     return Timing(float(np.median(samples)), float(np.percentile(samples, 99)), runs)
 
 
+def _interleaved(
+    cases: dict[str, tuple[Callable[[], object], int]], rounds: int, warmup: int
+) -> dict[str, list[list[float]]]:
+    """CPU seconds of each call, per case and round: ``rounds`` rounds, each timing every
+    case its ``calls`` times in turn, after ``warmup`` untimed calls of each."""
+    for fn, _ in cases.values():
+        for _ in range(warmup):
+            fn()
+    per_round: dict[str, list[list[float]]] = {k: [] for k in cases}
+    for _ in range(rounds):
+        for key, (fn, calls) in cases.items():
+            samples = []
+            for _ in range(calls):
+                t0 = time.process_time()
+                fn()
+                samples.append(time.process_time() - t0)
+            per_round[key].append(samples)
+    return per_round
+
+
 def side_by_side(
     fns: dict[str, Callable[[], object]], *, rounds: int = 9, calls: int = 20, warmup: int = 3
 ) -> dict[str, Timing]:
     """CPU time of several calls, interleaved round by round; each figure is the median
-    over ``rounds * calls`` calls, p99 too.
-
-    CPU time of this process, not wall time: on a shared machine a call that outlasts its
-    time slice waits for the others' work, which would make longer calls look superlinearly
-    dearer than short ones and spoil the ratios."""
-    for fn in fns.values():
-        for _ in range(warmup):
-            fn()
-    samples: dict[str, list[float]] = {k: [] for k in fns}
-    for _ in range(rounds):
-        for name, fn in fns.items():
-            for _ in range(calls):
-                t0 = time.process_time()
-                fn()
-                samples[name].append(time.process_time() - t0)
+    over ``rounds * calls`` calls, p99 too."""
+    got = _interleaved({k: (fn, calls) for k, fn in fns.items()}, rounds, warmup)
+    pooled = {k: [s for r in v for s in r] for k, v in got.items()}
     return {
         k: Timing(float(np.median(v)), float(np.percentile(v, 99)), len(v))
-        for k, v in samples.items()
+        for k, v in pooled.items()
     }
+
+
+def interleaved_ms(
+    cases: dict[str, tuple[Callable[[], object], int]], rounds: int
+) -> dict[str, float]:
+    """Median cost [ms] of each case: ``rounds`` rounds, each timing every case ``calls``
+    times in turn and keeping the median; the figure is the median of the rounds."""
+    got = _interleaved(cases, rounds, warmup=1)
+    return {k: statistics.median(statistics.median(r) * 1e3 for r in v) for k, v in got.items()}
+
+
+def healthz_call() -> tuple[Callable[[], object], Callable[[], None]]:
+    """A callable that answers ``GET /healthz`` in process, and one that closes it."""
+    from service.app import app
+
+    loop = asyncio.new_event_loop()
+    client = httpx.AsyncClient(transport=httpx.ASGITransport(app=app), base_url="http://bench")
+
+    def call() -> object:
+        response = loop.run_until_complete(client.get("/healthz"))
+        response.raise_for_status()
+        return response
+
+    def close() -> None:
+        loop.run_until_complete(client.aclose())
+        loop.close()
+
+    return call, close
+
+
+def _asgi_scope(path: str, body: bytes | None) -> dict[str, Any]:
+    """The ASGI scope of a GET (no body) or a JSON POST from the loopback interface."""
+    headers = [(b"host", b"127.0.0.1"), (b"content-type", b"application/json")]
+    if body is not None:
+        headers.append((b"content-length", str(len(body)).encode()))
+    return {
+        "type": "http",
+        "asgi": {"version": "3.0"},
+        "http_version": "1.1",
+        "method": "GET" if body is None else "POST",
+        "scheme": "http",
+        "path": path,
+        "raw_path": path.encode(),
+        "query_string": b"",
+        "root_path": "",
+        "headers": headers,
+        "client": ("127.0.0.1", 1),
+        "server": ("127.0.0.1", 80),
+    }
+
+
+async def _asgi_call(app: Any, path: str, body: bytes | None) -> None:
+    """One request through ``app``, the answer dropped; anything but a 200 stops the run."""
+    sent = False
+
+    async def receive() -> dict[str, Any]:
+        nonlocal sent
+        if sent:
+            await asyncio.sleep(3600)
+        sent = True
+        return {"type": "http.request", "body": body or b"", "more_body": False}
+
+    async def send(message: dict[str, Any]) -> None:
+        if message["type"] == "http.response.start" and message["status"] != 200:
+            raise SystemExit(f"{path} answered {message['status']}")
+
+    await app(_asgi_scope(path, body), receive, send)
 
 
 def app_cpu_per_request(
@@ -99,42 +182,6 @@ def app_cpu_per_request(
     per target, interleaved round by round; the median of the rounds. CPU time of this
     process, so other work on a shared machine does not count. A target is a path and
     either None (GET) or bodies to POST in turn, each one different."""
-    import asyncio
-
-    def scope(path: str, body: bytes | None) -> dict[str, Any]:
-        headers = [(b"host", b"127.0.0.1"), (b"content-type", b"application/json")]
-        if body is not None:
-            headers.append((b"content-length", str(len(body)).encode()))
-        return {
-            "type": "http",
-            "asgi": {"version": "3.0"},
-            "http_version": "1.1",
-            "method": "GET" if body is None else "POST",
-            "scheme": "http",
-            "path": path,
-            "raw_path": path.encode(),
-            "query_string": b"",
-            "root_path": "",
-            "headers": headers,
-            "client": ("127.0.0.1", 1),
-            "server": ("127.0.0.1", 80),
-        }
-
-    async def one(path: str, body: bytes | None) -> None:
-        sent = False
-
-        async def receive() -> dict[str, Any]:
-            nonlocal sent
-            if sent:
-                await asyncio.sleep(3600)
-            sent = True
-            return {"type": "http.request", "body": body or b"", "more_body": False}
-
-        async def send(message: dict[str, Any]) -> None:
-            if message["type"] == "http.response.start" and message["status"] != 200:
-                raise SystemExit(f"{path} answered {message['status']}")
-
-        await app(scope(path, body), receive, send)
 
     async def run() -> dict[str, float]:
         per: dict[str, list[float]] = {k: [] for k in requests}
@@ -148,7 +195,7 @@ def app_cpu_per_request(
                         if bodies is not None:
                             body = bodies[counters[name] % len(bodies)]
                             counters[name] += 1
-                        await one(path, body)
+                        await _asgi_call(app, path, body)
                     if not warm:
                         per[name].append((time.process_time() - t0) / calls)
         return {k: float(np.median(v)) for k, v in per.items()}
@@ -161,123 +208,28 @@ def ratio_line(label: str, value: float, target: str) -> str:
     return f"   RATIO {label:<48} {value:8.2f}x   (target {target})"
 
 
-def _free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return int(s.getsockname()[1])
-
-
-@contextmanager
-def serve(workers: int = 1, env: dict[str, str] | None = None) -> Iterator[str]:
-    """Run ``python -m service`` on a free loopback port; yield its base URL."""
-    port = _free_port()
-    env = {**os.environ, "GEARWORK_LOG_LEVEL": "warning", **(env or {})}
-    proc = subprocess.Popen(
-        [sys.executable, "-m", "service", "--port", str(port), "--workers", str(workers)],
-        env=env,
+def demo_drive_model(name: str, leave_out: Collection[str] = ()) -> DriveModel:
+    """The car of the demo acceleration-run request ``tests/data/<name>.json`` as a core
+    drive model, without the request's ``leave_out`` fields."""
+    raw = json.loads((DATA / f"{name}.json").read_text())
+    body = AccelerationRunRequest.model_validate({k: raw[k] for k in raw if k not in leave_out})
+    u = body.units
+    curve = build_curve(body.engine.curve, u)
+    return drive_model(
+        curve,
+        build_drivetrain(body.drivetrain),
+        build_tire(body.drivetrain.tire, u),
+        build_vehicle(body.vehicle, u),
+        build_launch(body.launch, curve, u),
+        rev_limit_rpm=body.engine.rev_limit_rpm,
     )
-    base = f"http://127.0.0.1:{port}"
-    try:
-        deadline = time.monotonic() + 60.0  # a loaded machine can take a while to import
-        while True:
-            try:
-                with urllib.request.urlopen(base + "/healthz", timeout=1):
-                    break
-            except OSError:
-                if time.monotonic() > deadline or proc.poll() is not None:
-                    raise SystemExit(f"the service did not come up on {base}") from None
-                time.sleep(0.05)
-        yield base
-    finally:
-        proc.terminate()
-        proc.wait(timeout=10)
 
 
-@dataclass(frozen=True)
-class WrkResult:
-    """What wrk reported."""
-
-    requests_per_s: float
-    p50_ms: float
-    p99_ms: float
-    errors: int
-
-    def __str__(self) -> str:
-        return (
-            f"{self.requests_per_s:9.0f} req/s   p50 {self.p50_ms:7.2f} ms   "
-            f"p99 {self.p99_ms:7.2f} ms   errors {self.errors}"
-        )
-
-
-_LUA = """
-wrk.method = "{method}"
-wrk.body = {body}
-wrk.headers["Content-Type"] = "application/json"
-local counter = 0
-if wrk.body ~= nil and string.find(wrk.body, "{vary}", 1, true) then
-  request = function()
-    counter = counter + 1
-    local body = string.gsub(wrk.body, "{vary}", tostring(counter))
-    return wrk.format(nil, nil, nil, body)
-  end
-end
-done = function(summary, latency, requests)
-  io.write(string.format(
-    "JSON {{\\"p50\\": %f, \\"p99\\": %f, \\"non2xx\\": %d, \\"errors\\": %d}}\\n",
-    latency:percentile(50) / 1000, latency:percentile(99) / 1000,
-    summary.errors.status, summary.errors.connect + summary.errors.read +
-    summary.errors.write + summary.errors.timeout))
-end
-"""
-
-
-def wrk(
-    url: str, *, body: bytes | None = None, seconds: int = 8, connections: int = 16
-) -> WrkResult:
-    """Load ``url`` with wrk (one thread, keep-alive) and parse its figures.
-
-    Where the body holds ``VARY`` each request replaces it with its own number, so every
-    body differs and a result cache never answers."""
-    exe = shutil.which("wrk")
-    if exe is None:
-        raise SystemExit("wrk not found: apt-get install wrk")
-    lua = _LUA.format(
-        method="POST" if body is not None else "GET",
-        body=json.dumps(body.decode()) if body is not None else "nil",
-        vary=VARY,
-    )
-    with tempfile.TemporaryDirectory() as tmp:
-        script = Path(tmp) / "req.lua"
-        script.write_text(lua)
-        done = subprocess.run(
-            [exe, "-t1", f"-c{connections}", f"-d{seconds}s", "-s", str(script), url],
-            capture_output=True,
-            text=True,
-            check=False,
-        )
-    if done.returncode != 0:
-        raise SystemExit(f"wrk failed on {url}: {done.stdout[-300:]} {done.stderr[-300:]}")
-    out = done.stdout
-    rps = float(re.search(r"Requests/sec:\s+([\d.]+)", out).group(1))  # type: ignore[union-attr]
-    stats = json.loads(out[out.index("JSON ") + 5 :].splitlines()[0])
-    return WrkResult(rps, stats["p50"], stats["p99"], int(stats["non2xx"]) + int(stats["errors"]))
-
-
-def median_wrk(
-    runs: dict[str, tuple[str, bytes | None]], *, repeats: int = 3, seconds: int = 3
-) -> dict[str, WrkResult]:
-    """wrk runs of several targets, interleaved ``repeats`` times; per target the median
-    throughput, p50 and p99 over the repeats (errors summed)."""
-    got: dict[str, list[WrkResult]] = {k: [] for k in runs}
-    for _ in range(repeats):
-        for name, (url, body) in runs.items():
-            got[name].append(wrk(url, body=body, seconds=seconds))
-    return {
-        k: WrkResult(
-            float(np.median([r.requests_per_s for r in v])),
-            float(np.median([r.p50_ms for r in v])),
-            float(np.median([r.p99_ms for r in v])),
-            sum(r.errors for r in v),
-        )
-        for k, v in got.items()
-    }
+def demo_log() -> tuple[str, Drivetrain, Tire]:
+    """The invented demo logger export ``tests/data/demo_log_pass_metric.csv`` and the
+    drivetrain and tire of its demo request."""
+    text = (DATA / "demo_log_pass_metric.csv").read_text()
+    request: dict[str, Any] = json.loads((DATA / "demo_log_request_metric.json").read_text())
+    dt = request["drivetrain"]
+    drivetrain = make_drivetrain(dt["gear_ratios"], dt["final_drive_ratio"])
+    return text, drivetrain, tire_from_diameter(dt["tire"]["diameter"] / 1000.0)

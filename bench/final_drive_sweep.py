@@ -6,7 +6,7 @@ integrator as the single run. Targets (issue 12): the whole sweep of 100 candida
 continuous optimum included, costs no more than 8 single runs (goal 5), and 1000
 candidates integrated together cost no more than 10 times 100. Timings are interleaved
 in rounds on the same process, in CPU time, and reported as medians
-(:mod:`bench.inprocess`); figures are printed, never asserted (the machine is shared).
+(:mod:`bench.common`); figures are printed, never asserted (the machine is shared).
 Run with ``python -m bench.final_drive_sweep``.
 """
 
@@ -24,7 +24,7 @@ import httpx
 import numpy as np
 from numpy.typing import NDArray
 
-from bench.inprocess import interleaved_ms
+from bench.common import demo_drive_model, interleaved_ms
 from core import shift_plan, simulate_run, top_speed
 from core.choice.batch_drive import batch_top_speed
 from core.choice.sweep import sweep_final_drives
@@ -32,11 +32,8 @@ from core.choice.sweep_spec import SWEEP_DISTANCES, SWEEP_SPEEDS, SweepObjective
 from core.runs.batch import batch_runs
 from core.runs.milestones import FOOT_M
 from core.runs.report import QUARTER_MILE_M, run_report
-from core.runs.simulate import DriveModel, drive_model
+from core.runs.simulate import DriveModel
 from service.app import app
-from service.mapping.inputs import build_curve, build_drivetrain, build_tire
-from service.mapping.vehicle import build_launch, build_vehicle
-from service.schemas.acceleration import AccelerationRunRequest
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 CANDIDATES = np.linspace(2.5, 4.5, 100)
@@ -45,18 +42,7 @@ ROUNDS = 7
 
 
 def _model(name: str) -> DriveModel:
-    raw = json.loads((DATA / f"{name}.json").read_text())
-    body = AccelerationRunRequest.model_validate({k: raw[k] for k in raw if k != "shifts"})
-    u = body.units
-    curve = build_curve(body.engine.curve, u)
-    return drive_model(
-        curve,
-        build_drivetrain(body.drivetrain),
-        build_tire(body.drivetrain.tire, u),
-        build_vehicle(body.vehicle, u),
-        build_launch(body.launch, curve, u),
-        rev_limit_rpm=body.engine.rev_limit_rpm,
-    )
+    return demo_drive_model(name, leave_out=("shifts",))
 
 
 def quarter_mile_sweep(model: DriveModel, ratios: NDArray[np.float64]) -> object:

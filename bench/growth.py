@@ -13,7 +13,6 @@ cost ~ size^k from the previous size (1 is linear). Figures are printed, never a
 from __future__ import annotations
 
 import functools
-import json
 import math
 from collections.abc import Callable
 from pathlib import Path
@@ -21,7 +20,7 @@ from typing import Any
 
 import numpy as np
 
-from bench.common import side_by_side
+from bench.common import demo_log, side_by_side
 from core import make_drivetrain, shift_plan, tire_from_size, torque_curve_from_torque
 from core.choice.sweep_spec import MAX_CANDIDATE_GEARS, MAX_CANDIDATES
 from core.logs.check import analyse_pass
@@ -102,13 +101,7 @@ def sweep_candidates() -> None:
 
 
 def log_samples() -> None:
-    text = (DATA / "demo_log_pass_metric.csv").read_text()
-    request: dict[str, Any] = json.loads((DATA / "demo_log_request_metric.json").read_text())
-    dt = request["drivetrain"]
-    drivetrain = make_drivetrain(dt["gear_ratios"], dt["final_drive_ratio"])
-    from core import tire_from_diameter
-
-    tire = tire_from_diameter(dt["tire"]["diameter"] / 1000.0)
+    text, drivetrain, tire = demo_log()
     demo = read_log_text(text).log
     if demo.rpm is None:
         raise SystemExit("the demo log must carry rpm")

@@ -27,23 +27,17 @@ from __future__ import annotations
 
 import argparse
 import json
-import os
 import shutil
 import subprocess
-import sys
 import tempfile
-import time
 import urllib.request
-from collections.abc import Iterator
-from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
 
 from prometheus_client.parser import text_string_to_metric_families
 
-from bench.common import _free_port
+from bench.server import ROOT, serve
 
-ROOT = Path(__file__).resolve().parent.parent
 DATA = ROOT / "tests" / "data"
 MARK = "REF-0000000000"  # stands for the varying reference in a body template
 
@@ -228,39 +222,6 @@ def run_wrk(
     )
 
 
-@contextmanager
-def serve(workers: int, metrics_dir: str) -> Iterator[tuple[str, int]]:
-    """Run ``python -m service`` on a free loopback port; yield (base URL, master pid)."""
-    port = _free_port()
-    env = {
-        **os.environ,
-        "GEARWORK_WORKERS": str(workers),
-        "GEARWORK_LOG_LEVEL": "warning",
-        "PROMETHEUS_MULTIPROC_DIR": metrics_dir,
-    }
-    proc = subprocess.Popen(
-        [sys.executable, "-m", "service", "--host", "127.0.0.1", "--port", str(port)],
-        cwd=ROOT,
-        env=env,
-        stdout=subprocess.DEVNULL,
-    )
-    base = f"http://127.0.0.1:{port}"
-    try:
-        deadline = time.monotonic() + 120
-        while time.monotonic() < deadline:
-            try:
-                with urllib.request.urlopen(base + "/readyz", timeout=2):
-                    break
-            except OSError:
-                time.sleep(0.2)
-        else:
-            raise SystemExit("the server did not become ready")
-        yield base, proc.pid
-    finally:
-        proc.terminate()
-        proc.wait(timeout=60)
-
-
 def _children(pid: int) -> list[int]:
     out = []
     for entry in Path("/proc").iterdir():
@@ -362,9 +323,10 @@ def main(argv: list[str] | None = None) -> None:
     for workers in [int(w) for w in args.workers.split(",")]:
         with (
             tempfile.TemporaryDirectory() as metrics_dir,
-            serve(workers, metrics_dir) as (base, master),
+            serve(workers, {"PROMETHEUS_MULTIPROC_DIR": metrics_dir}) as server,
         ):
-            pids = [master, *_children(master)]
+            base = server.base
+            pids = [server.pid, *_children(server.pid)]
             check_rotation(base)
             if args.soak:
                 soak(base, pids, args.soak, args.connections, workers, args.variants)

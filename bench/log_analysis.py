@@ -16,8 +16,7 @@ from typing import Any
 import httpx
 import numpy as np
 
-from bench.common import time_call
-from core import make_drivetrain, tire_from_diameter
+from bench.common import demo_log, time_call
 from core.driveline.chassis import MeasuredAt, chassis_conversion
 from core.logs.check import analyse_pass
 from core.logs.pass_data import SpeedUnit, pass_log
@@ -45,11 +44,8 @@ def _request(body: dict[str, Any], url: str) -> httpx.Response:
 
 
 def main() -> None:
-    text = (DATA / "demo_log_pass_metric.csv").read_text()
+    text, drivetrain, tire = demo_log()
     request: dict[str, Any] = json.loads((DATA / "demo_log_request_metric.json").read_text())
-    dt = request["drivetrain"]
-    drivetrain = make_drivetrain(dt["gear_ratios"], dt["final_drive_ratio"])
-    tire = tire_from_diameter(dt["tire"]["diameter"] / 1000.0)
     demo = read_log_text(text)
     print(f"read_log_text, demo export ({demo.rows} rows, semicolons, decimal commas)")
     print("  ", time_call(lambda: read_log_text(text), runs=200))

@@ -18,56 +18,14 @@ from __future__ import annotations
 import argparse
 import http.client
 import json
-import os
-import subprocess
-import sys
 import threading
 import time
 from collections import Counter
-from collections.abc import Iterator
-from contextlib import contextmanager
-from pathlib import Path
 
 import numpy as np
 
-from bench.common import _free_port
+from bench.server import serve
 from bench.worst_case import cases
-
-ROOT = Path(__file__).resolve().parent.parent
-
-
-@contextmanager
-def serve(env: dict[str, str], workers: int = 1) -> Iterator[tuple[int, int]]:
-    """``python -m service`` on a free loopback port; yield (port, pid)."""
-    port = _free_port()
-    full = {
-        **os.environ,
-        "GEARWORK_LOG_LEVEL": "warning",
-        "GEARWORK_REQUEST_LOG": "false",
-        **env,
-    }
-    proc = subprocess.Popen(
-        [sys.executable, "-m", "service", "--port", str(port), "--workers", str(workers)],
-        cwd=ROOT,
-        env=full,
-        stdout=subprocess.DEVNULL,
-    )
-    try:
-        deadline = time.monotonic() + 90
-        while time.monotonic() < deadline:
-            try:
-                status, _ = request(port, "GET", "/readyz", timeout=2)
-                if status == 200:
-                    break
-            except OSError:
-                pass
-            time.sleep(0.2)
-        else:
-            raise SystemExit("the server did not become ready")
-        yield port, proc.pid
-    finally:
-        proc.terminate()
-        proc.wait(timeout=60)
 
 
 def request(
@@ -164,8 +122,13 @@ def main(argv: list[str] | None = None) -> None:
         f"{'calc/s':>7s}  statuses"
     )
     for slots in [int(s) for s in args.slots.split(",")]:
-        env = {"GEARWORK_CALC_SLOTS": str(slots), "GEARWORK_WAIT_BUDGET_S": "10"}
-        with serve(env) as (port, _):
+        env = {
+            "GEARWORK_REQUEST_LOG": "false",
+            "GEARWORK_CALC_SLOTS": str(slots),
+            "GEARWORK_WAIT_BUDGET_S": "10",
+        }
+        with serve(1, env) as server:
+            port = server.port
             for path, headers, body in heaviest():  # warm-up: imports, fonts, caches
                 request(
                     port,

@@ -16,7 +16,8 @@ from typing import Any
 import numpy as np
 import orjson
 
-from bench.common import VARY, app_cpu_per_request, median_wrk, ratio_line, serve, time_call
+from bench.common import app_cpu_per_request, ratio_line, time_call
+from bench.server import VARY, median_wrk, serve
 from core import make_drivetrain, shift_plan, tire_from_size, torque_curve_from_torque
 from service.schemas.shift_plan import ShiftPlanRequest, ShiftPlanResponse
 
@@ -117,7 +118,8 @@ def main() -> None:
     fresh = json.dumps({**body, "reference": f"BENCH-{VARY}"}).encode()
     same = json.dumps({**body, "reference": "BENCH"}).encode()
     for workers in (1, 2):
-        with serve(workers=workers) as base:
+        with serve(workers) as server:
+            base = server.base
             median_wrk({"warm": (base + "/v1/shift-plan", fresh)}, repeats=1, seconds=1)
             got = median_wrk(
                 {
