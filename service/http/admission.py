@@ -23,12 +23,9 @@ from __future__ import annotations
 
 import asyncio
 import contextlib
-import contextvars
 import sys
-import threading
 import time
 from collections import deque
-from collections.abc import Awaitable, Callable
 from dataclasses import dataclass, field
 from typing import Protocol
 
@@ -36,8 +33,10 @@ import anyio
 from starlette.responses import Response
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
+from service.http.body import no_body, read_body, replayed
 from service.http.bodycheck import MAX_OBJECT_FIELDS, crowded_object
 from service.http.problems import problem_response
+from service.http.slot_thread import SlotThread
 
 __all__ = ["Admission", "AdmissionGate", "CalculationSlots", "is_calculation"]
 
@@ -59,42 +58,6 @@ class AdmissionMetrics(Protocol):
     def queue_changed(self, waiting: int, computing: int) -> None: ...
 
     def waited(self, seconds: float, outcome: str) -> None: ...
-
-
-class _SlotThread:
-    """A daemon thread running its own asyncio event loop, started on first use."""
-
-    def __init__(self, name: str) -> None:
-        self.loop = asyncio.new_event_loop()
-        self._thread = threading.Thread(target=self._run, name=name, daemon=True)
-        self._thread.start()
-
-    def _run(self) -> None:
-        asyncio.set_event_loop(self.loop)
-        self.loop.run_forever()
-
-    def run(
-        self,
-        factory: Callable[[], Awaitable[None]],
-        done: Callable[[BaseException | None], None],
-    ) -> None:
-        """Start ``factory()`` on this thread's loop in the caller's context; call
-        ``done(error)`` on this thread when it has finished."""
-        context = contextvars.copy_context()
-
-        async def wrapped() -> None:
-            await factory()
-
-        def start() -> None:
-            task = self.loop.create_task(wrapped(), context=context)
-
-            def finished(t: asyncio.Task[None]) -> None:
-                error = None if t.cancelled() else t.exception()
-                done(error)
-
-            task.add_done_callback(finished)
-
-        self.loop.call_soon_threadsafe(start)
 
 
 @dataclass
@@ -128,9 +91,9 @@ class Admission:
     computing: int = 0
     draining: bool = False
     mean_calc_s: float = 0.0  # moving average of a calculation's duration [s]
-    _free: list[_SlotThread] = field(default_factory=list)
+    _free: list[SlotThread] = field(default_factory=list)
     _started: int = 0
-    _waiters: deque[asyncio.Future[_SlotThread | None]] = field(default_factory=deque)
+    _waiters: deque[asyncio.Future[SlotThread | None]] = field(default_factory=deque)
 
     @property
     def capacity(self) -> int:
@@ -160,7 +123,7 @@ class Admission:
         if self.metrics is not None:
             self.metrics.queue_changed(self.waiting, self.computing)
 
-    def _take_free(self) -> _SlotThread | None:
+    def _take_free(self) -> SlotThread | None:
         if self._free:
             return self._free.pop()
         if self._started < self.slots:
@@ -169,17 +132,17 @@ class Admission:
                 # thread computing in Python gives it up after this interval (5 ms by default)
                 sys.setswitchinterval(self.switch_interval_s)
             self._started += 1
-            return _SlotThread(f"gearwork-calc-{self._started}")
+            return SlotThread(f"gearwork-calc-{self._started}")
         return None
 
-    async def acquire(self, deadline: float) -> tuple[bool, _SlotThread | None]:
+    async def acquire(self, deadline: float) -> tuple[bool, SlotThread | None]:
         """``(True, slot)`` once a slot is this request's (``None``: compute inline), or
         ``(False, None)`` past ``deadline``. Waiters are served first come, first served."""
         if self.computing < self.capacity and not self._waiters:
             self.computing += 1
             self._report()
             return True, self._take_free()
-        waiter: asyncio.Future[_SlotThread | None] = asyncio.get_running_loop().create_future()
+        waiter: asyncio.Future[SlotThread | None] = asyncio.get_running_loop().create_future()
         self._waiters.append(waiter)
         try:
             await asyncio.wait({waiter}, timeout=max(deadline - time.monotonic(), 0.0))
@@ -195,7 +158,7 @@ class Admission:
             return False, None
         return True, waiter.result()  # handed over: ``computing`` already counts it
 
-    def release(self, slot: _SlotThread | None) -> None:
+    def release(self, slot: SlotThread | None) -> None:
         """Hand the slot to the first waiter, else free it (call on the server's loop)."""
         while self._waiters:
             waiter = self._waiters.popleft()
@@ -217,9 +180,19 @@ class Admission:
             headers={"Retry-After": str(self.retry_after_s)},
         )
 
+    async def turn_away(
+        self, scope: Scope, send: Send, waited_s: float, outcome: str, detail: str
+    ) -> None:
+        """Count the wait under ``outcome`` and answer 503 with ``Retry-After``."""
+        if self.metrics is not None:
+            self.metrics.waited(waited_s, outcome)
+        await self.refuse(scope, f"{detail}; retry after {self.retry_after_s} s.")(
+            scope, no_body, send
+        )
 
-async def _empty_receive() -> Message:
-    return {"type": "http.disconnect"}
+    def busy(self) -> str:
+        """Why a full queue refuses, without the retry advice."""
+        return f"The service is busy ({self.capacity} computing, {self.queue} waiting)"
 
 
 class _BodyTimeoutError(Exception):
@@ -234,8 +207,9 @@ def arrival(scope: Scope) -> float:
     return float(state[_ARRIVED])
 
 
-class AdmissionGate:
-    """Refuse at once when draining or the queue is full; bound the time to send a body."""
+class _AdmissionMiddleware:
+    """What both admission middlewares share: the application, the admission state, and
+    every request but a calculation passed straight through."""
 
     def __init__(self, app: ASGIApp, admission: Admission) -> None:
         self.app = app
@@ -245,19 +219,22 @@ class AdmissionGate:
         if not is_calculation(scope):
             await self.app(scope, receive, send)
             return
+        await self.admit(scope, receive, send, arrival(scope))
+
+    async def admit(self, scope: Scope, receive: Receive, send: Send, arrived: float) -> None:
+        """Handle a calculation request that arrived at ``arrived`` (monotonic) [s]."""
+        raise NotImplementedError
+
+
+class AdmissionGate(_AdmissionMiddleware):
+    """Refuse at once when draining or the queue is full; bound the time to send a body."""
+
+    async def admit(self, scope: Scope, receive: Receive, send: Send, arrived: float) -> None:
         adm = self.admission
-        arrived = arrival(scope)
         if adm.draining or adm.saturated():
             reason = "draining" if adm.draining else "queue_full"
-            if adm.metrics is not None:
-                adm.metrics.waited(0.0, reason)
-            detail = (
-                "This worker is shutting down; retry after "
-                if adm.draining
-                else f"The service is busy ({adm.capacity} computing, {adm.queue} waiting); "
-                "retry after "
-            )
-            await adm.refuse(scope, f"{detail}{adm.retry_after_s} s.")(scope, _empty_receive, send)
+            detail = "This worker is shutting down" if adm.draining else adm.busy()
+            await adm.turn_away(scope, send, 0.0, reason, detail)
             return
         deadline = arrived + adm.client_timeout_s
         timed_out = False
@@ -291,42 +268,23 @@ class AdmissionGate:
                 slug="request-timeout",
                 headers={"Connection": "close"},
             )
-            await response(scope, _empty_receive, send)
+            await response(scope, no_body, send)
 
 
-class CalculationSlots:
+class CalculationSlots(_AdmissionMiddleware):
     """Wait for a calculation slot within the budget, then compute on the slot's thread."""
 
-    def __init__(self, app: ASGIApp, admission: Admission) -> None:
-        self.app = app
-        self.admission = admission
-
-    async def __call__(self, scope: Scope, receive: Receive, send: Send) -> None:
-        if not is_calculation(scope):
-            await self.app(scope, receive, send)
-            return
+    async def admit(self, scope: Scope, receive: Receive, send: Send, arrived: float) -> None:
         adm = self.admission
-        arrived = arrival(scope)
-        body = await _read_body(receive)
+        body = await read_body(receive)
         if body is None:
             return  # the client went away
         if adm.computing >= adm.capacity and adm.waiting >= adm.queue:
-            if adm.metrics is not None:
-                adm.metrics.waited(time.monotonic() - arrived, "queue_full")
-            await adm.refuse(
-                scope,
-                f"The service is busy ({adm.capacity} computing, {adm.queue} waiting); retry "
-                f"after {adm.retry_after_s} s.",
-            )(scope, _empty_receive, send)
+            await adm.turn_away(scope, send, time.monotonic() - arrived, "queue_full", adm.busy())
             return
         if time.monotonic() - arrived + adm.expected_wait_s() > adm.budget_s:
-            if adm.metrics is not None:
-                adm.metrics.waited(time.monotonic() - arrived, "budget")
-            await adm.refuse(
-                scope,
-                f"The wait for a calculation slot would exceed {adm.budget_s:g} s; retry "
-                f"after {adm.retry_after_s} s.",
-            )(scope, _empty_receive, send)
+            detail = f"The wait for a calculation slot would exceed {adm.budget_s:g} s"
+            await adm.turn_away(scope, send, time.monotonic() - arrived, "budget", detail)
             return
         adm.waiting += 1
         adm._report()
@@ -337,31 +295,18 @@ class CalculationSlots:
             adm._report()
         waited = time.monotonic() - arrived
         if not admitted:
-            if adm.metrics is not None:
-                adm.metrics.waited(waited, "budget")
-            await adm.refuse(
-                scope,
-                f"No calculation slot came free within {adm.budget_s:g} s; retry after "
-                f"{adm.retry_after_s} s.",
-            )(scope, _empty_receive, send)
+            detail = f"No calculation slot came free within {adm.budget_s:g} s"
+            await adm.turn_away(scope, send, waited, "budget", detail)
             return
         if adm.metrics is not None:
             adm.metrics.waited(waited, "admitted")
         await self._compute(scope, body, send, slot)
 
     async def _compute(
-        self, scope: Scope, body: bytes, send: Send, slot: _SlotThread | None
+        self, scope: Scope, body: bytes, send: Send, slot: SlotThread | None
     ) -> None:
         adm = self.admission
-        replayed = False
-
-        async def replay() -> Message:
-            nonlocal replayed
-            if not replayed:
-                replayed = True
-                return {"type": "http.request", "body": body, "more_body": False}
-            return {"type": "http.disconnect"}
-
+        replay = replayed(body)
         started = time.monotonic()
         if slot is None:
             try:
@@ -410,14 +355,3 @@ class CalculationSlots:
             field=where,
         )
         await response(scope, receive, send)
-
-
-async def _read_body(receive: Receive) -> bytes | None:
-    chunks = []
-    while True:
-        message = await receive()
-        if message["type"] != "http.request":
-            return None
-        chunks.append(message.get("body", b""))
-        if not message.get("more_body", False):
-            return b"".join(chunks)

@@ -25,6 +25,7 @@ from dataclasses import dataclass
 
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
+from service.http.body import read_body, replayed
 from service.http.problems import problem_response
 
 __all__ = ["ResultCache", "etag_matches"]
@@ -104,15 +105,9 @@ class ResultCache:
             )
             await response(scope, receive, send)
             return
-        chunks = []
-        while True:
-            message = await receive()
-            if message["type"] != "http.request":
-                return  # client went away
-            chunks.append(message.get("body", b""))
-            if not message.get("more_body", False):
-                break
-        body = b"".join(chunks)
+        body = await read_body(receive)
+        if body is None:
+            return  # client went away
         digest = hashlib.sha256(_VERSION)
         for part in (
             scope["path"].encode(),
@@ -148,15 +143,6 @@ class ResultCache:
     async def _compute(
         self, scope: Scope, body: bytes, send: Send, key: bytes, etag: bytes
     ) -> None:
-        replayed = False
-
-        async def replay() -> Message:
-            nonlocal replayed
-            if not replayed:
-                replayed = True
-                return {"type": "http.request", "body": body, "more_body": False}
-            return {"type": "http.disconnect"}
-
         status = 0
         out_headers: list[tuple[bytes, bytes]] = []
         parts: list[bytes] = []
@@ -174,7 +160,7 @@ class ResultCache:
                 parts.append(message.get("body", b""))
             await send(message)
 
-        await self.app(scope, replay, capture)
+        await self.app(scope, replayed(body), capture)
         size = sum(len(p) for p in parts)
         if status == 200 and self.max_entries > 0 and size <= self.max_bytes // 8:
             self._store[key] = _Entry(status, out_headers, b"".join(parts))

@@ -14,6 +14,7 @@ import contextlib
 
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
+from service.http.body import no_body
 from service.http.problems import problem_response
 
 __all__ = ["BodySizeLimit"]
@@ -79,8 +80,4 @@ class BodySizeLimit:
         response = problem_response(
             413, f"The request body exceeds the limit of {self.max_bytes} bytes.", path
         )
-        await response(scope, _empty_receive, send)
-
-
-async def _empty_receive() -> Message:
-    return {"type": "http.disconnect"}
+        await response(scope, no_body, send)
