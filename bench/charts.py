@@ -18,6 +18,17 @@ import time
 from pathlib import Path
 
 from bench.common import ratio_line, side_by_side, time_call
+from service.mapping.acceleration import RunOutcome, compute_acceleration_run
+from service.mapping.shift_plan import PlanOutcome, compute_shift_plan
+from service.output.chart_data import run_chart, tractive_force_chart
+from service.output.html import render_html
+from service.output.pdf import render_pdf
+from service.output.png_chart import ChartFormat, render_chart, svg_markup
+from service.output.run_report import acceleration_run_report
+from service.output.shift_plan_report import shift_plan_report
+from service.output.text import render_text
+from service.schemas.acceleration import AccelerationRunRequest
+from service.schemas.shift_plan import ShiftPlanRequest
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
 RUNS = 40
@@ -34,7 +45,7 @@ def _import_cost(modules: str) -> float:
     return float(out.strip().splitlines()[-1])
 
 
-def main() -> None:
+def _imports() -> None:
     mpl = "matplotlib.figure, matplotlib.backends.backend_agg, matplotlib.backends.backend_pdf"
     print(f"import matplotlib (figure, Agg, PDF), fresh process: {_import_cost(mpl):.3f} s")
     print(
@@ -42,23 +53,9 @@ def main() -> None:
         f"{_import_cost('service.output.png_chart'):.3f} s"
     )
 
-    from service.mapping.acceleration import compute_acceleration_run
-    from service.mapping.shift_plan import compute_shift_plan
-    from service.output.chart_data import run_chart, tractive_force_chart
-    from service.output.html import render_html
-    from service.output.pdf import render_pdf
-    from service.output.png_chart import ChartFormat, render_chart, svg_markup
-    from service.output.run_report import acceleration_run_report
-    from service.output.shift_plan_report import shift_plan_report
-    from service.output.text import render_text
-    from service.schemas.acceleration import AccelerationRunRequest
-    from service.schemas.shift_plan import ShiftPlanRequest
 
-    coupe = ShiftPlanRequest.model_validate(json.loads((DATA / "demo_coupe_us.json").read_text()))
-    sedan = AccelerationRunRequest.model_validate(
-        json.loads((DATA / "demo_sedan_run_metric.json").read_text())
-    )
-    plan = compute_shift_plan(coupe)
+def _renders(plan: PlanOutcome, run: RunOutcome) -> None:
+    """Chart data and each image format of the plan's and the run's charts."""
     force = tractive_force_chart(plan)
     t0 = time.perf_counter()
     render_chart(force, ChartFormat.SVG)
@@ -71,13 +68,15 @@ def main() -> None:
         size = len(render_chart(force, fmt))
         print(f"   {fmt.name:<14}", timing, f"  {size / 1024:.0f} KiB")
 
-    run = compute_acceleration_run(sedan)
     speed = run_chart(run)
     print("run chart, demo sedan")
     for fmt in ChartFormat:
         timing = time_call(functools.partial(render_chart, speed, fmt), runs=RUNS, warmup=3)
         print(f"   {fmt.name:<14}", timing)
 
+
+def _against_the_plan(coupe: ShiftPlanRequest) -> None:
+    """Each chart request against the computed shift-plan request, side by side."""
     from service.http.responses import FastJSONResponse
     from service.output.summary import shift_plan_summary
 
@@ -126,6 +125,10 @@ def main() -> None:
         )
     )
 
+
+def _reports(plan: PlanOutcome, run: RunOutcome) -> None:
+    """The shift-plan and run reports in each format, after the computation."""
+    force, speed = tractive_force_chart(plan), run_chart(run)
     report = shift_plan_report(plan)
     run_report = acceleration_run_report(run)
     print("shift-plan report, demo coupe (after the computation)")
@@ -139,6 +142,18 @@ def main() -> None:
     print(
         "   pdf           ", time_call(lambda: render_pdf(run_report, speed), runs=RUNS, warmup=3)
     )
+
+
+def main() -> None:
+    _imports()  # before this process imports them itself
+    coupe = ShiftPlanRequest.model_validate(json.loads((DATA / "demo_coupe_us.json").read_text()))
+    sedan = AccelerationRunRequest.model_validate(
+        json.loads((DATA / "demo_sedan_run_metric.json").read_text())
+    )
+    plan, run = compute_shift_plan(coupe), compute_acceleration_run(sedan)
+    _renders(plan, run)
+    _against_the_plan(coupe)
+    _reports(plan, run)
 
 
 if __name__ == "__main__":

@@ -79,11 +79,10 @@ def _served(
     return call
 
 
-def main() -> None:
+def _cases() -> dict[str, Callable[[int], object]]:
+    """The computations alone and with their sheets, in process and served; call ``i``
+    uses the ``i``-th body of its own."""
     import logging
-    import os
-
-    os.environ.setdefault("GEARWORK_REQUEST_LOG", "false")  # no access log lines in the figures
 
     from matplotlib.backends.backend_pdf import PdfPages
 
@@ -133,9 +132,25 @@ def main() -> None:
     served_pdf = _served(
         "/v1/reports/shift-plan", served_bodies[RUNS + 5 :], accept="application/pdf"
     )
-    for fn in (plan, plan_pdf, matplotlib_chart_pdf, run, run_pdf, served_plan, served_pdf):
+    return {
+        "plan": plan,
+        "plan_pdf": plan_pdf,
+        "mpl": matplotlib_chart_pdf,
+        "run": run,
+        "run_pdf": run_pdf,
+        "served_plan": served_plan,
+        "served_pdf": served_pdf,
+    }
+
+
+def main() -> None:
+    import os
+
+    os.environ.setdefault("GEARWORK_REQUEST_LOG", "false")  # no access log lines in the figures
+    cases = _cases()
+    for fn in cases.values():
         fn(RUNS)  # first call: imports, font metrics, caches
-    s = _alternate({"plan": served_plan, "pdf": served_pdf}, RUNS)
+    s = _alternate({"plan": cases["served_plan"], "pdf": cases["served_pdf"]}, RUNS)
     print(f"served in process (POST through the app, cache missed), median of {RUNS}")
     print(f"   POST /v1/shift-plan                        {s['plan'] * 1e3:8.2f} ms")
     print(f"   POST /v1/reports/shift-plan (PDF)          {s['pdf'] * 1e3:8.2f} ms")
@@ -143,7 +158,9 @@ def main() -> None:
         f"   PDF sheet / shift plan                     {s['pdf'] / s['plan']:8.1f} x"
         "   (target <= 10)"
     )
-    t = _alternate({"plan": plan, "pdf": plan_pdf, "mpl": matplotlib_chart_pdf}, RUNS)
+    t = _alternate(
+        {k: cases[v] for k, v in (("plan", "plan"), ("pdf", "plan_pdf"), ("mpl", "mpl"))}, RUNS
+    )
     print(f"in process, no HTTP: computation alone against computation + sheet, median of {RUNS}")
     print(f"   shift plan (JSON document)        {t['plan'] * 1e3:8.2f} ms")
     print(f"   PDF sheet (plan + sheet + chart)  {t['pdf'] * 1e3:8.2f} ms")
@@ -152,7 +169,7 @@ def main() -> None:
         f"   for comparison: the chart alone by matplotlib's PDF backend "
         f"{t['mpl'] * 1e3:.1f} ms = {t['mpl'] / t['plan']:.1f} x"
     )
-    r = _alternate({"run": run, "pdf": run_pdf}, RUNS // 2)
+    r = _alternate({"run": cases["run"], "pdf": cases["run_pdf"]}, RUNS // 2)
     print(f"acceleration run, demo sedan, median of {RUNS // 2}")
     print(f"   run (JSON document)               {r['run'] * 1e3:8.2f} ms")
     print(f"   PDF sheet (run + sheet + chart)   {r['pdf'] * 1e3:8.2f} ms")

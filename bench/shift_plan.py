@@ -18,7 +18,15 @@ import orjson
 
 from bench.common import app_cpu_per_request, ratio_line, time_call
 from bench.server import VARY, median_wrk, serve
-from core import make_drivetrain, shift_plan, tire_from_size, torque_curve_from_torque
+from core import (
+    Drivetrain,
+    Tire,
+    TorqueCurve,
+    make_drivetrain,
+    shift_plan,
+    tire_from_size,
+    torque_curve_from_torque,
+)
 from service.schemas.shift_plan import ShiftPlanRequest, ShiftPlanResponse
 
 DEMO = Path(__file__).resolve().parent.parent / "tests" / "data" / "demo_coupe_us.json"
@@ -34,8 +42,8 @@ def _hundred_point_request() -> dict[str, Any]:
     return body
 
 
-def main() -> None:
-    body = _hundred_point_request()
+def _core(body: dict[str, Any]) -> tuple[TorqueCurve, Drivetrain, Tire]:
+    """Time the core plan; the curve, drivetrain and tire it used."""
     curve = torque_curve_from_torque(
         np.array(body["engine"]["curve"]["rpm"]),
         np.array(body["engine"]["curve"]["torque"]) * 1.3558,
@@ -44,17 +52,18 @@ def main() -> None:
     tire = tire_from_size("255/40R18")
     print("core shift_plan, 6 gears, 100-point curve")
     print("  ", time_call(lambda: shift_plan(curve, drivetrain, tire), runs=500))
+    return curve, drivetrain, tire
 
-    # serialisation of the same response document, side by side
-    from service.app import app
+
+def _serialisation(body: dict[str, Any], car: tuple[TorqueCurve, Drivetrain, Tire]) -> None:
+    """The same response document written by orjson and by pydantic; the handler."""
+    from service.mapping.shift_plan import shift_plan_document
     from service.routes.shift_plan import create_shift_plan
 
+    curve, drivetrain, tire = car
     request = ShiftPlanRequest.model_validate(body)
     response = asyncio.run(create_shift_plan(request, None))
     doc = orjson.loads(response.body)
-
-    from service.mapping.shift_plan import shift_plan_document
-
     raw = shift_plan_document(
         shift_plan(curve, drivetrain, tire), curve, drivetrain, tire, request.units, {}
     )
@@ -78,6 +87,8 @@ def main() -> None:
     )
     loop.close()
 
+
+def _pchip(curve: TorqueCurve) -> None:
     from scipy.interpolate import PchipInterpolator
 
     from core.engine.curves import pchip_coefficients
@@ -88,6 +99,11 @@ def main() -> None:
     t_own = time_call(lambda: pchip_coefficients(x, y), runs=500)
     print("   scipy PchipInterpolator", t_scipy)
     print("   core pchip_coefficients", t_own)
+
+
+def _app_cpu(body: dict[str, Any]) -> None:
+    """CPU per request through the whole app in process, against /healthz."""
+    from service.app import app
 
     fresh_bodies = [json.dumps({**body, "reference": f"APP-{i}"}).encode() for i in range(4000)]
     cpu = app_cpu_per_request(
@@ -115,6 +131,9 @@ def main() -> None:
         )
     )
 
+
+def _served(body: dict[str, Any]) -> None:
+    """Throughput served by uvicorn with one and two workers, against /healthz."""
     fresh = json.dumps({**body, "reference": f"BENCH-{VARY}"}).encode()
     same = json.dumps({**body, "reference": "BENCH"}).encode()
     for workers in (1, 2):
@@ -144,6 +163,15 @@ def main() -> None:
             )
         )
         print(ratio_line("computed shift plan p99 / p50", plan.p99_ms / plan.p50_ms, "<= 4"))
+
+
+def main() -> None:
+    body = _hundred_point_request()
+    car = _core(body)
+    _serialisation(body, car)
+    _pchip(car[0])
+    _app_cpu(body)
+    _served(body)
 
 
 if __name__ == "__main__":

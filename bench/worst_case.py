@@ -35,22 +35,11 @@ def _demo(name: str) -> dict[str, Any]:
     return data
 
 
-def cases() -> list[tuple[str, str, dict[str, Any], dict[str, str]]]:
-    """(label, path, body, headers) of the heaviest admissible requests."""
-    coupe, sedan = _demo("demo_coupe_us"), _demo("demo_sedan_run_metric")
-    rpm = np.linspace(500.0, 29000.0, 2000)
-    curve = {
-        "rpm": rpm.round(3).tolist(),
-        "torque": (200.0 + 100.0 * np.sin(rpm / 3000.0)).round(3).tolist(),
-    }
-    gears = [float(g) for g in np.geomspace(5.0, 0.5, 12).round(4)]
-    plan = copy.deepcopy(coupe)
-    plan["engine"] = {"curve": curve}
-    plan["drivetrain"]["gear_ratios"] = gears
-    plan_car = copy.deepcopy(plan)
-    plan_car["vehicle"] = {**sedan["vehicle"], "mass": 3000}
-    plan_car["shift_criterion"] = "net_acceleration"
-    plan_car["cruise_speeds"] = [10.0 * (i + 1) for i in range(10)]
+Body = dict[str, Any]
+
+
+def _largest_runs(sedan: Body, curve: Body, gears: list[float]) -> tuple[Body, Body]:
+    """The longest optimised run of the largest car, and the same with converter tables."""
     run = copy.deepcopy(sedan)
     run["engine"] = {"curve": curve}
     run["drivetrain"]["gear_ratios"] = gears
@@ -71,6 +60,11 @@ def cases() -> list[tuple[str, str, dict[str, Any], dict[str, str]]]:
         },
         "lockup_gears": list(range(3, 13)),
     }
+    return run, converter
+
+
+def _largest_choices(curve: Body, gears: list[float]) -> tuple[Body, Body]:
+    """The largest comparison (8 variants) and final-drive sweep (100 candidates)."""
     comparison = _demo("demo_comparison_us")
     comparison["engine"] = {"curve": curve}
     comparison["drivetrain"]["gear_ratios"] = gears
@@ -82,6 +76,27 @@ def cases() -> list[tuple[str, str, dict[str, Any], dict[str, str]]]:
     sweep["drivetrain"]["gear_ratios"] = gears
     sweep.pop("ratios", None)
     sweep["ratio_range"] = {"low": 2.5, "high": 4.975, "step": 0.025}  # 100 x 12 gears
+    return comparison, sweep
+
+
+def cases() -> list[tuple[str, str, dict[str, Any], dict[str, str]]]:
+    """(label, path, body, headers) of the heaviest admissible requests."""
+    coupe, sedan = _demo("demo_coupe_us"), _demo("demo_sedan_run_metric")
+    rpm = np.linspace(500.0, 29000.0, 2000)
+    curve = {
+        "rpm": rpm.round(3).tolist(),
+        "torque": (200.0 + 100.0 * np.sin(rpm / 3000.0)).round(3).tolist(),
+    }
+    gears = [float(g) for g in np.geomspace(5.0, 0.5, 12).round(4)]
+    plan = copy.deepcopy(coupe)
+    plan["engine"] = {"curve": curve}
+    plan["drivetrain"]["gear_ratios"] = gears
+    plan_car = copy.deepcopy(plan)
+    plan_car["vehicle"] = {**sedan["vehicle"], "mass": 3000}
+    plan_car["shift_criterion"] = "net_acceleration"
+    plan_car["cruise_speeds"] = [10.0 * (i + 1) for i in range(10)]
+    run, converter = _largest_runs(sedan, curve, gears)
+    comparison, sweep = _largest_choices(curve, gears)
     crowded = {**coupe, **{f"k{i}": i for i in range(15_000)}}
     html, pdf = {"accept": "text/html"}, {"accept": "application/pdf"}
     return [
