@@ -6,6 +6,8 @@ import contextlib
 import signal
 import threading
 from collections.abc import AsyncIterator
+from types import ModuleType
+from typing import Any
 
 from fastapi import FastAPI
 
@@ -54,6 +56,44 @@ worker answers 503 with `Retry-After`. Results carry an `ETag`; send it back in
 `If-None-Match` to get 304 without a body.
 """
 
+OPENAPI_TAGS: list[dict[str, Any]] = [
+    {"name": "shift plan", "description": "Per-gear force and shift points."},
+    {"name": "acceleration run", "description": "Timed runs of a described car."},
+    {"name": "dyno", "description": "Correction to standard air; dyno-file import."},
+    {"name": "chassis dyno", "description": "Wheel and engine figures by gear."},
+    {"name": "log analysis", "description": "Data-logger checks of real shifts."},
+    {"name": "comparison", "description": "Setups side by side."},
+    {"name": "final drive sweep", "description": "Rank final-drive ratios."},
+    {"name": "gear design", "description": "Gear spacing; speedometer correction."},
+    {"name": "road load", "description": "Road load fitted to coast-downs."},
+    {"name": "shift window", "description": "What each shift rpm costs."},
+    {"name": "weather", "description": "Density altitude; slips between weathers."},
+    {
+        "name": "reports",
+        "description": "Printable sheets (HTML, text, PDF) of every answer.",
+    },
+    {"name": "charts", "description": "Charts of tractive force."},
+    {"name": "health", "description": "Liveness and readiness."},
+]
+# in the order their routes are matched and listed
+ROUTERS: tuple[ModuleType, ...] = (
+    health,
+    shift_plan,
+    acceleration,
+    dyno,
+    comparison,
+    final_drive,
+    gear_design,
+    reports,
+    charts,
+    log_analysis,
+    chassis,
+    coastdown,
+    shift_window,
+    weather,
+    demo,
+)
+
 
 def _drain_on_signals(admission: Admission) -> None:
     """Chain a handler before the server's own on SIGTERM/SIGINT: from then on this
@@ -75,75 +115,9 @@ def _drain_on_signals(admission: Admission) -> None:
         signal.signal(sig, handler)
 
 
-def create_app() -> FastAPI:
-    """Build the application with its routes, limits, headers, metrics and error handlers."""
+def _add_middleware(app: FastAPI, admission: Admission, metrics: Metrics | None) -> None:
+    """The middleware stack around the routes, from the settings."""
     settings = get_settings()
-    configure_logging(settings.log_level)
-    metrics = Metrics() if settings.metrics else None
-    admission = Admission(
-        slots=settings.calc_slots,
-        queue=settings.queue_limit,
-        budget_s=settings.wait_budget_s,
-        client_timeout_s=settings.client_timeout_s,
-        retry_after_s=settings.retry_after_s,
-        switch_interval_s=settings.switch_interval_s,
-        metrics=metrics,
-    )
-
-    @contextlib.asynccontextmanager
-    async def lifespan(_: FastAPI) -> AsyncIterator[None]:
-        _drain_on_signals(admission)  # the server has installed its handlers by now
-        yield
-
-    app = FastAPI(
-        lifespan=lifespan,
-        docs_url=None,
-        redoc_url=None,
-        title="gearwork",
-        version="0.1.0",
-        description=DESCRIPTION,
-        openapi_tags=[
-            {"name": "shift plan", "description": "Per-gear force and shift points."},
-            {"name": "acceleration run", "description": "Timed runs of a described car."},
-            {"name": "dyno", "description": "Correction to standard air; dyno-file import."},
-            {"name": "chassis dyno", "description": "Wheel and engine figures by gear."},
-            {"name": "log analysis", "description": "Data-logger checks of real shifts."},
-            {"name": "comparison", "description": "Setups side by side."},
-            {"name": "final drive sweep", "description": "Rank final-drive ratios."},
-            {"name": "gear design", "description": "Gear spacing; speedometer correction."},
-            {"name": "road load", "description": "Road load fitted to coast-downs."},
-            {"name": "shift window", "description": "What each shift rpm costs."},
-            {"name": "weather", "description": "Density altitude; slips between weathers."},
-            {
-                "name": "reports",
-                "description": "Printable sheets (HTML, text, PDF) of every answer.",
-            },
-            {"name": "charts", "description": "Charts of tractive force."},
-            {"name": "health", "description": "Liveness and readiness."},
-        ],
-    )
-    app.include_router(health.router)
-    app.include_router(shift_plan.router)
-    app.include_router(acceleration.router)
-    app.include_router(dyno.router)
-    for module in (
-        comparison,
-        final_drive,
-        gear_design,
-        reports,
-        charts,
-        log_analysis,
-        chassis,
-    ):
-        app.include_router(module.router)
-    for module in (coastdown, shift_window, weather):
-        app.include_router(module.router)
-    app.include_router(demo.router)
-    install_problem_handlers(app)
-    if settings.docs:
-        install_docs(app)
-    app.state.metrics = metrics
-    app.state.admission = admission
     # Each add_middleware wraps what was added before it, so the last is outermost. From
     # the outside in: request id, metrics and access log see every answer; cache headers
     # and one merged Vary go on the final (possibly gzipped) answer; CORS headers go on
@@ -177,6 +151,45 @@ def create_app() -> FastAPI:
         )
     app.add_middleware(ResponseHeaders, result_max_age_s=settings.result_max_age_s)
     app.add_middleware(RequestObservability, metrics=metrics, log_requests=settings.request_log)
+
+
+def create_app() -> FastAPI:
+    """Build the application with its routes, limits, headers, metrics and error handlers."""
+    settings = get_settings()
+    configure_logging(settings.log_level)
+    metrics = Metrics() if settings.metrics else None
+    admission = Admission(
+        slots=settings.calc_slots,
+        queue=settings.queue_limit,
+        budget_s=settings.wait_budget_s,
+        client_timeout_s=settings.client_timeout_s,
+        retry_after_s=settings.retry_after_s,
+        switch_interval_s=settings.switch_interval_s,
+        metrics=metrics,
+    )
+
+    @contextlib.asynccontextmanager
+    async def lifespan(_: FastAPI) -> AsyncIterator[None]:
+        _drain_on_signals(admission)  # the server has installed its handlers by now
+        yield
+
+    app = FastAPI(
+        lifespan=lifespan,
+        docs_url=None,
+        redoc_url=None,
+        title="gearwork",
+        version="0.1.0",
+        description=DESCRIPTION,
+        openapi_tags=OPENAPI_TAGS,
+    )
+    for module in ROUTERS:
+        app.include_router(module.router)
+    install_problem_handlers(app)
+    if settings.docs:
+        install_docs(app)
+    app.state.metrics = metrics
+    app.state.admission = admission
+    _add_middleware(app, admission, metrics)
 
     def openapi() -> dict[str, object]:
         return build_openapi(app)

@@ -215,6 +215,49 @@ def count_lines(source: Path) -> int:
         return sum(1 for line in fh if line.strip())
 
 
+@dataclass(frozen=True)
+class _Engine:
+    """Where chunks run: how to submit one, the workers there, its name, how to stop it."""
+
+    submit: Submit
+    workers: int
+    name: str
+    close: Callable[[], None]
+
+
+def _engine(jobs: int, scheduler: Any) -> _Engine:
+    """Dask when a scheduler is given, else ``jobs`` local processes, else this one."""
+    if scheduler is not None:
+        from distributed import Client
+
+        client: Any = Client(scheduler, set_as_default=False)  # type: ignore[no-untyped-call]
+        workers = max(1, sum(client.nthreads().values()))
+
+        def on_dask(chunk: list[tuple[int, bytes]], s: OutputSpec) -> _Future:
+            future: _Future = client.submit(run_chunk, chunk, s, pure=False)
+            return future
+
+        name = f"Dask ({workers} worker threads at {client.scheduler.address})"
+        return _Engine(on_dask, workers, name, client.close)
+    if jobs > 1:
+        pool = _local_pool(jobs)
+
+        def on_pool(chunk: list[tuple[int, bytes]], s: OutputSpec) -> _Future:
+            return pool.submit(run_chunk, chunk, s)
+
+        return _Engine(
+            on_pool,
+            jobs,
+            f"{jobs} local processes",
+            lambda: pool.shutdown(cancel_futures=True),
+        )
+
+    def here(chunk: list[tuple[int, bytes]], s: OutputSpec) -> _Future:
+        return _Here(run_chunk(chunk, s))
+
+    return _Engine(here, jobs, "this process", lambda: None)
+
+
 def run_batch(
     source: Path,
     target: Path,
@@ -251,34 +294,8 @@ def run_batch(
     started = time.monotonic()
     done = completed_ids(target, spec)
     total = count_lines(source)
-    workers = jobs
-    client: Any = None
-    pool: Executor | None = None
-    submit: Submit
-    if scheduler is not None:
-        from distributed import Client
-
-        client = Client(scheduler, set_as_default=False)  # type: ignore[no-untyped-call]
-        workers = max(1, sum(client.nthreads().values()))
-        summary.engine = f"Dask ({workers} worker threads at {client.scheduler.address})"
-
-        def submit(chunk: list[tuple[int, bytes]], s: OutputSpec) -> _Future:
-            future: _Future = client.submit(run_chunk, chunk, s, pure=False)
-            return future
-
-    elif jobs > 1:
-        local = pool = _local_pool(jobs)
-        summary.engine = f"{jobs} local processes"
-
-        def submit(chunk: list[tuple[int, bytes]], s: OutputSpec) -> _Future:
-            return local.submit(run_chunk, chunk, s)
-
-    else:
-        summary.engine = "this process"
-
-        def submit(chunk: list[tuple[int, bytes]], s: OutputSpec) -> _Future:
-            return _Here(run_chunk(chunk, s))
-
+    engine = _engine(jobs, scheduler)
+    summary.engine, workers = engine.name, engine.workers
     left = max(0, total - len(done))
     size = chunk_size or max(1, min(64, -(-left // (8 * workers))))
     bar = Progress(left, enabled=progress, stream=stream)
@@ -288,7 +305,7 @@ def run_batch(
             if spec.kind == "csv" and fresh:
                 out.write(csv_header(spec))
             todo = _chunks(_todo(source, done, summary), size)
-            for records in _ordered(submit, todo, spec, window=4 * workers):
+            for records in _ordered(engine.submit, todo, spec, window=4 * workers):
                 out.write("".join(r.text for r in records))
                 out.flush()
                 summary.written += len(records)
@@ -296,10 +313,7 @@ def run_batch(
                 bar.advance(len(records))
     finally:
         bar.close()
-        if pool is not None:
-            pool.shutdown(cancel_futures=True)
-        if client is not None:
-            client.close()
+        engine.close()
     summary.seconds = time.monotonic() - started
     return summary
 
