@@ -78,7 +78,7 @@ def _renders(plan: PlanOutcome, run: RunOutcome) -> None:
 def _against_the_plan(coupe: ShiftPlanRequest) -> None:
     """Each chart request against the computed shift-plan request, side by side."""
     from service.http.responses import FastJSONResponse
-    from service.output.summary import shift_plan_summary
+    from service.output.shift_plan_summary import shift_plan_summary
 
     numbers = itertools.count()
 

@@ -64,24 +64,18 @@ def _converter_columns(table: GearTable) -> dict[str, Any]:
     }
 
 
-def shift_plan_document(
-    plan: ShiftPlan,
-    curve: TorqueCurve,
-    drivetrain: Drivetrain,
-    tire: Tire,
-    units: UnitSystem,
-    fields: Mapping[str, str],
-) -> dict[str, Any]:
-    """The body of a shift-plan response, without reference and summary."""
+def _gear_documents(
+    plan: ShiftPlan, drivetrain: Drivetrain, rpm: Any, units: UnitSystem
+) -> list[dict[str, Any]]:
+    """Each gear with its table; every gear's columns converted and rounded together, one
+    array operation per quantity."""
     speed, force, torque, power = Quantity.SPEED, Quantity.FORCE, Quantity.TORQUE, Quantity.POWER
     tables = plan.gears
-    # every gear's columns converted and rounded together, one array operation per quantity
     v = rounded(from_si(np.stack([g.speed_m_s for g in tables]), speed, units), 2)
     wt = rounded(from_si(np.stack([g.wheel_torque_nm for g in tables]), torque, units), 1)
     tf = rounded(from_si(np.stack([g.tractive_force_n for g in tables]), force, units), 1)
     wp = rounded(from_si(np.stack([g.wheel_power_w for g in tables]), power, units), 2)
-    rpm = rounded(tables[0].rpm, 1)
-    gears = [
+    return [
         {
             "gear": g.gear,
             "ratio": ratio,
@@ -99,7 +93,12 @@ def shift_plan_document(
         }
         for i, (g, ratio) in enumerate(zip(tables, drivetrain.gear_ratios.tolist(), strict=True))
     ]
-    shifts = [
+
+
+def _shift_documents(plan: ShiftPlan, units: UnitSystem) -> list[dict[str, Any]]:
+    """Each shift; plain floats (core's fields), rounded without a helper."""
+    speed, force = Quantity.SPEED, Quantity.FORCE
+    return [
         {
             "from_gear": s.from_gear,
             "to_gear": s.to_gear,
@@ -117,8 +116,24 @@ def shift_plan_document(
             if s.coincident_rpm is None
             else [round(s.coincident_rpm[0], 1), round(s.coincident_rpm[1], 1)],
         }
-        for s in plan.shifts  # plain floats (core's fields), rounded without a helper
+        for s in plan.shifts
     ]
+
+
+def shift_plan_document(
+    plan: ShiftPlan,
+    curve: TorqueCurve,
+    drivetrain: Drivetrain,
+    tire: Tire,
+    units: UnitSystem,
+    fields: Mapping[str, str],
+) -> dict[str, Any]:
+    """The body of a shift-plan response, without reference and summary."""
+    torque, power = Quantity.TORQUE, Quantity.POWER
+    tables = plan.gears
+    rpm = rounded(tables[0].rpm, 1)
+    gears = _gear_documents(plan, drivetrain, rpm, units)
+    shifts = _shift_documents(plan, units)
     t_peak, p_peak = plan.peak_torque_nm, plan.peak_power_w
     return {
         "units": unit_labels(units),

@@ -22,7 +22,14 @@ from service.mapping.inputs import DRIVETRAIN_FIELDS, ENGINE_FIELDS, core_fields
 from service.schemas.vehicle import LaunchIn, VehicleIn
 from service.units import Quantity, UnitSystem, to_si
 
-__all__ = ["CAR_FIELDS", "LAUNCH_FIELDS", "VEHICLE_FIELDS", "build_launch", "build_vehicle"]
+__all__ = [
+    "CAR_FIELDS",
+    "LAUNCH_FIELDS",
+    "VEHICLE_FIELDS",
+    "build_launch",
+    "build_vehicle",
+    "vehicle_air_density",
+]
 
 VEHICLE_FIELDS: Mapping[str, str] = {
     "mass_kg": "vehicle.mass",
@@ -68,55 +75,59 @@ CAR_FIELDS: Mapping[str, str] = {
 }
 
 
+def vehicle_air_density(body: VehicleIn, units: UnitSystem) -> float:
+    """Density [kg/m^3] of the air the vehicle's road load is stated for (its `air` block:
+    15 degC unless given, the pressure or else the altitude)."""
+    air = body.air
+    temperature_k = (
+        288.15 if air.temperature is None else to_si(air.temperature, Quantity.TEMPERATURE, units)
+    )
+    state = air_state(
+        temperature_k,
+        air.relative_humidity / 100.0,
+        pressure_pa=None
+        if air.pressure is None
+        else to_si(air.pressure, Quantity.PRESSURE, units),
+        altitude_m=None
+        if air.pressure is not None
+        else to_si(air.altitude or 0.0, Quantity.DISTANCE, units),
+    )
+    return state.density_kg_m3
+
+
+def _road_load(body: VehicleIn, mass: float, density: float, units: UnitSystem) -> RoadLoad:
+    """The road load: from coast-down coefficients, else drag and rolling in ``density``."""
+    load = body.road_load
+    if load.coast_down is not None:
+        f0, f1, f2 = load.coast_down
+        return RoadLoad.from_coast_down(
+            mass,
+            to_si(f0, Quantity.FORCE, units),
+            to_si(f1, Quantity.FORCE_PER_SPEED, units),
+            to_si(f2, Quantity.FORCE_PER_SPEED_SQUARED, units),
+            grade_percent=load.grade_percent,
+        )
+    if load.drag_area is not None:
+        cda = to_si(load.drag_area, Quantity.AREA, units)
+    else:
+        cda = float(load.drag_coefficient or 0.0) * to_si(
+            float(load.frontal_area or 0.0), Quantity.AREA, units
+        )
+    if load.rolling_coefficient is None:
+        return RoadLoad.from_speed_dependent_rolling(
+            mass, cda, density, grade_percent=load.grade_percent
+        )
+    return RoadLoad.from_constant_rolling(
+        mass, cda, density, load.rolling_coefficient, grade_percent=load.grade_percent
+    )
+
+
 def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
     """The core vehicle of a request's vehicle."""
     with core_fields(VEHICLE_FIELDS, units):
         mass = to_si(body.mass, Quantity.MASS, units)
-        air = body.air
-        temperature_k = (
-            288.15
-            if air.temperature is None
-            else to_si(air.temperature, Quantity.TEMPERATURE, units)
-        )
-        state = air_state(
-            temperature_k,
-            air.relative_humidity / 100.0,
-            pressure_pa=None
-            if air.pressure is None
-            else to_si(air.pressure, Quantity.PRESSURE, units),
-            altitude_m=None
-            if air.pressure is not None
-            else to_si(air.altitude or 0.0, Quantity.DISTANCE, units),
-        )
-        load = body.road_load
-        if load.coast_down is not None:
-            f0, f1, f2 = load.coast_down
-            road = RoadLoad.from_coast_down(
-                mass,
-                to_si(f0, Quantity.FORCE, units),
-                to_si(f1, Quantity.FORCE_PER_SPEED, units),
-                to_si(f2, Quantity.FORCE_PER_SPEED_SQUARED, units),
-                grade_percent=load.grade_percent,
-            )
-        else:
-            if load.drag_area is not None:
-                cda = to_si(load.drag_area, Quantity.AREA, units)
-            else:
-                cda = float(load.drag_coefficient or 0.0) * to_si(
-                    float(load.frontal_area or 0.0), Quantity.AREA, units
-                )
-            if load.rolling_coefficient is None:
-                road = RoadLoad.from_speed_dependent_rolling(
-                    mass, cda, state.density_kg_m3, grade_percent=load.grade_percent
-                )
-            else:
-                road = RoadLoad.from_constant_rolling(
-                    mass,
-                    cda,
-                    state.density_kg_m3,
-                    load.rolling_coefficient,
-                    grade_percent=load.grade_percent,
-                )
+        density = vehicle_air_density(body, units)  # checked even where coast-down sets drag
+        road = _road_load(body, mass, density, units)
         geometry = AxleGeometry.from_front_weight_share(
             to_si(body.wheelbase, Quantity.LENGTH, units),
             to_si(body.cg_height, Quantity.LENGTH, units),

@@ -8,17 +8,16 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
-from core import Notice, air_state, drive_model
+from core import Notice, drive_model
 from core.air.weather import SlipPrediction, Weather, WeatherAir, predict_slip, weather_air
 from core.engine.correction import CorrectionStandard
 from core.runs.report import QUARTER_MILE_M
 from service.mapping.acceleration import RUN_FIELDS
 from service.mapping.documents import notices_out
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
-from service.mapping.vehicle import build_launch, build_vehicle
+from service.mapping.vehicle import build_launch, build_vehicle, vehicle_air_density
 from service.output.cautions import CAUTIONS
 from service.output.sheets import summary_sheet, wrap_text
-from service.schemas.vehicle import VehicleIn
 from service.schemas.weather import StripWeatherIn, WeatherCorrectionRequest
 from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
@@ -75,21 +74,6 @@ def _weather(w: StripWeatherIn, u: UnitSystem) -> Weather:
     )
 
 
-def _vehicle_density(v: VehicleIn, u: UnitSystem) -> float:
-    """Density the vehicle's road load was built for, from its `air` block."""
-    air = v.air
-    t = 288.15 if air.temperature is None else to_si(air.temperature, Quantity.TEMPERATURE, u)
-    state = air_state(
-        t,
-        air.relative_humidity / 100.0,
-        pressure_pa=None if air.pressure is None else to_si(air.pressure, Quantity.PRESSURE, u),
-        altitude_m=None
-        if air.pressure is not None
-        else to_si(air.altitude or 0.0, Quantity.DISTANCE, u),
-    )
-    return state.density_kg_m3
-
-
 def _carried_slip(
     body: WeatherCorrectionRequest, taken: Weather, standard: CorrectionStandard
 ) -> SlipPrediction | None:
@@ -112,7 +96,7 @@ def _carried_slip(
         )
         return predict_slip(
             model,
-            _vehicle_density(body.vehicle, u),
+            vehicle_air_density(body.vehicle, u),
             taken,
             _weather(body.predict_for, u),
             standard,

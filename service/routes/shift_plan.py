@@ -9,7 +9,7 @@ from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.shift_plan import compute_shift_plan
-from service.output.summary import shift_plan_summary
+from service.output.shift_plan_summary import shift_plan_summary
 from service.schemas.shift_plan import ShiftPlanRequest, ShiftPlanResponse
 
 __all__ = ["router"]

@@ -1,4 +1,5 @@
-"""Plain-text summaries for work orders: at most 80 columns, printable ASCII."""
+"""The shift plan as a plain-text summary for work orders: at most 80 columns, printable
+ASCII."""
 
 from __future__ import annotations
 
@@ -7,9 +8,8 @@ from service.output.cautions import SHORT_CAUTION
 from service.output.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
-__all__ = ["WIDTH", "shift_plan_summary"]
+__all__ = ["shift_plan_summary"]
 
-WIDTH = 80
 _WHY = {"crossover": "crossover", "rev_limit": "rev limit", "traction_limit": "both on grip"}
 _CAUTION_LINES = ("", *wrap_text("Caution: " + SHORT_CAUTION))  # wrapped once
 
@@ -40,13 +40,28 @@ def shift_plan_summary(
     str
         Lines of at most 80 columns joined by newlines, printable ASCII only.
     """
-    lab = unit_labels(units)
-    spd, trq, pwr, lng = lab["speed"], lab["torque"], lab["power"], lab["length"]
     lines = [title_line("GEARWORK SHIFT PLAN", reference)]
+    lines += _inputs_lines(plan, curve, drivetrain, tire, units)
+    lines += _gears_and_shifts(plan, drivetrain, units)
+    if plan.notices:
+        lines.append("")
+        lines.append("Warnings:")
+        for n in plan.notices:
+            lines += wrap_text(n.message, "- ")
+    lines += _CAUTION_LINES
+    return printable(lines)
+
+
+def _inputs_lines(
+    plan: ShiftPlan, curve: TorqueCurve, drivetrain: Drivetrain, tire: Tire, units: UnitSystem
+) -> list[str]:
+    """The curve and the drivetrain the plan used, in sentences."""
+    lab = unit_labels(units)
+    trq, pwr, lng = lab["torque"], lab["power"], lab["length"]
     t_peak = from_si(plan.peak_torque_nm, Quantity.TORQUE, units)
     p_peak = from_si(plan.peak_power_w, Quantity.POWER, units)
     source = "chassis dyno (net of losses)" if not plan.efficiency_applied else "engine dyno"
-    lines += wrap_text(
+    lines = wrap_text(
         f"Curve: {source}, {curve.rpm_min:.0f}-{curve.rpm_max:.0f} rpm; peak torque "
         f"{t_peak:.0f} {trq} at {plan.peak_torque_rpm:.0f} rpm; peak power {p_peak:.0f} "
         f"{pwr} at {plan.peak_power_rpm:.0f} rpm; rev limit {plan.rev_limit_rpm:.0f} rpm."
@@ -70,8 +85,13 @@ def shift_plan_summary(
         f"Drivetrain: final drive {drivetrain.final_drive_ratio:.3g}{extra}; tire {tire_txt} "
         f"(rolling radius {radius:.1f} {lng}); efficiency {eff_txt}."
     )
-    lines.append("")
-    lines.append(f"{'Gear':>4}  {'Ratio':>6}  {'Overall':>7}  {'Speed at limit':>16}")
+    return lines
+
+
+def _gears_and_shifts(plan: ShiftPlan, drivetrain: Drivetrain, units: UnitSystem) -> list[str]:
+    """The table of gears and the table of shifts (none for one gear)."""
+    spd = unit_labels(units)["speed"]
+    lines = ["", f"{'Gear':>4}  {'Ratio':>6}  {'Overall':>7}  {'Speed at limit':>16}"]
     for g, ratio in zip(plan.gears, drivetrain.gear_ratios.tolist(), strict=True):
         top = from_si(g.max_speed_m_s, Quantity.SPEED, units)
         lines.append(f"{g.gear:>4}  {ratio:>6.3f}  {g.overall_ratio:>7.3f}  {top:>10.1f} {spd:<5}")
@@ -87,10 +107,4 @@ def shift_plan_summary(
                 f"{s.from_gear:>3}-{s.to_gear:<1}  {s.shift_rpm:>6.0f}  {v:>8.1f} {spd:<5}  "
                 f"{s.rpm_after:>8.0f}  {s.rpm_drop:>5.0f}  {why}"
             )
-    if plan.notices:
-        lines.append("")
-        lines.append("Warnings:")
-        for n in plan.notices:
-            lines += wrap_text(n.message, "- ")
-    lines += _CAUTION_LINES
-    return printable(lines)
+    return lines
