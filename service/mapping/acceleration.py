@@ -25,7 +25,7 @@ from core import (
     sample_trace,
 )
 from core.runs.report import QUARTER_MILE_M
-from core.runs.simulate import DriveModel
+from core.runs.simulate import DriveModel, RunShift
 from service.mapping.documents import notices_out, rounded
 from service.mapping.inputs import (
     build_curve,
@@ -86,6 +86,31 @@ def _interval(s: TimedSpeed, units: UnitSystem) -> dict[str, Any]:
     }
 
 
+def _shift(s: RunShift, units: UnitSystem) -> dict[str, Any]:
+    return {
+        "from_gear": s.from_gear,
+        "to_gear": s.to_gear,
+        "time": round(s.time_s, 3),
+        "speed": _speed(s.speed_m_s, units),
+        "distance": round(from_si(s.distance_m, Quantity.DISTANCE, units), 2),
+        "rpm_before": round(s.rpm_before, 1),
+        "rpm_after": round(s.rpm_after, 1),
+    }
+
+
+def _optimal_document(optimal: OptimalShifts) -> dict[str, Any]:
+    """The shift search: its rpm, time, gain over the plan, and each seed's time."""
+    return {
+        "shift_rpm": rounded(optimal.shift_rpm, 1),
+        "elapsed": round(optimal.time_s, 3),
+        "plan_elapsed": round(optimal.baseline_time_s, 3),
+        "gain": round(optimal.baseline_time_s - optimal.time_s, 3),
+        "evaluations": optimal.evaluations,
+        "won_by": optimal.won_by,
+        "seeds": [{"name": n, "elapsed": round(t, 3)} for n, t in optimal.seeds],
+    }
+
+
 def run_document(
     report: RunReport,
     model: DriveModel,
@@ -111,18 +136,7 @@ def run_document(
         "finish": finish,
         "distances": [_distance(d, units) for d in report.distances],
         "speeds": [_interval(s, units) for s in report.speeds],
-        "shifts": [
-            {
-                "from_gear": s.from_gear,
-                "to_gear": s.to_gear,
-                "time": round(s.time_s, 3),
-                "speed": _speed(s.speed_m_s, units),
-                "distance": round(from_si(s.distance_m, Quantity.DISTANCE, units), 2),
-                "rpm_before": round(s.rpm_before, 1),
-                "rpm_after": round(s.rpm_after, 1),
-            }
-            for s in run.shifts
-        ],
+        "shifts": [_shift(s, units) for s in run.shifts],
         "top_speed": {
             "speed": _speed(report.top.speed_m_s, units),
             "gear": report.top.gear,
@@ -138,17 +152,7 @@ def run_document(
             "rpm": rounded(trace.engine_rpm, 0),
             "acceleration": rounded(trace.acceleration_m_s2 / G, 4),
         },
-        "optimal_shifts": None
-        if optimal is None
-        else {
-            "shift_rpm": rounded(optimal.shift_rpm, 1),
-            "elapsed": round(optimal.time_s, 3),
-            "plan_elapsed": round(optimal.baseline_time_s, 3),
-            "gain": round(optimal.baseline_time_s - optimal.time_s, 3),
-            "evaluations": optimal.evaluations,
-            "won_by": optimal.won_by,
-            "seeds": [{"name": n, "elapsed": round(t, 3)} for n, t in optimal.seeds],
-        },
+        "optimal_shifts": None if optimal is None else _optimal_document(optimal),
         "warnings": notices_out(run.notices, fields),
         "cautions": list(CAUTIONS),
     }

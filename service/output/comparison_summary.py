@@ -27,20 +27,17 @@ __all__ = ["comparison_summary", "curves_summary"]
 Number = float | None
 
 
-def comparison_summary(comparison: Comparison, units: UnitSystem, reference: str | None) -> str:
-    """The comparison as a printable sheet of at most 80 columns."""
-    setups, figures = comparison.setups, comparison.figures
-    cruise_speeds_m_s = comparison.cruise_speeds_m_s
-    lab = unit_labels(units)
-    spd, lng = lab["speed"], lab["length"]
-    numbers = [setup_numbers(f, units) for f in figures]
-    cruise_v = speed_out(cruise_speeds_m_s[0], units, 0) if cruise_speeds_m_s else None
-    columns: list[tuple[str, int, str, Callable[[dict[str, Any]], Number]]] = [
+Column = tuple[str, int, str, Callable[[dict[str, Any]], Number]]
+
+
+def _columns(units: UnitSystem, cruise_v: float | None, timed: bool) -> list[Column]:
+    """The table's columns: heading, width, format and the number each shows."""
+    columns: list[Column] = [
         ("Reach", 6, ".1f", lambda n: n["speed_at_rev_limit"][-1]),
     ]
     if cruise_v is not None:
         columns.append((f"rpm@{cruise_v:g}", 7, ".0f", lambda n: n["cruise_top_gear_rpm"][0]))
-    if figures[0].report is not None:
+    if timed:
         columns += [
             ("60ft", 5, ".2f", lambda n: n["sixty_ft"]),
             (
@@ -52,13 +49,31 @@ def comparison_summary(comparison: Comparison, units: UnitSystem, reference: str
             ("Trap", 6, ".1f", lambda n: n["quarter_mile_trap_speed"]),
             ("Top", 6, ".1f", lambda n: n["top_speed"]),
         ]
+    return columns
+
+
+def _legend(units: UnitSystem, cruise_v: float | None, timed: bool) -> str:
+    lab = unit_labels(units)
+    spd, lng = lab["speed"], lab["length"]
     legend = "Reach: top gear at the rev limit; "
     if cruise_v is not None:
         legend += f"rpm@: top gear at {cruise_v:g} {spd}; "
     legend += f"speeds in {spd}, tire diameter in {lng}"
-    if figures[0].report is not None:
+    if timed:
         sprint = "0-60 mph" if units is UnitSystem.US else "0-100 km/h"
         legend += f"; times in s (60 ft, {sprint}, 1/4 mile); Top: top speed"
+    return legend
+
+
+def comparison_summary(comparison: Comparison, units: UnitSystem, reference: str | None) -> str:
+    """The comparison as a printable sheet of at most 80 columns."""
+    setups, figures = comparison.setups, comparison.figures
+    cruise_speeds_m_s = comparison.cruise_speeds_m_s
+    numbers = [setup_numbers(f, units) for f in figures]
+    cruise_v = speed_out(cruise_speeds_m_s[0], units, 0) if cruise_speeds_m_s else None
+    timed = figures[0].report is not None
+    columns = _columns(units, cruise_v, timed)
+    legend = _legend(units, cruise_v, timed)
     body = ["", *wrap_text(legend + ".")]
     body += [""]
     head = f"{'Setup':<12} {'Axle':>5} {'Tire':>6}" + "".join(
