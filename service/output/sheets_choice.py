@@ -47,10 +47,8 @@ def _report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> 
     )
 
 
-def comparison_report(doc: dict[str, Any], units: UnitSystem) -> Report:
-    """Setups side by side: reach, cruise rpm, the timed run, shifts; changes against base."""
-    lab, setups = doc["units"], doc["setups"]
-    us = units is UnitSystem.US
+def _setups_table(setups: list[dict[str, Any]], lab: dict[str, str], us: bool) -> Table:
+    """Reach, cruise rpm and, with a car, the timed run of every setup."""
     sprint, sprint_key = (
         ("0-60 mph", "zero_to_60_mph") if us else ("0-100 km/h", "zero_to_100_kmh")
     )
@@ -62,8 +60,7 @@ def comparison_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         Column("Top gear at limit", lab["speed"]),
     ]
     cols += [Column(f"Top gear at {fmt(v)}", "rpm") for v in cruise[:2]]
-    has_run = setups[0]["run"] is not None
-    if has_run:
+    if setups[0]["run"] is not None:
         cols += [
             Column("60 ft", "s"),
             Column(sprint, "s"),
@@ -92,7 +89,14 @@ def comparison_report(doc: dict[str, Any], units: UnitSystem) -> Report:
             ]
         return tuple(cells)
 
-    setup_table = Table("Setups", tuple(cols), tuple(row(s) for s in setups))
+    return Table("Setups", tuple(cols), tuple(row(s) for s in setups))
+
+
+def comparison_report(doc: dict[str, Any], units: UnitSystem) -> Report:
+    """Setups side by side: reach, cruise rpm, the timed run, shifts; changes against base."""
+    lab, setups = doc["units"], doc["setups"]
+    has_run = setups[0]["run"] is not None
+    setup_table = _setups_table(setups, lab, units is UnitSystem.US)
     shift_rows = tuple(
         (s["name"], " ".join(f"{fmt(x['shift_rpm'])}>{fmt(x['rpm_after'])}" for x in s["shifts"]))
         for s in setups
