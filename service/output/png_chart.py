@@ -30,7 +30,7 @@ from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 from matplotlib.ticker import MaxNLocator
 
-from service.output.chart_data import RunChart, TractiveForceChart
+from service.output.chart_data import RunChart, TractiveForceChart, force_envelope
 from service.output.svg_chart import svg_chart
 
 __all__ = [
@@ -150,16 +150,6 @@ def _frame(ax: Axes, xlabel: str, ylabel: str) -> None:
     ax.set_ylabel(ylabel)
 
 
-def _envelope(chart: TractiveForceChart, top_speed: float) -> tuple[Any, Any]:
-    grid = np.linspace(0.0, top_speed, 161)
-    each = np.stack(
-        [np.interp(grid, g.speed, g.force, left=np.nan, right=np.nan) for g in chart.gears]
-    )
-    defined = ~np.isnan(each).all(axis=0)
-    best = np.where(defined, np.nanmax(np.where(np.isnan(each), -np.inf, each), axis=0), 0.0)
-    return grid, np.maximum(best, 0.0)
-
-
 def _mark_drops(
     ax: Axes, x: list[float], y: list[float], labels: list[str], label_y: float, ground: str
 ) -> None:
@@ -189,7 +179,7 @@ def draw_tractive_force(ax: Axes, chart: TractiveForceChart) -> None:
     if chart.traction_limit is not None and chart.traction_limit < 1.6 * top_force:
         top_force = max(top_force, chart.traction_limit)
     top_speed, top_force = max(top_speed, 1e-3), max(top_force, 1e-3)
-    grid, best = _envelope(chart, top_speed)
+    grid, best = force_envelope(chart, top_speed)
     ax.fill_between(grid, 0.0, best, color=ENVELOPE, linewidth=0, zorder=0.5)
     if chart.road_load is not None:
         v, f = chart.road_load

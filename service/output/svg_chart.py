@@ -18,7 +18,7 @@ from html import escape
 import numpy as np
 from numpy.typing import NDArray
 
-from service.output.chart_data import RunChart, TractiveForceChart
+from service.output.chart_data import RunChart, TractiveForceChart, force_envelope
 
 __all__ = ["nice_ticks", "svg_chart"]
 
@@ -251,16 +251,6 @@ def _frame(c: _Canvas, xlabel: str, ylabel: str, xticks: list[float], yticks: li
     c.add(_text(lx, AX_Y - AX_H / 2, ylabel, 8.5, "#1e1e1e", anchor="middle", rotate=True))
 
 
-def _envelope(chart: TractiveForceChart, top_speed: float) -> tuple[FloatArray, FloatArray]:
-    grid = np.linspace(0.0, top_speed, 161)
-    each = np.stack(
-        [np.interp(grid, g.speed, g.force, left=np.nan, right=np.nan) for g in chart.gears]
-    )
-    defined = ~np.isnan(each).all(axis=0)
-    best = np.where(defined, np.nanmax(np.where(np.isnan(each), -np.inf, each), axis=0), 0.0)
-    return grid, np.maximum(best, 0.0)
-
-
 def _tractive_force(chart: TractiveForceChart) -> _Canvas:
     top_speed = max(float(g.speed[-1]) for g in chart.gears)
     top_force = max(float(g.force.max()) for g in chart.gears)
@@ -269,7 +259,7 @@ def _tractive_force(chart: TractiveForceChart) -> _Canvas:
         top_force = max(top_force, grip)
     top_speed, top_force = max(top_speed, 1e-3), max(top_force, 1e-3)
     c = _Canvas(top_speed * 1.07, top_force * 1.12)
-    grid, best = _envelope(chart, top_speed)
+    grid, best = force_envelope(chart, top_speed)
     outline = np.concatenate([grid, grid[::-1]]), np.concatenate([best, np.zeros_like(best)])
     c.add(f'<polygon points="{c.points(*outline)}" fill="{ENVELOPE}" clip-path="url(#plot)"/>')
     if chart.road_load is not None:
