@@ -10,6 +10,7 @@ from core.shifts.window import DEFAULT_TOLERANCE_S, MAX_POINTS, MIN_POINTS
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.quantities import RoadSpeed, RoadSpeedOrZero, Rollout, RunDistance
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
@@ -68,6 +69,7 @@ class ShiftWindowRequest(UnitsRequest):
         le=MAX_POINTS,
         description="Shift rpms tried per gear change, across the usable range.",
     )
+    job: JobField
 
 
 class ShiftWindowOut(ApiModel):
