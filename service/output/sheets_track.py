@@ -11,6 +11,10 @@ import math
 from typing import Any
 
 from core import CurveSource
+from core.car.coast_down import (
+    REFERENCE_TEMPERATURE_K,
+    ROLLING_TEMPERATURE_COEFFICIENT_PER_K,
+)
 from core.shifts.plan import resolve_rev_limit
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire
 from service.mapping.shift_plan import tire_document
@@ -28,7 +32,7 @@ from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.shift_window import ShiftWindowRequest
 from service.schemas.vehicle import LaunchIn, VehicleIn
 from service.schemas.weather import WeatherCorrectionRequest
-from service.units import UnitSystem, unit_labels
+from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = [
     "coast_down_inputs",
@@ -47,7 +51,7 @@ STANDARDS = {
     "din_70020": "DIN 70020",
     "iso_1585": "ISO 1585",
 }
-_SPEED_STEPS = {UnitSystem.METRIC: 20.0, UnitSystem.US: 10.0}  # road-load table rows
+_SPEED_STEPS = {UnitSystem.METRIC: 10.0, UnitSystem.US: 5.0}  # road-load table rows
 
 
 def _report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> Report:
@@ -100,6 +104,21 @@ def _road_load_table(doc: dict[str, Any], units: UnitSystem) -> Table:
             for v in speeds
         ),
         "Rolling: F0 + F1 v; aero: F2 v^2; both as fitted in the test weather.",
+    )
+
+
+def _reference_note(units: UnitSystem) -> str:
+    """How the terms are carried to reference conditions, in the caller's degrees."""
+    t_ref = REFERENCE_TEMPERATURE_K
+    per_degree = ROLLING_TEMPERATURE_COEFFICIENT_PER_K / (
+        from_si(t_ref + 1.0, Quantity.TEMPERATURE, units)
+        - from_si(t_ref, Quantity.TEMPERATURE, units)
+    )
+    degree = unit_labels(units)["temperature"]
+    return (
+        "SAE J1263 in outline: F2 x reference / test air density; F0 and F1 x (1 + "
+        f"{per_degree:.3g}/{degree} x (T - reference temperature)) (values from memory). "
+        "No wind or grade correction beyond the paired runs."
     )
 
 
@@ -189,7 +208,7 @@ def coast_down_report(doc: dict[str, Any], units: UnitSystem) -> Report:
     sections = (
         Section("Road load", facts, (terms, _road_load_table(doc, units))),
         Section("Runs", tables=(runs,)),
-        Section("Reference conditions", reference, notes=(ref["method"],)),
+        Section("Reference conditions", reference, notes=(_reference_note(units),)),
         Section("Method", notes=(doc["method"],)),
     )
     return _report(
@@ -220,13 +239,22 @@ def coast_down_inputs(body: CoastDownRequest) -> Section:
         else f"{c.temperature:g} {u['temperature']}, {c.pressure:g} {u['pressure']}, "
         f"{c.relative_humidity:g} % humidity"
     )
-    facts = (
+    facts = [
         ("Test mass", f"{body.mass:g} {u['mass']}"),
         ("Equiv. mass", equivalent),
-        ("Runs", f"{len(body.runs)}: " + ", ".join(r.direction for r in body.runs)),
         ("Test weather", weather),
-    )
-    return Section("Inputs", facts)
+    ]
+    for k, r in enumerate(body.runs):
+        span = r.time[-1] - r.time[0]
+        facts.append(
+            (
+                f"Run {k + 1}",
+                f"{r.direction}: {len(r.time)} samples over {span:g} s "
+                f"({(len(r.time) - 1) / span:.3g} per s), {r.speed[0]:g} to {r.speed[-1]:g} "
+                f"{u['speed']}",
+            )
+        )
+    return Section("Inputs", tuple(facts))
 
 
 def _car_facts(
