@@ -23,7 +23,8 @@ V0 = 32.0  # m/s
 def closed_form_speed(t: np.ndarray) -> np.ndarray:
     """Speed of the F1 = 0 coast-down by the closed form above [m/s]."""
     k = np.sqrt(F2 / F0)
-    return np.sqrt(F0 / F2) * np.tan(np.arctan(V0 * k) - t * np.sqrt(F0 * F2) / MASS)
+    speed = np.sqrt(F0 / F2) * np.tan(np.arctan(V0 * k) - t * np.sqrt(F0 * F2) / MASS)
+    return np.asarray(speed, dtype=np.float64)
 
 
 def test_trace_of_exact_samples_is_the_closed_form_coast_down() -> None:
