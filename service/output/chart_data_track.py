@@ -179,9 +179,10 @@ def coast_down_chart(body: CoastDownRequest, doc: dict[str, Any]) -> PlotChart:
     )
 
 
-def shift_window_chart(doc: dict[str, Any]) -> PlotChart:
+def shift_window_chart(doc: dict[str, Any]) -> PlotChart | None:
     """Time lost to the finish against shift rpm, one line per gear change reached before
-    the finish, each window shaded under the tolerance."""
+    the finish, each window shaded under the tolerance; None when the finish comes before
+    the first change."""
     tolerance = float(doc["tolerance"])
     reached = [w for w in doc["windows"] if w["reached"]]
     # the y axis reaches ten tolerances (at least 0.05 s) or the largest loss if smaller:
@@ -217,7 +218,7 @@ def shift_window_chart(doc: dict[str, Any]) -> PlotChart:
             )
         )
     if not series:
-        lowest, highest = 0.0, 1.0
+        return None
     span = max(highest - lowest, 100.0)
     return PlotChart(
         title="Shift window: time lost against shift rpm",

@@ -81,7 +81,7 @@ SHEET_RESPONSES: dict[int | str, dict[str, Any]] = {
     **PROBLEM_RESPONSES,
 }
 
-ChartMaker = Callable[[], TractiveForceChart | RunChart | PlotChart]
+ChartMaker = Callable[[], TractiveForceChart | RunChart | PlotChart | None]
 
 
 async def sheet_response(
@@ -105,7 +105,8 @@ async def sheet_response(
     if media == TEXT:
         content: bytes | str = render_text(report, head)
     elif media == HTML:
-        svg = None if chart is None else sheet_svg(chart())
+        drawn = None if chart is None else chart()  # None: nothing to draw after all
+        svg = None if drawn is None else sheet_svg(drawn)
         content = render_html(report, svg, head)
     else:
         paper = paper_for(get_settings().sheet_paper, units.value)

@@ -78,7 +78,7 @@ class Sheet:
     answer: Callable[[Any, None], Awaitable[Response]]
     build: Callable[[dict[str, Any], UnitSystem], Report]
     inputs: Callable[[Any], Section] | None = None
-    chart: Callable[[Any, dict[str, Any]], PlotChart] | None = None
+    chart: Callable[[Any, dict[str, Any]], PlotChart | None] | None = None
 
 
 SHEETS = (

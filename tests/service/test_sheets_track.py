@@ -238,6 +238,7 @@ def test_coast_down_chart_traces_follow_the_logged_speed(api: ApiClient, units: 
 def test_shift_window_chart_marks_each_window_under_the_tolerance(api: ApiClient) -> None:
     doc = api.post(JSON_ROUTES["shift-window"], json=body_for("shift-window", "metric")).json()
     chart = shift_window_chart(doc)
+    assert chart is not None
     reached = [w for w in doc["windows"] if w["reached"]]
     assert [s.label for s in chart.series] == [f"{w['from_gear']}-{w['to_gear']}" for w in reached]
     assert chart.level == doc["tolerance"]
@@ -260,3 +261,12 @@ def test_clipped_line_keeps_every_point_inside_and_meets_the_edges() -> None:
     np.testing.assert_allclose(py, [1.0, 0.0, 1.0], rtol=1e-12)
     two = clip_polyline(np.array([0.0, 0.5, 1.0]), np.array([0.5, 3.0, 0.5]), (0, 1), (0, 1))
     assert len(two) == 2
+
+
+def test_shift_window_sheet_before_the_first_change_has_no_chart(api: ApiClient) -> None:
+    body = {**body_for("shift-window", "metric"), "run": {"finish_distance": 18}}
+    page = api.post(SHEETS["shift-window"], params={"format": "html"}, json=body)
+    assert page.status_code == 200, page.text
+    assert "<svg " not in page.text and "no: its rpm does not matter" in page.text
+    pdf = api.post(SHEETS["shift-window"], params={"format": "pdf"}, json=body)
+    assert pdf.status_code == 200 and pdf.content.startswith(b"%PDF-")
