@@ -20,7 +20,12 @@ import pytest
 
 from service.output.cautions import CAUTIONS
 from service.output.chart_data_track import clip_polyline, coast_down_chart, shift_window_chart
+from service.output.letterhead import get_letterhead
+from service.output.pdf import render_pdf
+from service.output.sheets_track import coast_down_report
+from service.output.svg_chart_track import track_svg
 from service.schemas.coastdown import CoastDownRequest
+from service.settings import get_settings
 from tests.conftest import ApiClient, load_demo
 
 POPPLER = shutil.which("pdftotext") is not None
@@ -270,3 +275,35 @@ def test_shift_window_sheet_before_the_first_change_has_no_chart(api: ApiClient)
     assert "<svg " not in page.text and "no: its rpm does not matter" in page.text
     pdf = api.post(SHEETS["shift-window"], params={"format": "pdf"}, json=body)
     assert pdf.status_code == 200 and pdf.content.startswith(b"%PDF-")
+
+
+@pytest.mark.parametrize("sheet", list(SHEETS))
+def test_track_sheet_carries_the_shops_letterhead(
+    api: ApiClient, sheet: str, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.setenv("GEARWORK_SHOP_NAME", "Quarry Road Dyno")
+    monkeypatch.setenv("GEARWORK_SHOP_ADDRESS", "4 Quarry Road|Eastfold 2290")
+    get_settings.cache_clear()
+    get_letterhead.cache_clear()
+    try:
+        job = {"technician": "M. Ilunga", "date": "2026-12-02"}  # a body of its own: no cache
+        text = _post(api, sheet, "metric", "text", job=job).decode("ascii")
+        html = _post(api, sheet, "metric", "html", job=job).decode("utf-8")
+    finally:
+        monkeypatch.undo()
+        get_settings.cache_clear()
+        get_letterhead.cache_clear()
+    assert text.splitlines()[:3] == ["Quarry Road Dyno", "4 Quarry Road", "Eastfold 2290"]
+    assert "Technician:     M. Ilunga" in text
+    assert "Quarry Road Dyno" in html and "M. Ilunga" in html
+
+
+def test_same_answer_draws_the_same_chart_and_pdf_bytes(api: ApiClient) -> None:
+    # drawn twice from the same answer, past the result cache: nothing depends on the clock
+    body = body_for("coast-down", "metric")
+    doc = api.post(JSON_ROUTES["coast-down"], json=body).json()
+    request = CoastDownRequest.model_validate(body)
+    report = coast_down_report(doc, request.units)
+    drawn = [coast_down_chart(request, doc) for _ in range(2)]
+    assert track_svg(drawn[0]) == track_svg(drawn[1])
+    assert render_pdf(report, drawn[0], "a4") == render_pdf(report, drawn[1], "a4")
