@@ -1,4 +1,5 @@
-"""Printable sheets of the track answers: coast-down road load, shift window, weather.
+"""Printable sheets of the track answers: shift window and weather (the coast-down sheet is
+``service.output.sheets_coast_down``).
 
 Each builder reads the JSON document its endpoint answers with (already in the caller's
 units, its labels in ``doc["units"]``), so the paper and the JSON agree to the digit; the
@@ -11,10 +12,6 @@ import math
 from typing import Any
 
 from core import CurveSource
-from core.car.coast_down import (
-    REFERENCE_TEMPERATURE_K,
-    ROLLING_TEMPERATURE_COEFFICIENT_PER_K,
-)
 from core.shifts.plan import resolve_rev_limit
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire
 from service.mapping.shift_plan import tire_document
@@ -27,16 +24,14 @@ from service.output.inputs import (
     vehicle_facts,
 )
 from service.output.model import Column, KeyFigure, Report, Section, Table, fmt
-from service.schemas.coastdown import CoastDownRequest
 from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.shift_window import ShiftWindowRequest
 from service.schemas.vehicle import LaunchIn, VehicleIn
 from service.schemas.weather import WeatherCorrectionRequest
-from service.units import Quantity, UnitSystem, from_si, unit_labels
+from service.units import UnitSystem, unit_labels
 
 __all__ = [
-    "coast_down_inputs",
-    "coast_down_report",
+    "answer_report",
     "shift_window_inputs",
     "shift_window_report",
     "weather_inputs",
@@ -51,10 +46,10 @@ STANDARDS = {
     "din_70020": "DIN 70020",
     "iso_1585": "ISO 1585",
 }
-_SPEED_STEPS = {UnitSystem.METRIC: 10.0, UnitSystem.US: 5.0}  # road-load table rows
 
 
-def _report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> Report:
+def answer_report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> Report:
+    """A track sheet: the document's warnings last, its cautions in full."""
     notes = tuple(w["message"] for w in doc.get("warnings", ()))
     sections = parts.pop("sections") + ((Section("Warnings", notes=notes),) if notes else ())
     return Report(
@@ -66,195 +61,6 @@ def _report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> 
         cautions=tuple(doc["cautions"]),
         **parts,
     )
-
-
-def _g(value: float) -> str:
-    """A coefficient with five significant figures."""
-    return f"{value:.5g}"
-
-
-def _road_load_table(doc: dict[str, Any], units: UnitSystem) -> Table:
-    lab = doc["units"]
-    fitted = [doc[f"f{j}"]["value"] for j in range(3)]
-    at_ref = doc["reference_conditions"]["coast_down"]
-    step = _SPEED_STEPS[units]
-    fastest = max(r["start_speed"] for r in doc["runs"])
-    speeds = [step * k for k in range(1, int(fastest // step) + 1)] or [fastest]
-
-    def force(c: list[float], v: float) -> float:
-        return c[0] + c[1] * v + c[2] * v * v
-
-    return Table(
-        "Road load at speed",
-        (
-            Column("Speed", lab["speed"]),
-            Column("Rolling", lab["force"]),
-            Column("Aero", lab["force"]),
-            Column("Fitted", lab["force"]),
-            Column("At reference", lab["force"]),
-        ),
-        tuple(
-            (
-                fmt(v),
-                fmt(fitted[0] + fitted[1] * v, 1),
-                fmt(fitted[2] * v * v, 1),
-                fmt(force(fitted, v), 1),
-                fmt(force(at_ref, v), 1),
-            )
-            for v in speeds
-        ),
-        "Rolling: F0 + F1 v; aero: F2 v^2; both as fitted in the test weather.",
-    )
-
-
-def _reference_note(units: UnitSystem) -> str:
-    """How the terms are carried to reference conditions, in the caller's degrees."""
-    t_ref = REFERENCE_TEMPERATURE_K
-    per_degree = ROLLING_TEMPERATURE_COEFFICIENT_PER_K / (
-        from_si(t_ref + 1.0, Quantity.TEMPERATURE, units)
-        - from_si(t_ref, Quantity.TEMPERATURE, units)
-    )
-    degree = unit_labels(units)["temperature"]
-    return (
-        "SAE J1263 in outline: F2 x reference / test air density; F0 and F1 x (1 + "
-        f"{per_degree:.3g}/{degree} x (T - reference temperature)) (values from memory). "
-        "No wind or grade correction beyond the paired runs."
-    )
-
-
-def coast_down_report(doc: dict[str, Any], units: UnitSystem) -> Report:
-    """Road-load terms with their intervals and at reference, the runs, load at speed."""
-    lab, cu = doc["units"], doc["coefficient_units"]
-    ref = doc["reference_conditions"]
-    terms = Table(
-        "Road-load terms",
-        (
-            Column("Term", text=True),
-            Column("Fitted"),
-            Column("95 % from"),
-            Column("95 % to"),
-            Column("At reference"),
-            Column("Unit", text=True),
-        ),
-        tuple(
-            (
-                f"F{j}",
-                _g(doc[f"f{j}"]["value"]),
-                _g(doc[f"f{j}"]["low"]),
-                _g(doc[f"f{j}"]["high"]),
-                _g(ref["coast_down"][j]),
-                cu[j],
-            )
-            for j in range(3)
-        ),
-    )
-    runs = Table(
-        "Each run fitted alone",
-        (
-            Column("Run"),
-            Column("Way", text=True),
-            Column("Time", "s"),
-            Column("From", lab["speed"]),
-            Column("To", lab["speed"]),
-            Column("F0", cu[0]),
-            Column("F1", cu[1]),
-            Column("F2", cu[2]),
-            Column("RMS", lab["speed"]),
-        ),
-        tuple(
-            (
-                str(k + 1),
-                r["direction"],
-                fmt(r["duration"], 1),
-                fmt(r["start_speed"], 1),
-                fmt(r["end_speed"], 1),
-                _g(r["coast_down"][0]),
-                _g(r["coast_down"][1]),
-                _g(r["coast_down"][2]),
-                fmt(r["residual_rms"], 2),
-            )
-            for k, r in enumerate(doc["runs"])
-        ),
-    )
-    facts = (
-        ("Equiv. mass", f"{fmt(doc['equivalent_mass'], 1)} {lab['mass']}"),
-        (
-            "Residual",
-            f"{fmt(doc['residual_rms'], 2)} {lab['speed']} RMS, largest "
-            f"{fmt(doc['residual_max'], 2)} {lab['speed']}",
-        ),
-        ("Drag area", f"{fmt(doc['drag_area'], 3)} {lab['area']} (2 F2 / air density)"),
-        ("Rolling coeff.", f"{fmt(doc['rolling_coefficient'], 4)} (F0 / weight)"),
-        ("Block to paste", "coast_down [" + ", ".join(_g(x) for x in ref["coast_down"]) + "]"),
-    )
-    reference = (
-        (
-            "Reference",
-            f"{fmt(ref['temperature'], 1)} {lab['temperature']}, "
-            f"{fmt(ref['pressure'], 2)} {lab['pressure']}, dry air",
-        ),
-        (
-            "Corrected",
-            f"air density ratio {fmt(ref['air_density_ratio'], 4)} (test / reference), "
-            f"rolling factor {fmt(ref['rolling_factor'], 4)}"
-            if ref["applied"]
-            else "no test weather given: the coefficients are as measured",
-        ),
-    )
-    figures = [
-        KeyFigure(f"F{j}", _g(ref["coast_down"][j]), cu[j], "at reference") for j in range(3)
-    ]
-    figures.append(KeyFigure("Drag area", fmt(doc["drag_area"], 3), lab["area"], "CdA"))
-    sections = (
-        Section("Road load", facts, (terms, _road_load_table(doc, units))),
-        Section("Runs", tables=(runs,)),
-        Section("Reference conditions", reference, notes=(_reference_note(units),)),
-        Section("Method", notes=(doc["method"],)),
-    )
-    return _report(
-        "Coast-down road load",
-        doc,
-        units,
-        sections=sections,
-        key_figures=tuple(figures),
-        chart_caption=(
-            f"Road speed [{lab['speed']}] against time [s] of each run: the logged samples "
-            "and the speed its own fitted road load gives from its best start."
-        ),
-    )
-
-
-def coast_down_inputs(body: CoastDownRequest) -> Section:
-    """The car's mass and the test weather as the caller gave them."""
-    u = unit_labels(body.units)
-    equivalent = (
-        "1.03 x mass (common practice)"
-        if body.equivalent_mass is None
-        else f"{body.equivalent_mass:g} {u['mass']}"
-    )
-    c = body.conditions
-    weather = (
-        "not given"
-        if c is None
-        else f"{c.temperature:g} {u['temperature']}, {c.pressure:g} {u['pressure']}, "
-        f"{c.relative_humidity:g} % humidity"
-    )
-    facts = [
-        ("Test mass", f"{body.mass:g} {u['mass']}"),
-        ("Equiv. mass", equivalent),
-        ("Test weather", weather),
-    ]
-    for k, r in enumerate(body.runs):
-        span = r.time[-1] - r.time[0]
-        facts.append(
-            (
-                f"Run {k + 1}",
-                f"{r.direction}: {len(r.time)} samples over {span:g} s "
-                f"({(len(r.time) - 1) / span:.3g} per s), {r.speed[0]:g} to {r.speed[-1]:g} "
-                f"{u['speed']}",
-            )
-        )
-    return Section("Inputs", tuple(facts))
 
 
 def _car_facts(
@@ -298,10 +104,8 @@ def _loss_table(w: dict[str, Any]) -> Table:
     )
 
 
-def shift_window_report(doc: dict[str, Any], units: UnitSystem) -> Report:
-    """Each gear change's window within the tolerance, and its time lost by shift rpm."""
-    reached = [w for w in doc["windows"] if w["reached"]]
-    windows = Table(
+def _windows_table(doc: dict[str, Any]) -> Table:
+    return Table(
         "Windows",
         (
             Column("Shift", text=True),
@@ -323,6 +127,11 @@ def shift_window_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         f"Window: where the shift costs under {doc['tolerance']:g} s to the finish, edges "
         "as interpolated; the lines below round them inward to 50 rpm.",
     )
+
+
+def shift_window_report(doc: dict[str, Any], units: UnitSystem) -> Report:
+    """Each gear change's window within the tolerance, and its time lost by shift rpm."""
+    reached = [w for w in doc["windows"] if w["reached"]]
     facts = (
         ("Finish", doc["finish"]),
         ("Best time", f"{fmt(doc['best_time'], 3)} s with every shift at its best"),
@@ -347,11 +156,16 @@ def shift_window_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         for w in reached[:3]
     )
     sections = (
-        Section("Where to shift", facts, (windows,), tuple(w["line"] for w in doc["windows"])),
+        Section(
+            "Where to shift",
+            facts,
+            (_windows_table(doc),),
+            tuple(w["line"] for w in doc["windows"]),
+        ),
         Section("Time lost by shift rpm", tables=tuple(_loss_table(w) for w in reached)),
         Section("Method", notes=(doc["method"],)),
     )
-    return _report(
+    return answer_report(
         "Shift window",
         doc,
         units,
@@ -401,14 +215,12 @@ def _air_row(name: str, a: dict[str, Any]) -> tuple[str, ...]:
     )
 
 
-def weather_report(doc: dict[str, Any], units: UnitSystem) -> Report:
-    """The air as a strip reports it and, with a car, the slip carried to other weather."""
+def _air_table(doc: dict[str, Any]) -> Table:
     lab = doc["units"]
-    taken, other, slip = doc["taken_in"], doc["predict_for"], doc["slip"]
-    rows = [_air_row("Taken in", taken)]
-    if other is not None:
-        rows.append(_air_row("Predict for", other))
-    air = Table(
+    rows = [_air_row("Taken in", doc["taken_in"])]
+    if doc["predict_for"] is not None:
+        rows.append(_air_row("Predict for", doc["predict_for"]))
+    return Table(
         "Air",
         (
             Column("Weather", text=True),
@@ -423,61 +235,31 @@ def weather_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         f"CF: the correction factor of {STANDARDS[doc['standard']]} for that air; density "
         "altitude: the ISO 2533 altitude of the same density.",
     )
-    tables = [air]
-    figures = [
-        KeyFigure(
-            "Density altitude",
-            f"{taken['density_altitude']:,.0f}",
-            lab["distance"],
-            "slip taken in" if other is not None else f"{fmt(taken['relative_density'], 1)} %",
-        )
-    ]
-    if other is not None:
-        figures.append(
-            KeyFigure(
-                "Density altitude",
-                f"{other['density_altitude']:,.0f}",
-                lab["distance"],
-                "predict for",
-            )
-        )
-    if slip is not None:
-        sp = lab["speed"]
-        tables.append(
-            Table(
-                "Slip",
-                (Column("", text=True), Column("ET", "s"), Column("Trap", sp)),
-                (
-                    ("Taken", fmt(slip["et"], 3), fmt(slip["trap"], 2)),
-                    (
-                        "Simulated, taken weather",
-                        fmt(slip["simulated_et"][0], 3),
-                        fmt(slip["simulated_trap"][0], 2),
-                    ),
-                    (
-                        "Simulated, other weather",
-                        fmt(slip["simulated_et"][1], 3),
-                        fmt(slip["simulated_trap"][1], 2),
-                    ),
-                    ("Predicted", fmt(slip["predicted_et"], 3), fmt(slip["predicted_trap"], 2)),
-                ),
-                "Predicted ET: the slip's plus the simulated change; trap: the slip's times "
-                "the simulated ratio.",
-            )
-        )
-        figures += [
-            KeyFigure(
-                "Predicted ET", fmt(slip["predicted_et"], 3), "s", f"taken {fmt(slip['et'], 3)}"
-            ),
-            KeyFigure(
-                "Predicted trap",
-                fmt(slip["predicted_trap"], 2),
-                sp,
-                f"taken {fmt(slip['trap'], 2)}",
-            ),
-        ]
-    else:
-        figures += [
+
+
+def _slip_table(slip: dict[str, Any], speed: str) -> Table:
+    et, trap = slip["simulated_et"], slip["simulated_trap"]
+    return Table(
+        "Slip",
+        (Column("", text=True), Column("ET", "s"), Column("Trap", speed)),
+        (
+            ("Taken", fmt(slip["et"], 3), fmt(slip["trap"], 2)),
+            ("Simulated, taken weather", fmt(et[0], 3), fmt(trap[0], 2)),
+            ("Simulated, other weather", fmt(et[1], 3), fmt(trap[1], 2)),
+            ("Predicted", fmt(slip["predicted_et"], 3), fmt(slip["predicted_trap"], 2)),
+        ),
+        "Predicted ET: the slip's plus the simulated change; trap: the slip's times the "
+        "simulated ratio.",
+    )
+
+
+def _weather_figures(doc: dict[str, Any]) -> tuple[KeyFigure, ...]:
+    lab, taken, other, slip = doc["units"], doc["taken_in"], doc["predict_for"], doc["slip"]
+    altitude = "Density altitude"
+    if other is None:
+        note = f"{fmt(taken['relative_density'], 1)} % of sea-level density"
+        return (
+            KeyFigure(altitude, f"{taken['density_altitude']:,.0f}", lab["distance"], note),
             KeyFigure("Air density", fmt(taken["density"], 4), "kg/m^3"),
             KeyFigure(
                 "Correction factor",
@@ -485,13 +267,38 @@ def weather_report(doc: dict[str, Any], units: UnitSystem) -> Report:
                 "",
                 STANDARDS[doc["standard"]],
             ),
+        )
+    figures = [
+        KeyFigure(altitude, f"{taken['density_altitude']:,.0f}", lab["distance"], "slip taken in"),
+        KeyFigure(altitude, f"{other['density_altitude']:,.0f}", lab["distance"], "predict for"),
+    ]
+    if slip is not None:
+        figures += [
+            KeyFigure(
+                "Predicted ET", fmt(slip["predicted_et"], 3), "s", f"taken {slip['et']:.3f}"
+            ),
+            KeyFigure(
+                "Predicted trap",
+                fmt(slip["predicted_trap"], 2),
+                lab["speed"],
+                f"taken {slip['trap']:.2f}",
+            ),
         ]
-    facts = (("Standard", STANDARDS[doc["standard"]]),)
+    return tuple(figures)
+
+
+def weather_report(doc: dict[str, Any], units: UnitSystem) -> Report:
+    """The air as a strip reports it and, with a car, the slip carried to other weather."""
+    tables = [_air_table(doc)]
+    if doc["slip"] is not None:
+        tables.append(_slip_table(doc["slip"], doc["units"]["speed"]))
     sections = (
-        Section("Weather", facts, tuple(tables)),
+        Section("Weather", (("Standard", STANDARDS[doc["standard"]]),), tuple(tables)),
         Section("Method", notes=(doc["method"], "Limits: " + doc["limits"])),
     )
-    return _report("Weather correction", doc, units, sections=sections, key_figures=tuple(figures))
+    return answer_report(
+        "Weather correction", doc, units, sections=sections, key_figures=_weather_figures(doc)
+    )
 
 
 def weather_inputs(body: WeatherCorrectionRequest) -> Section:

@@ -30,10 +30,9 @@ from service.output.sheets_choice import (
     speedometer_report,
     sweep_report,
 )
+from service.output.sheets_coast_down import coast_down_inputs, coast_down_report
 from service.output.sheets_shop import chassis_report, dyno_correction_report, log_check_report
 from service.output.sheets_track import (
-    coast_down_inputs,
-    coast_down_report,
     shift_window_inputs,
     shift_window_report,
     weather_inputs,

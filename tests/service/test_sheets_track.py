@@ -22,7 +22,7 @@ from service.output.cautions import CAUTIONS
 from service.output.chart_data_track import clip_polyline, coast_down_chart, shift_window_chart
 from service.output.letterhead import get_letterhead
 from service.output.pdf import render_pdf
-from service.output.sheets_track import coast_down_report
+from service.output.sheets_coast_down import coast_down_report
 from service.output.svg_chart_track import track_svg
 from service.schemas.coastdown import CoastDownRequest
 from service.settings import get_settings
