@@ -209,7 +209,7 @@ def _air_row(name: str, a: dict[str, Any]) -> tuple[str, ...]:
         fmt(a["temperature"], 1),
         fmt(a["pressure"], 2),
         fmt(a["relative_humidity"], 0),
-        fmt(a["density"], 4),
+        fmt(a["relative_density"], 1),
         f"{a['density_altitude']:,.0f}",
         fmt(a["correction_factor"], 4),
     )
@@ -227,13 +227,13 @@ def _air_table(doc: dict[str, Any]) -> Table:
             Column("Temp", lab["temperature"]),
             Column("Pressure", lab["pressure"]),
             Column("RH", "%"),
-            Column("Density", "kg/m^3"),
+            Column("Density", "%"),
             Column("Density alt", lab["distance"]),
             Column("CF"),
         ),
         tuple(rows),
-        f"CF: the correction factor of {STANDARDS[doc['standard']]} for that air; density "
-        "altitude: the ISO 2533 altitude of the same density.",
+        f"Density: of ISO 2533 sea-level air; density altitude: the ISO 2533 altitude of "
+        f"the same density; CF: the correction factor of {STANDARDS[doc['standard']]}.",
     )
 
 
@@ -257,10 +257,9 @@ def _weather_figures(doc: dict[str, Any]) -> tuple[KeyFigure, ...]:
     lab, taken, other, slip = doc["units"], doc["taken_in"], doc["predict_for"], doc["slip"]
     altitude = "Density altitude"
     if other is None:
-        note = f"{fmt(taken['relative_density'], 1)} % of sea-level density"
         return (
-            KeyFigure(altitude, f"{taken['density_altitude']:,.0f}", lab["distance"], note),
-            KeyFigure("Air density", fmt(taken["density"], 4), "kg/m^3"),
+            KeyFigure(altitude, f"{taken['density_altitude']:,.0f}", lab["distance"]),
+            KeyFigure("Air density", fmt(taken["relative_density"], 1), "%", "of sea level"),
             KeyFigure(
                 "Correction factor",
                 fmt(taken["correction_factor"], 4),

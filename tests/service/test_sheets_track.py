@@ -46,8 +46,8 @@ LABELS = {
     ("coast-down", "us"): (["mph", "lbf/mph", "lb", "degF", "inHg"], ["km/h", "kPa"]),
     ("shift-window", "metric"): (["N*m", "kg", "rpm"], ["lbf", "mph"]),
     ("shift-window", "us"): (["lbf*ft", "lb", "rpm", "660.0 ft"], ["N*m", "km/h"]),
-    ("weather", "metric"): (["degC", "kPa", "km/h", "kg/m^3"], ["degF", "inHg", "mph"]),
-    ("weather", "us"): (["degF", "inHg", "mph", "ft"], ["degC", "kPa", "km/h"]),
+    ("weather", "metric"): (["degC", "kPa", "km/h", "N*m"], ["degF", "inHg", "mph"]),
+    ("weather", "us"): (["degF", "inHg", "mph", "ft"], ["degC", "kPa", "km/h", "kg/m^3"]),
 }
 
 
