@@ -21,7 +21,8 @@ from service.http.deps import JsonBody
 from service.mapping.acceleration import compute_acceleration_run
 from service.mapping.shift_plan import compute_shift_plan
 from service.output.chart_data import run_chart, tractive_force_chart
-from service.output.model import Report
+from service.output.chart_data_track import PlotChart, coast_down_chart, shift_window_chart
+from service.output.model import Report, Section, with_inputs
 from service.output.run_report import acceleration_run_report
 from service.output.sheet_response import (
     SHEET_RESPONSES,
@@ -36,17 +37,37 @@ from service.output.sheets_choice import (
     speedometer_report,
     sweep_report,
 )
+from service.output.sheets_coast_down import coast_down_inputs, coast_down_report
 from service.output.sheets_shop import chassis_report, dyno_correction_report, log_check_report
+from service.output.sheets_track import (
+    shift_window_inputs,
+    shift_window_report,
+    weather_inputs,
+    weather_report,
+)
 from service.output.shift_plan_report import shift_plan_report
-from service.routes import chassis, comparison, dyno, final_drive, gear_design, log_analysis
+from service.routes import (
+    chassis,
+    coastdown,
+    comparison,
+    dyno,
+    final_drive,
+    gear_design,
+    log_analysis,
+    shift_window,
+    weather,
+)
 from service.schemas.acceleration import AccelerationRunRequest
 from service.schemas.chassis import ChassisConversionRequest
+from service.schemas.coastdown import CoastDownRequest
 from service.schemas.comparison import ComparisonRequest
 from service.schemas.dyno import DynoCorrectionRequest
 from service.schemas.final_drive import FinalDriveSweepRequest
 from service.schemas.gear_design import GearSpacingRequest, SpeedometerRequest
 from service.schemas.log_analysis import LogAnalysisRequest
 from service.schemas.shift_plan import ShiftPlanRequest
+from service.schemas.shift_window import ShiftWindowRequest
+from service.schemas.weather import WeatherCorrectionRequest
 from service.units import UnitSystem
 
 __all__ = ["SHEETS", "Sheet", "SheetContent", "router"]
@@ -65,6 +86,8 @@ class SheetContent:
 Printer = Callable[[Any], Awaitable[SheetContent]]
 Handler = Callable[[Any, None], Awaitable[Response]]  # a JSON endpoint's handler
 Builder = Callable[[dict[str, Any], UnitSystem], Report]  # its document -> a report
+Inputs = Callable[[Any], Section]  # the request -> the sheet's inputs part
+Drawing = Callable[[Any, dict[str, Any]], PlotChart | None]  # request, document -> chart
 
 
 @dataclass(frozen=True)
@@ -79,12 +102,19 @@ class Sheet:
     printed: Printer
 
 
-def _printed_answer(handler: Handler, build: Builder) -> Printer:
-    """A printer of the document the JSON endpoint's ``handler`` answers with."""
+def _printed_answer(
+    handler: Handler, build: Builder, inputs: Inputs | None, draw: Drawing | None
+) -> Printer:
+    """A printer of the document the JSON endpoint's ``handler`` answers with; with
+    ``inputs`` the sheet's inputs part is read from the request, with ``draw`` a chart."""
 
     async def printed(body: Any) -> SheetContent:
         answer = await handler(body, None)
-        return SheetContent(build(orjson.loads(bytes(answer.body)), body.units))
+        doc = orjson.loads(bytes(answer.body))
+        report = build(doc, body.units)
+        if inputs is not None:
+            report = with_inputs(report, inputs(body))
+        return SheetContent(report, None if draw is None else lambda: draw(body, doc))
 
     return printed
 
@@ -100,7 +130,14 @@ async def _acceleration_run(body: AccelerationRunRequest) -> SheetContent:
 
 
 def _answer_sheet(
-    path: str, name: str, title: str, model: type[Any], handler: Handler, build: Builder
+    path: str,
+    name: str,
+    title: str,
+    model: type[Any],
+    handler: Handler,
+    build: Builder,
+    inputs: Inputs | None = None,
+    draw: Drawing | None = None,
 ) -> Sheet:
     """The sheet of an answer printed from its JSON document."""
     return Sheet(
@@ -111,7 +148,7 @@ def _answer_sheet(
         "the letterhead and the job block. `?format=` or the Accept header picks `text/html` "
         "(default), `text/plain` or `application/pdf`.",
         model,
-        _printed_answer(handler, build),
+        _printed_answer(handler, build, inputs, draw),
     )
 
 
@@ -195,6 +232,35 @@ SHEETS = (
         chassis.create_chassis_conversion,
         chassis_report,
     ),
+    _answer_sheet(
+        "road-load/coast-down",
+        "coast_down",
+        "road load fitted to logged coast-downs",
+        CoastDownRequest,
+        coastdown.create_coast_down_fit,
+        coast_down_report,
+        coast_down_inputs,
+        coast_down_chart,
+    ),
+    _answer_sheet(
+        "shift-window",
+        "shift_window",
+        "time lost against each shift rpm, and the window",
+        ShiftWindowRequest,
+        shift_window.create_shift_window,
+        shift_window_report,
+        shift_window_inputs,
+        lambda _body, doc: shift_window_chart(doc),
+    ),
+    _answer_sheet(
+        "weather-correction",
+        "weather_correction",
+        "density altitude and a slip carried to other weather",
+        WeatherCorrectionRequest,
+        weather.create_weather_correction,
+        weather_report,
+        weather_inputs,
+    ),
 )
 
 
@@ -215,7 +281,7 @@ def _endpoint(sheet: Sheet) -> Callable[..., Awaitable[Response]]:
             appendix=appendix,
             job=body.job,
             units=body.units,
-            stem=sheet.path,
+            stem=sheet.path.replace("/", "-"),
         )
 
     endpoint.__annotations__["body"] = sheet.model
