@@ -7,7 +7,7 @@ from typing import Any
 from core import Drivetrain, TorqueCurve
 from service.output.model import fmt, join_numbers
 from service.schemas.inputs import CurveIn
-from service.schemas.vehicle import LaunchIn, VehicleIn
+from service.schemas.vehicle import LaunchIn, RoadLoadIn, VehicleIn
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["curve_facts", "drivetrain_facts", "launch_facts", "units_line", "vehicle_facts"]
@@ -90,25 +90,9 @@ def drivetrain_facts(
     ]
 
 
-def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
-    """The car as the caller described it (its own units)."""
+def _road_load_text(load: RoadLoadIn, units: UnitSystem) -> str:
+    """The road load as stated: coast-down coefficients, or aero and rolling terms."""
     lab = unit_labels(units)
-    lng, temp = lab["length"], lab["temperature"]
-    share = (
-        ""
-        if vehicle.front_torque_share is None
-        else f", {vehicle.front_torque_share * 100:.0f} % of torque to the front"
-    )
-    facts: Facts = [
-        (
-            "Vehicle",
-            f"mass {vehicle.mass:g} {lab['mass']}; {vehicle.front_weight_share * 100:.1f} % "
-            f"on the front axle; wheelbase {vehicle.wheelbase:g} {lng}; CG height "
-            f"{vehicle.cg_height:g} {lng}; {vehicle.drive} drive{share}; friction "
-            f"coefficient {vehicle.friction_coefficient:g}",
-        )
-    ]
-    load = vehicle.road_load
     if load.coast_down is not None:
         f0, f1, f2 = load.coast_down
         text = (
@@ -130,7 +114,29 @@ def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
             else f"rolling coefficient {load.rolling_coefficient:g}"
         )
         text = f"{aero}; {rolling}"
-    facts.append(("Road load", f"{text}; grade {load.grade_percent:g} %"))
+    return text
+
+
+def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
+    """The car as the caller described it (its own units)."""
+    lab = unit_labels(units)
+    lng, temp = lab["length"], lab["temperature"]
+    share = (
+        ""
+        if vehicle.front_torque_share is None
+        else f", {vehicle.front_torque_share * 100:.0f} % of torque to the front"
+    )
+    facts: Facts = [
+        (
+            "Vehicle",
+            f"mass {vehicle.mass:g} {lab['mass']}; {vehicle.front_weight_share * 100:.1f} % "
+            f"on the front axle; wheelbase {vehicle.wheelbase:g} {lng}; CG height "
+            f"{vehicle.cg_height:g} {lng}; {vehicle.drive} drive{share}; friction "
+            f"coefficient {vehicle.friction_coefficient:g}",
+        )
+    ]
+    load = vehicle.road_load
+    facts.append(("Road load", f"{_road_load_text(load, units)}; grade {load.grade_percent:g} %"))
     air = vehicle.air
     where = (
         f"pressure {air.pressure:g} {lab['pressure']}"

@@ -43,6 +43,39 @@ def _report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> 
     )
 
 
+def _logged_shifts_table(logged: list[dict[str, Any]], spd: str) -> Table:
+    """Each logged shift: when, how long, where it landed, its target and the verdict."""
+    return Table(
+        "Shifts",
+        (
+            Column("Shift", text=True),
+            Column("At", "s"),
+            Column("Took", "s"),
+            Column("Speed", spd),
+            Column("From", "rpm"),
+            Column("Lands at", "rpm"),
+            Column("Target", "rpm"),
+            Column("Off", "%"),
+            Column("Verdict", text=True),
+        ),
+        tuple(
+            (
+                f"{s['from_gear']}-{s['to_gear']}",
+                fmt(s["start_time"], 2),
+                fmt(s["duration"], 2),
+                fmt(s["speed_before"], 1),
+                fmt(s["rpm_before"]),
+                fmt(s["rpm_after"]),
+                fmt(s["target_rpm"]),
+                fmt(s["deviation_percent"], 0),
+                s["verdict"].replace("_", " "),
+            )
+            for s in logged
+        ),
+        VERDICT_RULE,
+    )
+
+
 def log_check_report(doc: dict[str, Any], units: UnitSystem) -> Report:
     """Each logged shift against its target: early, about right or late."""
     spd = doc["units"]["speed"]
@@ -70,35 +103,7 @@ def log_check_report(doc: dict[str, Any], units: UnitSystem) -> Report:
             for g in doc["segments"]
         ),
     )
-    shifts = Table(
-        "Shifts",
-        (
-            Column("Shift", text=True),
-            Column("At", "s"),
-            Column("Took", "s"),
-            Column("Speed", spd),
-            Column("From", "rpm"),
-            Column("Lands at", "rpm"),
-            Column("Target", "rpm"),
-            Column("Off", "%"),
-            Column("Verdict", text=True),
-        ),
-        tuple(
-            (
-                f"{s['from_gear']}-{s['to_gear']}",
-                fmt(s["start_time"], 2),
-                fmt(s["duration"], 2),
-                fmt(s["speed_before"], 1),
-                fmt(s["rpm_before"]),
-                fmt(s["rpm_after"]),
-                fmt(s["target_rpm"]),
-                fmt(s["deviation_percent"], 0),
-                s["verdict"].replace("_", " "),
-            )
-            for s in doc["shifts"]
-        ),
-        VERDICT_RULE,
-    )
+    shifts = _logged_shifts_table(doc["shifts"], spd)
     verdicts = [s["verdict"] for s in doc["shifts"]]
     figures = tuple(
         KeyFigure(label.capitalize(), str(verdicts.count(v)), "shifts")
@@ -163,13 +168,10 @@ def dyno_correction_report(doc: dict[str, Any], units: UnitSystem) -> Report:
     )
 
 
-def chassis_report(doc: dict[str, Any], units: UnitSystem) -> Report:
-    """Wheel and engine curves by the driveline efficiency; the curve in every gear."""
-    lab = doc["units"]
-    pw, tq = lab["power"], lab["torque"]
-    c, peaks = doc["curve"], doc["peaks"]
+def _wheel_and_engine_table(c: dict[str, Any], pw: str, tq: str) -> Table:
+    """The curve at the wheels and at the engine, thinned to a page."""
     picked = thin_rows(len(c["rpm"]))
-    curve = Table(
+    return Table(
         "Wheel and engine",
         (
             Column("Engine", "rpm"),
@@ -189,6 +191,14 @@ def chassis_report(doc: dict[str, Any], units: UnitSystem) -> Report:
             for k in picked
         ),
     )
+
+
+def chassis_report(doc: dict[str, Any], units: UnitSystem) -> Report:
+    """Wheel and engine curves by the driveline efficiency; the curve in every gear."""
+    lab = doc["units"]
+    pw, tq = lab["power"], lab["torque"]
+    c, peaks = doc["curve"], doc["peaks"]
+    curve = _wheel_and_engine_table(c, pw, tq)
     gears = Table(
         "In every gear",
         (Column("Gear"), Column("Efficiency"), Column("Factor"), Column("Peak wheel power", pw)),
