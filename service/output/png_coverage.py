@@ -39,17 +39,16 @@ __all__ = [
     "Mask",
     "Sprite",
     "box_mask",
-    "fill_mask",
     "line_mask",
     "sprite",
-    "steep_boxes",
+    "steep_edges",
     "stroke_mask",
     "text_mask",
 ]
 
 FloatArray = NDArray[np.float64]
 Point = tuple[float, float]
-SUPER = 3  # curves are drawn at this multiple of the picture's resolution
+SUPER = 2  # curves and fills are drawn at this multiple of the picture's resolution
 SPRITE = 8  # markers and badges are drawn at this multiple
 SAMPLES = 8  # dash pattern samples per pixel
 QUARTER = 4  # sprites are kept for each 1/4-pixel offset
@@ -267,8 +266,10 @@ def _dashes(x: FloatArray, y: FloatArray, dash: tuple[float, ...]) -> list[list[
     ends = np.minimum(starts + np.tile(np.asarray(dash[0::2]), count), total)
     keep = starts < total
     starts, ends = starts[keep], ends[keep]
-    xs, ys = np.interp(starts, along, x).tolist(), np.interp(starts, along, y).tolist()
-    xe, ye = np.interp(ends, along, x).tolist(), np.interp(ends, along, y).tolist()
+    both = np.concatenate([starts, ends])
+    px, py = np.interp(both, along, x), np.interp(both, along, y)
+    n = starts.size
+    xs, ys, xe, ye = px[:n].tolist(), py[:n].tolist(), px[n:].tolist(), py[n:].tolist()
     first = np.searchsorted(along, starts, side="right").tolist()
     last = np.searchsorted(along, ends, side="left").tolist()
     xl, yl = x.tolist(), y.tolist()
@@ -312,40 +313,9 @@ def stroke_mask(
     return Mask(image.reduce(k), left, top)
 
 
-def steep_boxes(x: FloatArray, y: FloatArray) -> list[tuple[int, int, int, int]]:
-    """Pixel boxes (left, top, right, bottom) around the outline's edges that are taller
-    than wide and than a pixel, where a plain fill would show steps; overlapping boxes
-    merged."""
+def steep_edges(x: FloatArray, y: FloatArray) -> list[int]:
+    """Indices i of the closed outline's near-vertical edges from point i to i + 1 (four
+    times taller than wide, and over two pixels), where a plain fill shows a staircase."""
     dx, dy = np.diff(x, append=x[:1]), np.diff(y, append=y[:1])
-    boxes: list[list[int]] = []
-    for i in np.flatnonzero(np.abs(dy) > np.maximum(np.abs(dx), 1.0)).tolist():
-        x0, x1 = sorted((float(x[i]), float(x[i] + dx[i])))
-        y0, y1 = sorted((float(y[i]), float(y[i] + dy[i])))
-        box = [math.floor(x0) - 1, math.floor(y0) - 1, math.ceil(x1) + 1, math.ceil(y1) + 1]
-        for other in boxes:
-            if (
-                box[0] <= other[2]
-                and other[0] <= box[2]
-                and box[1] <= other[3]
-                and other[1] <= box[3]
-            ):
-                other[:] = [
-                    min(box[0], other[0]),
-                    min(box[1], other[1]),
-                    max(box[2], other[2]),
-                    max(box[3], other[3]),
-                ]
-                break
-        else:
-            boxes.append(box)
-    return [(a, b, c, d) for a, b, c, d in boxes]
-
-
-def fill_mask(x: FloatArray, y: FloatArray, box: tuple[int, int, int, int]) -> Mask:
-    """Coverage of the filled outline inside ``box``, drawn at ``SUPER`` times."""
-    left, top, right, bottom = box
-    k = SUPER
-    image = Image.new("L", ((right - left) * k, (bottom - top) * k), 0)
-    points = zip(((x - left) * k - 0.5).tolist(), ((y - top) * k - 0.5).tolist(), strict=True)
-    ImageDraw.Draw(image).polygon(list(points), fill=255)
-    return Mask(image.reduce(k), left, top)
+    found: list[int] = np.flatnonzero(np.abs(dy) > np.maximum(4.0 * np.abs(dx), 2.0)).tolist()
+    return found
