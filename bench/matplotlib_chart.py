@@ -25,7 +25,8 @@ from matplotlib.figure import Figure
 from matplotlib.ticker import MaxNLocator
 
 from service.output.chart_data import RunChart, TractiveForceChart
-from service.output.chart_layout import ENVELOPE, INKS, MARKERS, PAPER, best_gear_envelope
+from service.output.chart_layout import best_gear_envelope
+from service.output.chart_page import ENVELOPE, INKS, MARKERS, PAPER
 
 __all__ = ["chart_figure", "drawing", "matplotlib_png"]
 

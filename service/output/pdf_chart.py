@@ -14,7 +14,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from service.output.chart_data import RunChart, TractiveForceChart
-from service.output.chart_layout import ENVELOPE, INKS, nice_ticks
+from service.output.chart_layout import nice_ticks
+from service.output.chart_page import ENVELOPE, INKS
 from service.output.pdf_ink import Ink
 from service.output.pdf_layout import text_width
 

@@ -21,25 +21,15 @@ from collections.abc import Sequence
 import numpy as np
 from PIL import Image, ImageDraw
 
+from service.output import chart_page as page
 from service.output.chart_data import RunChart, TractiveForceChart
-from service.output.chart_layout import (
+from service.output.chart_layout import chart_items
+from service.output.chart_page import (
     CLIP_BOX,
     ENVELOPE,
     HEIGHT_PT,
     PAPER,
     WIDTH_PT,
-    Circle,
-    Frame,
-    Item,
-    Line,
-    LineGroup,
-    Marker,
-    Polygon,
-    Polyline,
-    Rect,
-    Stroke,
-    Text,
-    chart_items,
 )
 from service.output.png_coverage import (
     Mask,
@@ -111,12 +101,14 @@ def _paint(picture: Image.Image, ink: str, mask: Mask | None) -> None:
             _put(picture, rgb, mask.left + inked[0], mask.top + y + inked[1], band.crop(inked))
 
 
-def _line(picture: Image.Image, x1: float, y1: float, x2: float, y2: float, s: Stroke) -> None:
+def _line(
+    picture: Image.Image, x1: float, y1: float, x2: float, y2: float, s: page.Stroke
+) -> None:
     dash = tuple(d * PX for d in s.dash)
     _paint(picture, s.ink, line_mask(x1 * PX, y1 * PX, x2 * PX, y2 * PX, s.width * PX, dash))
 
 
-def _polyline(picture: Image.Image, item: Polyline) -> None:
+def _polyline(picture: Image.Image, item: page.Polyline) -> None:
     s = item.stroke
     left, top, right, bottom = CLIP_BOX
     clip = (left * PX, top * PX, right * PX, bottom * PX) if item.clipped else None
@@ -125,14 +117,14 @@ def _polyline(picture: Image.Image, item: Polyline) -> None:
 
 
 def _stamp(
-    picture: Image.Image, kind: str, x: float, y: float, size: float, face: str, edge: Stroke
+    picture: Image.Image, kind: str, x: float, y: float, size: float, face: str, edge: page.Stroke
 ) -> None:
     s = sprite(kind, x * PX, y * PX, size * PX, face, edge.ink, edge.width * PX)
     box = (s.left, s.top, s.left + s.pixels.width, s.top + s.pixels.height)
     picture.paste(s.pixels, box, s.coverage)
 
 
-def _fill(picture: Image.Image, draw: ImageDraw.ImageDraw, item: Polygon) -> None:
+def _fill(picture: Image.Image, draw: ImageDraw.ImageDraw, item: page.Polygon) -> None:
     """A filled outline: a plain fill, its near-vertical edges (where a plain fill shows a
     staircase) smoothed by a pixel-wide antialiased line of the fill along them."""
     x, y = item.x * PX, item.y * PX
@@ -146,8 +138,8 @@ def _fill(picture: Image.Image, draw: ImageDraw.ImageDraw, item: Polygon) -> Non
         _paint(picture, item.fill, stroke_mask(x[[i, j]], y[[i, j]], 1.0, (), None))
 
 
-def _paint_item(picture: Image.Image, draw: ImageDraw.ImageDraw, item: Item) -> None:
-    if isinstance(item, Text):
+def _paint_item(picture: Image.Image, draw: ImageDraw.ImageDraw, item: page.Item) -> None:
+    if isinstance(item, page.Text):
         mask = text_mask(
             item.text,
             item.x * PX,
@@ -159,20 +151,20 @@ def _paint_item(picture: Image.Image, draw: ImageDraw.ImageDraw, item: Item) -> 
             rotated=item.rotated,
         )
         _paint(picture, item.fill, mask)
-    elif isinstance(item, Polyline):
+    elif isinstance(item, page.Polyline):
         _polyline(picture, item)
-    elif isinstance(item, Marker):
+    elif isinstance(item, page.Marker):
         _stamp(picture, item.kind, item.x, item.y, item.size, item.fill, item.edge)
-    elif isinstance(item, Circle):
+    elif isinstance(item, page.Circle):
         _stamp(picture, "O", item.x, item.y, 2.0 * item.r, item.fill, item.edge)
-    elif isinstance(item, Polygon):
+    elif isinstance(item, page.Polygon):
         _fill(picture, draw, item)
-    elif isinstance(item, Line):
+    elif isinstance(item, page.Line):
         _line(picture, item.x1, item.y1, item.x2, item.y2, item.stroke)
-    elif isinstance(item, LineGroup):
+    elif isinstance(item, page.LineGroup):
         for line in item.lines:
             _line(picture, *line, item.stroke)
-    elif isinstance(item, Frame):
+    elif isinstance(item, page.Frame):
         _line(picture, item.left, item.top, item.left, item.foot, item.stroke)
         _line(picture, item.left, item.foot, item.right, item.foot, item.stroke)
         for line in item.ticks:
@@ -224,14 +216,14 @@ def _palette(inks: frozenset[str]) -> Image.Image:
     return palette
 
 
-def _inks(items: Sequence[Item]) -> frozenset[str]:
+def _inks(items: Sequence[page.Item]) -> frozenset[str]:
     found = {PAPER}
     for item in items:
-        if isinstance(item, (Polyline, Line, LineGroup, Frame)):
+        if isinstance(item, (page.Polyline, page.Line, page.LineGroup, page.Frame)):
             found.add(item.stroke.ink)
-        elif isinstance(item, (Marker, Circle)):
+        elif isinstance(item, (page.Marker, page.Circle)):
             found.update((item.fill, item.edge.ink))
-        elif isinstance(item, (Polygon, Rect, Text)):
+        elif isinstance(item, (page.Polygon, page.Rect, page.Text)):
             found.add(item.fill)
     return frozenset(found)
 

@@ -24,14 +24,14 @@ import functools
 import importlib.util
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 from pathlib import Path
+from typing import NamedTuple
 
 import numpy as np
 from numpy.typing import NDArray
 from PIL import Image, ImageDraw, ImageFont
 
-from service.output.chart_layout import marker_points
+from service.output.chart_page import marker_points
 
 __all__ = [
     "SPRITE",
@@ -54,8 +54,7 @@ SAMPLES = 8  # dash pattern samples per pixel
 QUARTER = 4  # sprites are kept for each 1/4-pixel offset
 
 
-@dataclass(frozen=True)
-class Mask:
+class Mask(NamedTuple):
     """Coverage (an 8-bit "L" image) whose top-left pixel lands on (``left``, ``top``)."""
 
     image: Image.Image
@@ -63,8 +62,7 @@ class Mask:
     top: int
 
 
-@dataclass(frozen=True)
-class Sprite:
+class Sprite(NamedTuple):
     """A marker's pixels (RGB) and its coverage, top-left on (``left``, ``top``)."""
 
     pixels: Image.Image
@@ -142,11 +140,17 @@ def _to_image(share: FloatArray) -> Image.Image:
 
 @functools.lru_cache(maxsize=512)
 def _row(
-    start: float, length: float, width: float, middle: float, dash: tuple[float, ...], back: bool
+    start: float,
+    length: float,
+    width: float,
+    middle: float,
+    dash: tuple[float, ...],
+    back: bool,
+    vertical: bool,
 ) -> Image.Image:
     """A horizontal line from ``start`` (into its first pixel) for ``length``, ``width``
     wide about ``middle`` (into its first row); the dashes run from its right end when
-    ``back``."""
+    ``back``; turned into a vertical one (transposed) when ``vertical``."""
     cols = math.ceil(start + length)
     along = _overlap(start, start + length, cols)
     if dash:
@@ -156,15 +160,18 @@ def _row(
         along = np.minimum(along, on.reshape(cols, SAMPLES).mean(axis=1))
     rows = math.ceil(middle + width / 2.0)
     across = _overlap(middle - width / 2.0, middle + width / 2.0, rows)
-    return _to_image(np.outer(across, along))
+    share = np.outer(across, along)
+    return _to_image(share.T if vertical else share)
 
 
 def line_mask(
     x1: float, y1: float, x2: float, y2: float, width: float, dash: tuple[float, ...]
 ) -> Mask:
-    """Coverage of an axis-aligned line, its dash pattern starting at (x1, y1)."""
+    """Coverage of an axis-aligned line, its dash pattern starting at (x1, y1), centred on
+    the nearest middle of a pixel row or column, so a thin line stays crisp."""
     vertical = abs(x1 - x2) < abs(y1 - y2)
     a1, a2, c = (y1, y2, x1) if vertical else (x1, x2, y1)
+    c = math.floor(c) + 0.5
     along0, across0 = math.floor(min(a1, a2)), math.floor(c - width / 2.0)
     image = _row(
         round(min(a1, a2) - along0, 3),
@@ -173,10 +180,9 @@ def line_mask(
         round(c - across0, 3),
         tuple(round(d, 3) for d in dash),
         a2 < a1,
+        vertical,
     )
-    if vertical:
-        return Mask(image.transpose(Image.Transpose.TRANSPOSE), across0, along0)
-    return Mask(image, along0, across0)
+    return Mask(image, across0, along0) if vertical else Mask(image, along0, across0)
 
 
 @functools.lru_cache(maxsize=256)
@@ -237,8 +243,10 @@ def _sprite(
             r = (size / 2.0 + grow) * scale
             draw.ellipse((cx - r, cy - r, cx + r - 1, cy + r - 1), fill=255)
         else:
-            outline = _grown(marker_points(kind, 0.0, 0.0, size), grow)
-            draw.polygon([(cx + u * scale - 0.5, cy + v * scale - 0.5) for u, v in outline], 255)
+            # Pillow fills from floor(x0) to floor(x1) inclusive: half a fine pixel in from
+            # the outline, that is every fine pixel whose centre lies inside it
+            outline = _grown(marker_points(kind, 0.0, 0.0, size), grow - 0.5 / scale)
+            draw.polygon([(cx + u * scale, cy + v * scale) for u, v in outline], 255)
         shares.append(mask.reduce(scale))
     ring, inside = shares
     pixels = Image.new("RGB", ring.size, _rgb(edge))
@@ -257,30 +265,31 @@ def sprite(
 
 
 def _dashes(x: FloatArray, y: FloatArray, dash: tuple[float, ...]) -> list[list[Point]]:
-    """The dashes of a polyline, the pattern starting at its first point."""
-    along = np.concatenate([[0.0], np.cumsum(np.hypot(np.diff(x), np.diff(y)))])
-    total, period = float(along[-1]), sum(dash)
-    count = math.ceil(total / period)
-    offsets = np.concatenate([[0.0], np.cumsum(dash)])
-    starts = (np.arange(count)[:, None] * period + offsets[0:-1:2][None, :]).ravel()
-    ends = np.minimum(starts + np.tile(np.asarray(dash[0::2]), count), total)
-    keep = starts < total
-    starts, ends = starts[keep], ends[keep]
-    both = np.concatenate([starts, ends])
-    px, py = np.interp(both, along, x), np.interp(both, along, y)
-    n = starts.size
-    xs, ys, xe, ye = px[:n].tolist(), py[:n].tolist(), px[n:].tolist(), py[n:].tolist()
-    first = np.searchsorted(along, starts, side="right").tolist()
-    last = np.searchsorted(along, ends, side="left").tolist()
-    xl, yl = x.tolist(), y.tolist()
-    return [
-        [
-            (xs[i], ys[i]),
-            *zip(xl[first[i] : last[i]], yl[first[i] : last[i]], strict=True),
-            (xe[i], ye[i]),
-        ]
-        for i in range(len(xs))
-    ]
+    """The dashes of a polyline, the pattern starting at its first point (one walk along
+    the points: a few dozen dashes cost less in plain Python than in array calls)."""
+    xs, ys = x.tolist(), y.tolist()
+    pieces: list[list[Point]] = []
+    k, left, on = 0, dash[0], True  # pattern element, its length still to run, pen down
+    piece = [(xs[0], ys[0])]
+    for i in range(len(xs) - 1):
+        x0, y0, x1, y1 = xs[i], ys[i], xs[i + 1], ys[i + 1]
+        size, at = math.hypot(x1 - x0, y1 - y0), 0.0
+        while size - at > left:
+            at += left
+            point = (x0 + (x1 - x0) * at / size, y0 + (y1 - y0) * at / size)
+            if on:
+                piece.append(point)
+                pieces.append(piece)
+            else:
+                piece = [point]
+            on, k = not on, (k + 1) % len(dash)
+            left = dash[k]
+        left -= size - at
+        if on:
+            piece.append((x1, y1))
+    if on and len(piece) > 1:
+        pieces.append(piece)
+    return pieces
 
 
 def stroke_mask(

@@ -10,8 +10,10 @@ from __future__ import annotations
 
 from html import escape
 
+from service.output import chart_page as page
 from service.output.chart_data import RunChart, TractiveForceChart
-from service.output.chart_layout import (
+from service.output.chart_layout import chart_items
+from service.output.chart_page import (
     AX_H,
     AX_W,
     AX_X,
@@ -20,17 +22,6 @@ from service.output.chart_layout import (
     PAPER,
     SQUARE_HALF,
     WIDTH_PT,
-    Circle,
-    Item,
-    Line,
-    LineGroup,
-    Marker,
-    Polygon,
-    Polyline,
-    Rect,
-    Stroke,
-    Text,
-    chart_items,
     marker_points,
 )
 
@@ -47,17 +38,17 @@ def _n(x: float) -> str:
     return "0" if text == "-0" else text
 
 
-def _points(item: Polyline | Polygon) -> str:
+def _points(item: page.Polyline | page.Polygon) -> str:
     """``x,y`` pairs to 0.01 pt, one format call per point (the bulk of the document: a
     chart has about a thousand)."""
     return " ".join(map(_PAIR.format, item.x.tolist(), item.y.tolist()))
 
 
-def _dash(stroke: Stroke) -> str:
+def _dash(stroke: page.Stroke) -> str:
     return f' stroke-dasharray="{",".join(_n(d) for d in stroke.dash)}"' if stroke.dash else ""
 
 
-def _stroke(stroke: Stroke) -> str:
+def _stroke(stroke: page.Stroke) -> str:
     return f'stroke="{stroke.ink}" stroke-width="{_n(stroke.width)}"{_dash(stroke)}'
 
 
@@ -65,7 +56,7 @@ def _line(x1: float, y1: float, x2: float, y2: float) -> str:
     return f'<line x1="{_n(x1)}" y1="{_n(y1)}" x2="{_n(x2)}" y2="{_n(y2)}"'
 
 
-def _text(t: Text) -> str:
+def _text(t: page.Text) -> str:
     attrs = [f'x="{_n(t.x)}"', f'y="{_n(t.y)}"', f'font-size="{_n(t.size)}"', f'fill="{t.fill}"']
     if t.anchor != "start":
         attrs.append(f'text-anchor="{t.anchor}"')
@@ -78,7 +69,7 @@ def _text(t: Text) -> str:
     return f"<text {' '.join(attrs)}>{escape(t.text)}</text>"
 
 
-def _marker(m: Marker) -> str:
+def _marker(m: page.Marker) -> str:
     style = f'fill="{m.fill}" stroke="{m.edge.ink}" stroke-width="{_n(m.edge.width)}"'
     if m.kind == "o":
         return f'<circle cx="{_n(m.x)}" cy="{_n(m.y)}" r="{_n(m.size / 2.0)}" {style}/>'
@@ -92,33 +83,33 @@ def _marker(m: Marker) -> str:
     return f'<polygon points="{text}" {style}/>'
 
 
-def _element(item: Item) -> str:
-    if isinstance(item, Text):
+def _element(item: page.Item) -> str:
+    if isinstance(item, page.Text):
         return _text(item)
-    if isinstance(item, Marker):
+    if isinstance(item, page.Marker):
         return _marker(item)
-    if isinstance(item, Polyline):
+    if isinstance(item, page.Polyline):
         join = ' stroke-linejoin="round"' if item.round_join else ""
         s = item.stroke
         return (
             f'<polyline points="{_points(item)}" fill="none" stroke="{s.ink}" '
             f'stroke-width="{_n(s.width)}"{join}{_dash(s)}{_CLIP if item.clipped else ""}/>'
         )
-    if isinstance(item, Polygon):
+    if isinstance(item, page.Polygon):
         return f'<polygon points="{_points(item)}" fill="{item.fill}"{_CLIP}/>'
-    if isinstance(item, Circle):
+    if isinstance(item, page.Circle):
         return (
             f'<circle cx="{_n(item.x)}" cy="{_n(item.y)}" r="{_n(item.r)}" '
             f'fill="{item.fill}" {_stroke(item.edge)}/>'
         )
-    if isinstance(item, Line):
+    if isinstance(item, page.Line):
         return f"{_line(item.x1, item.y1, item.x2, item.y2)} {_stroke(item.stroke)}/>"
-    if isinstance(item, Rect):
+    if isinstance(item, page.Rect):
         return (
             f'<rect x="{_n(item.x)}" y="{_n(item.y)}" width="{_n(item.w)}" '
             f'height="{_n(item.h)}" fill="{item.fill}" fill-opacity="{_n(item.opacity)}"/>'
         )
-    if isinstance(item, LineGroup):
+    if isinstance(item, page.LineGroup):
         return f"<g {_stroke(item.stroke)}>{''.join(_line(*xy) + '/>' for xy in item.lines)}</g>"
     f = item
     return (

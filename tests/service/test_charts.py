@@ -13,7 +13,7 @@ from numpy.testing import assert_allclose
 
 from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
 from service.output.chart_data import run_chart, tractive_force_chart
-from service.output.chart_layout import gear_look
+from service.output.chart_page import gear_look
 from service.output.png_chart import PNG_DPI, SIZE_IN, ChartFormat, render_chart
 from service.schemas.acceleration import AccelerationRunRequest
 from service.schemas.shift_plan import ShiftPlanRequest

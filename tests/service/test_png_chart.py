@@ -18,13 +18,13 @@ from PIL import Image
 
 from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
 from service.output.chart_data import RunChart, TractiveForceChart, run_chart, tractive_force_chart
-from service.output.chart_layout import (
+from service.output.chart_layout import chart_items
+from service.output.chart_page import (
     ENVELOPE,
     INKS,
     PAPER,
     Polyline,
     Text,
-    chart_items,
 )
 from service.output.png_chart import PNG_DPI, SIZE_IN, png_chart
 from service.output.png_coverage import text_mask
