@@ -56,38 +56,63 @@ def _line(x1: float, y1: float, x2: float, y2: float) -> str:
     return f'<line x1="{_n(x1)}" y1="{_n(y1)}" x2="{_n(x2)}" y2="{_n(y2)}"'
 
 
-def _text(t: page.Text) -> str:
-    attrs = [f'x="{_n(t.x)}"', f'y="{_n(t.y)}"', f'font-size="{_n(t.size)}"', f'fill="{t.fill}"']
-    if t.anchor != "start":
-        attrs.append(f'text-anchor="{t.anchor}"')
-    if t.bold:
-        attrs.append('font-weight="bold"')
-    if t.italic:
+def _text(
+    x: float,
+    y: float,
+    text: str,
+    size: float,
+    fill: str,
+    *,
+    anchor: str = "start",
+    weight: str = "",
+    italic: bool = False,
+    rotate: bool = False,
+    baseline: str = "",
+) -> str:
+    attrs = [f'x="{_n(x)}"', f'y="{_n(y)}"', f'font-size="{_n(size)}"', f'fill="{fill}"']
+    if anchor != "start":
+        attrs.append(f'text-anchor="{anchor}"')
+    if weight:
+        attrs.append(f'font-weight="{weight}"')
+    if italic:
         attrs.append('font-style="italic"')
-    if t.rotated:
-        attrs.append(f'transform="rotate(-90 {_n(t.x)} {_n(t.y)})"')
-    return f"<text {' '.join(attrs)}>{escape(t.text)}</text>"
+    if baseline:
+        attrs.append(f'dominant-baseline="{baseline}"')
+    if rotate:
+        attrs.append(f'transform="rotate(-90 {_n(x)} {_n(y)})"')
+    return f"<text {' '.join(attrs)}>{escape(text)}</text>"
 
 
-def _marker(m: page.Marker) -> str:
-    style = f'fill="{m.fill}" stroke="{m.edge.ink}" stroke-width="{_n(m.edge.width)}"'
-    if m.kind == "o":
-        return f'<circle cx="{_n(m.x)}" cy="{_n(m.y)}" r="{_n(m.size / 2.0)}" {style}/>'
-    if m.kind == "s":
-        h = SQUARE_HALF * (m.size / 2.0)
+def _marker(kind: str, x: float, y: float, size: float, fill: str, edge: str, lw: float) -> str:
+    style = f'fill="{fill}" stroke="{edge}" stroke-width="{_n(lw)}"'
+    if kind == "o":
+        return f'<circle cx="{_n(x)}" cy="{_n(y)}" r="{_n(size / 2.0)}" {style}/>'
+    if kind == "s":
+        h = SQUARE_HALF * (size / 2.0)
         return (
-            f'<rect x="{_n(m.x - h)}" y="{_n(m.y - h)}" width="{_n(2 * h)}" '
-            f'height="{_n(2 * h)}" {style}/>'
+            f'<rect x="{_n(x - h)}" y="{_n(y - h)}" width="{_n(2 * h)}" height="{_n(2 * h)}" '
+            f"{style}/>"
         )
-    text = " ".join(f"{_n(x)},{_n(y)}" for x, y in marker_points(m.kind, m.x, m.y, m.size))
+    text = " ".join(f"{_n(px)},{_n(py)}" for px, py in marker_points(kind, x, y, size))
     return f'<polygon points="{text}" {style}/>'
 
 
 def _element(item: page.Item) -> str:
     if isinstance(item, page.Text):
-        return _text(item)
+        return _text(
+            item.x,
+            item.y,
+            item.text,
+            item.size,
+            item.fill,
+            anchor=item.anchor,
+            weight="bold" if item.bold else "",
+            italic=item.italic,
+            rotate=item.rotated,
+        )
     if isinstance(item, page.Marker):
-        return _marker(item)
+        m = item
+        return _marker(m.kind, m.x, m.y, m.size, m.fill, m.edge.ink, m.edge.width)
     if isinstance(item, page.Polyline):
         join = ' stroke-linejoin="round"' if item.round_join else ""
         s = item.stroke
