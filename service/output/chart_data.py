@@ -26,7 +26,6 @@ __all__ = [
     "RunMark",
     "ShiftMark",
     "TractiveForceChart",
-    "force_envelope",
     "run_chart",
     "tractive_force_chart",
 ]
@@ -243,17 +242,3 @@ def run_chart(outcome: RunOutcome) -> RunChart:
         shifts=shifts,
         milestones=tuple(marks[:8]),
     )
-
-
-def force_envelope(
-    chart: TractiveForceChart, top_speed: float
-) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    """The best force of any gear [caller's force unit] on 161 speeds from 0 to
-    ``top_speed`` (0 where no gear reaches): the envelope both chart writers draw."""
-    grid = np.linspace(0.0, top_speed, 161)
-    each = np.stack(
-        [np.interp(grid, g.speed, g.force, left=np.nan, right=np.nan) for g in chart.gears]
-    )
-    defined = ~np.isnan(each).all(axis=0)
-    best = np.where(defined, np.nanmax(np.where(np.isnan(each), -np.inf, each), axis=0), 0.0)
-    return grid, np.maximum(best, 0.0)
