@@ -14,6 +14,7 @@ from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 import pint
 import pytest
 from pydantic import BaseModel
@@ -189,6 +190,35 @@ def test_each_limit_is_enforced_in_si_in_both_systems(
                 assert f" {unit}," in found[0]["message"]
             else:
                 assert found == [], (value, unit)
+
+
+LIMITED_LISTS = [p for p in LIMITED if p.values[3] == "item"]
+
+
+@pytest.mark.parametrize("system", [pytest.param(s, id=s.value) for s in UnitSystem])
+@pytest.mark.parametrize(("model", "name", "limits", "shape"), LIMITED_LISTS)
+def test_a_limited_list_flags_exactly_the_items_the_one_value_check_flags(
+    model: type[BaseModel], name: str, limits: SiLimits, shape: str, system: UnitSystem
+) -> None:
+    # a list of numbers is checked as one array; every item at, a hair and a step either
+    # side of each limit (the neighbouring doubles of the limit in the caller's unit) must
+    # be flagged exactly when SiLimits.problem flags it on its own
+    unit = _caller_unit(limits, system)
+    values = [_convert(_inside(limits), limits.si_unit or si_label(limits.quantity), unit)]  # type: ignore[arg-type]
+    for limit_si in (limits.gt, limits.ge, limits.lt, limits.le):
+        if limit_si is not None:
+            at = limits._from_si(limit_si, unit, system)
+            step = max(abs(at) * 1e-6, 1e-6)
+            values += [at, np.nextafter(at, -np.inf), np.nextafter(at, np.inf)]
+            values += [at - step, at + step]
+    values = [float(v) for v in values]
+    instance = model.model_construct(**{name: values})
+    found = [e["field"] for e in bound_violations(instance, system)]
+    expected = [
+        f"{name}[{i}]" for i, v in enumerate(values) if limits.problem(v, instance, system)
+    ]
+    assert found == expected
+    assert 1 <= len(found) < len(values)
 
 
 def _us_run(api: Any, run: dict[str, Any], **vehicle: Any) -> Any:
