@@ -323,29 +323,49 @@ def best_shifts(
         if band is None or not band[0] <= root <= band[1]:
             found[k].append(root)
 
+    return _choose(grid, cost, scan, lo, hi, bands, found, crossed, (diff[:, 0] < 0.0).tolist())
+
+
+def _choose(
+    grid: FloatArray,
+    cost: FloatArray,
+    scan: _Scan,
+    lo: FloatArray,
+    hi: FloatArray,
+    bands: dict[int, tuple[float, float]],
+    found: list[list[float]],
+    crossed: NDArray[np.intp],
+    behind: list[bool],
+) -> tuple[ShiftChoice, ...]:
+    """Each gear change's quickest candidate (range start, range end, the crossings, the
+    band's end), by the crossing time ``cost`` interpolated on its scan."""
     choices = []
-    for k in range(lo.size):
-        if not valid[k]:
-            choices.append(ShiftChoice(float(hi[k]), ShiftReason.REV_LIMIT, 0, None, False))
+    for k, (start, limit, top, last, n) in enumerate(
+        zip(
+            lo.tolist(),
+            hi.tolist(),
+            scan.top.tolist(),
+            scan.last.tolist(),
+            crossed.tolist(),
+            strict=True,
+        )
+    ):
+        if last < 0:  # no shared range
+            choices.append(ShiftChoice(limit, ShiftReason.REV_LIMIT, 0, None, False))
             continue
-        if scan.last[k] == 0:  # the car cannot accelerate at the range's start
-            choices.append(ShiftChoice(float(lo[k]), ShiftReason.DRAG_LIMIT, 0, None, False))
+        if last == 0:  # the car cannot accelerate at the range's start
+            choices.append(ShiftChoice(start, ShiftReason.DRAG_LIMIT, 0, None, False))
             continue
-        top = float(scan.top[k])
         band, here = bands.get(k), found[k]
-        candidates = [float(lo[k]), top, *here]
+        candidates = [start, top, *here]
         if band is not None:
             candidates.append(band[1])
-        at = np.interp(candidates, grid[k], cost[k])
-        best = candidates[int(np.argmin(at))]
+        best = candidates[int(np.interp(candidates, grid[k], cost[k]).argmin())]
         if band is not None and band[0] <= best <= band[1]:
             best = band[1]
-        below = best == float(lo[k]) and bool(diff[k, 0] < 0.0)
-        at_end = best >= top and not any(abs(r - top) <= 1e-9 * top for r in here)
+        below = best == start and behind[k]
         reason = ShiftReason.CROSSOVER
-        if at_end:
-            reason = ShiftReason.REV_LIMIT if top >= float(hi[k]) else ShiftReason.DRAG_LIMIT
-        choices.append(
-            ShiftChoice(best, reason, len(here), band, below, int(crossed[k]), tuple(here))
-        )
+        if best >= top and not any(abs(r - top) <= 1e-9 * top for r in here):
+            reason = ShiftReason.REV_LIMIT if top >= limit else ShiftReason.DRAG_LIMIT
+        choices.append(ShiftChoice(best, reason, len(here), band, below, n, tuple(here)))
     return tuple(choices)
