@@ -297,7 +297,8 @@ def _scan_numbers(
     flagged = np.zeros(raw.shape, dtype=bool)
     for lim in limits:
         unit = lim._unit(model, units)
-        si = lim._to_si(raw, unit, units)  # type: ignore[arg-type]
+        with np.errstate(over="ignore"):  # a huge value becomes inf, as a float does
+            si = lim._to_si(raw, unit, units)  # type: ignore[arg-type]
         for limit, bad in (
             (lim.gt, np.less_equal),
             (lim.ge, np.less),

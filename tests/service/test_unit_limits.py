@@ -212,7 +212,8 @@ def test_a_limited_list_flags_exactly_the_items_the_one_value_check_flags(
             values += [at, np.nextafter(at, -np.inf), np.nextafter(at, np.inf)]
             values += [at - step, at + step]
     values = [float(v) for v in values]
-    instance = model.model_construct(**{name: values})
+    given: dict[str, Any] = {name: values}
+    instance = model.model_construct(**given)
     found = [e["field"] for e in bound_violations(instance, system)]
     expected = [
         f"{name}[{i}]" for i, v in enumerate(values) if limits.problem(v, instance, system)
@@ -323,6 +324,17 @@ def test_true_is_not_taken_for_a_number(api: Any, coupe_us: dict[str, Any]) -> N
     r = api.post("/v1/shift-plan", json=coupe_us)
     assert r.status_code == 422
     assert r.json()["field"] == "drivetrain.final_drive_ratio"
+
+
+def test_a_curve_torque_too_large_to_convert_is_refused_naming_its_point(
+    api: Any, coupe_us: dict[str, Any]
+) -> None:
+    # 1.7e308 lbf*ft is past the largest double once in N*m: the item is outside its limit
+    # (a 422 naming it), as a single number is, never an overflow error
+    coupe_us["engine"]["curve"]["torque"][3] = 1.7e308
+    r = api.post("/v1/shift-plan", json=coupe_us)
+    assert r.status_code == 422, r.text
+    assert r.json()["field"] == "engine.curve.torque[3]"
 
 
 def test_standard_air_is_labelled_in_the_callers_units(api: Any) -> None:
