@@ -192,6 +192,7 @@ from core.errors import (
     DynoFileError,
     FitError,
     GearworkError,
+    LogDataError,
     SimulationError,
     TireSizeError,
     VehicleError,
@@ -212,7 +213,6 @@ from core.logs.crossover import (
 )
 from core.logs.pass_data import (
     AccelerationUnit,
-    LogDataError,
     PassLog,
     SpeedUnit,
     TimeUnit,
@@ -229,6 +229,7 @@ from core.logs.text import (
     LogText,
     read_log_text,
 )
+from core.notices import Notice
 from core.runs.batch import (
     BatchRuns,
     batch_runs,
@@ -286,7 +287,6 @@ from core.shifts.best import (
     best_shifts,
 )
 from core.shifts.plan import (
-    Notice,
     ShiftPlan,
     ShiftPoint,
     resolve_rev_limit,

@@ -26,10 +26,10 @@ from core.air.atmosphere import air_density_kg_m3
 from core.engine.correction import CorrectionStandard, correction_factor
 from core.engine.curves import TorqueCurve
 from core.errors import CorrectionError
+from core.notices import Notice
 from core.runs.performance import ShiftCriterion, planned_shift_rpm
 from core.runs.report import run_report
 from core.runs.simulate import DriveModel, drive_model
-from core.shifts.plan import Notice
 
 __all__ = [
     "ISO_SEA_LEVEL_DENSITY_KG_M3",

@@ -37,7 +37,7 @@ from scipy.optimize import least_squares
 
 from core.air.atmosphere import air_density_kg_m3
 from core.errors import FitError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = [
     "EQUIVALENT_MASS_FACTOR",

@@ -35,10 +35,11 @@ from core.driveline.drivetrain import Drivetrain
 from core.driveline.tires import Tire
 from core.engine.curves import RPM_TO_RAD_S, TorqueCurve
 from core.errors import SimulationError
+from core.notices import Notice
 from core.runs.batch import BatchRuns, batch_runs
 from core.runs.milestones import FOOT_M
 from core.runs.simulate import drive_model
-from core.shifts.plan import Notice, resolve_rev_limit, shift_plan
+from core.shifts.plan import resolve_rev_limit, shift_plan
 
 __all__ = ["FinalDriveSweep", "sweep_final_drives"]
 

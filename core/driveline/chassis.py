@@ -34,7 +34,7 @@ from numpy.typing import ArrayLike, NDArray
 from core.driveline.drivetrain import MAX_GEARS
 from core.engine.curves import RPM_TO_RAD_S
 from core.errors import CurveError, DrivetrainError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = [
     "MAX_LOSS_PERCENT",

@@ -65,7 +65,7 @@ from core.engine.curves import (
     torque_curve_from_torque,
 )
 from core.errors import DynoFileError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = [
     "MAX_COLUMNS",

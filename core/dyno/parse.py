@@ -21,7 +21,7 @@ from core.dyno.columns import (
 )
 from core.dyno.rows import column_texts, significant_lines, split_rows
 from core.errors import DynoFileError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = [
     "MAX_COLUMNS",

@@ -28,7 +28,7 @@ import numpy as np
 
 from core.dyno.columns import DynoColumn
 from core.errors import DynoFileError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = ["column_texts", "significant_lines", "split_rows"]
 

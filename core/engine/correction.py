@@ -40,7 +40,7 @@ from core.air.altimeter import station_pressure_from_altimeter_pa
 from core.air.atmosphere import air_state
 from core.engine.curves import TorqueCurve
 from core.errors import CorrectionError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = [
     "CELL_TEMPERATURE_RANGE_K",

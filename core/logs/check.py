@@ -27,8 +27,9 @@ from numpy.typing import NDArray
 from core.driveline.drivetrain import Drivetrain
 from core.driveline.tires import Tire
 from core.engine.curves import RPM_TO_RAD_S
+from core.errors import LogDataError
 from core.logs.crossover import SETTLE_S, VerdictBasis
-from core.logs.pass_data import LogDataError, PassLog, uniform_samples
+from core.logs.pass_data import PassLog, uniform_samples
 from core.logs.shift import AVERAGE_WINDOW_S, LoggedShift, ShiftSignals, measure_shift
 from core.logs.signal import (
     MOVING_SPEED_M_S,
@@ -40,7 +41,7 @@ from core.logs.signal import (
     window_points,
 )
 from core.logs.spin import match_notices
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = [
     "DEFAULT_SMOOTHING_WINDOW_S",

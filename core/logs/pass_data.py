@@ -17,14 +17,13 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from core.errors import GearworkError
-from core.shifts.plan import Notice
+from core.errors import LogDataError
+from core.notices import Notice
 
 __all__ = [
     "MAX_SAMPLES",
     "MIN_SAMPLES",
     "AccelerationUnit",
-    "LogDataError",
     "PassLog",
     "SpeedUnit",
     "TimeUnit",
@@ -46,32 +45,6 @@ MAX_ACCELERATION_M_S2 = 5.0 * 9.80665
 GAP_FACTOR = 5.0  # a step over 5 median intervals (and over 0.25 s) is reported as a gap
 _MAX_GRID = 2 * MAX_SAMPLES
 _STANDARD_GRAVITY = 9.80665  # [m/s^2]
-
-
-class LogDataError(GearworkError):
-    """A logged pass cannot be used: bad channels, or a log text that cannot be read.
-
-    Parameters
-    ----------
-    message : str
-        What is wrong, naming the channel (and the sample index or line).
-    parameter : str or None
-        The channel at fault, with an index where one applies (``"time[12]"``).
-    line, column : int or None
-        For a log text: the 1-based line and column (cell) at fault, when one is.
-    """
-
-    def __init__(
-        self,
-        message: str,
-        *,
-        parameter: str | None = None,
-        line: int | None = None,
-        column: int | None = None,
-    ) -> None:
-        super().__init__(message, parameter=parameter)
-        self.line = line
-        self.column = column
 
 
 class TimeUnit(enum.Enum):

@@ -41,18 +41,17 @@ from dataclasses import dataclass
 from core.dyno.numbers import number_format_of_texts, parse_column
 from core.dyno.parse import Delimiter
 from core.dyno.rows import significant_lines
-from core.errors import DynoFileError
+from core.errors import DynoFileError, LogDataError
 from core.logs.header import LogColumn, LogQuantity, read_header
 from core.logs.pass_data import (
     MAX_SAMPLES,
     AccelerationUnit,
-    LogDataError,
     PassLog,
     SpeedUnit,
     TimeUnit,
     pass_log,
 )
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = ["MAX_TEXT_CHARS", "LogText", "read_log_text"]
 

@@ -27,6 +27,7 @@ from core.driveline.drivetrain import Drivetrain
 from core.driveline.tires import Tire
 from core.engine.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
 from core.errors import SimulationError
+from core.notices import Notice
 from core.runs.integrator import (
     MAX_SPEED_M_S,
     POINTS_PER_GEAR,
@@ -36,7 +37,7 @@ from core.runs.integrator import (
     ShiftBlock,
     integrate_runs,
 )
-from core.shifts.plan import Notice, resolve_rev_limit
+from core.shifts.plan import resolve_rev_limit
 
 __all__ = [
     "MAX_SPEED_M_S",
