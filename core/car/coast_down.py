@@ -38,6 +38,7 @@ from scipy.optimize import least_squares
 from core.air.atmosphere import air_density_kg_m3
 from core.errors import FitError
 from core.notices import Notice
+from core.units import KM_H_M_S, STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "EQUIVALENT_MASS_FACTOR",
@@ -67,10 +68,9 @@ CONFIDENCE = 0.95
 MIN_SAMPLES = 10
 MIN_MASS_KG = 10.0  # lighter than any vehicle that coasts on a road
 MAX_RUNS = 10
-SHORT_SPAN_M_S = 40.0 / 3.6  # a run spanning less than 40 km/h separates the terms poorly
-NOISY_RMS_M_S = 1.0 / 3.6  # residual above 1 km/h RMS: a noisy or disturbed run
+SHORT_SPAN_M_S = 40.0 * KM_H_M_S  # a run spanning less than 40 km/h separates the terms poorly
+NOISY_RMS_M_S = KM_H_M_S  # residual above 1 km/h RMS: a noisy or disturbed run
 WIDE_INTERVAL_SHARE = 0.10
-_G = 9.80665
 
 
 class TravelDirection(enum.Enum):
@@ -242,7 +242,7 @@ def _start_guess(runs: Sequence[CoastDownRun], mass_kg: float, me: float) -> Flo
     drop = sum(float(r.speed_m_s[0] - r.speed_m_s[-1]) for r in runs)
     span = sum(float(r.time_s[-1] - r.time_s[0]) for r in runs)
     mean_force = me * drop / span
-    f0 = min(0.012 * mass_kg * _G, 0.5 * mean_force)
+    f0 = min(0.012 * mass_kg * STANDARD_GRAVITY_M_S2, 0.5 * mean_force)
     v2 = float(np.mean(np.concatenate([r.speed_m_s**2 for r in runs])))
     return np.array([f0, 0.0, max((mean_force - f0) / v2, 1e-3)])
 
@@ -428,6 +428,6 @@ def fit_coast_down(
         runs=run_fits,
         reference=ref,
         drag_area_m2=2.0 * float(ref.coefficients[2]) / ref.reference_density_kg_m3,
-        rolling_coefficient=float(ref.coefficients[0]) / (mass_kg * _G),
+        rolling_coefficient=float(ref.coefficients[0]) / (mass_kg * STANDARD_GRAVITY_M_S2),
         notices=tuple(_notices(run_fits, value, half)),
     )

@@ -24,6 +24,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from core.errors import VehicleError
+from core.units import MPH_M_S, STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "RADIAL_ROLLING_COEFFICIENT",
@@ -35,11 +36,9 @@ __all__ = [
 
 FloatArray = NDArray[np.float64]
 
-_STANDARD_GRAVITY = 9.80665  # [m/s^2]
-_MPH_TO_M_S = 0.44704
 RADIAL_ROLLING_COEFFICIENT = 0.0041
 """Speed-independent rolling coefficient of radial tires, ``f0`` [-] (Gillespie ch. 4)."""
-RADIAL_ROLLING_SPEED_COEFFICIENT_S_M = 0.000041 / _MPH_TO_M_S
+RADIAL_ROLLING_SPEED_COEFFICIENT_S_M = 0.000041 / MPH_M_S
 """Speed coefficient of radial tires, ``f1`` [s/m]: 0.000041 per mph (Gillespie ch. 4)."""
 
 
@@ -147,7 +146,7 @@ class RoadLoad:
         return cls(
             form=RoadLoadForm.CONSTANT_ROLLING,
             mass_kg=mass_kg,
-            constant_n=rolling_coefficient * mass_kg * _STANDARD_GRAVITY,
+            constant_n=rolling_coefficient * mass_kg * STANDARD_GRAVITY_M_S2,
             linear_n_s_m=0.0,
             quadratic_n_s2_m2=0.5 * air_density_kg_m3 * drag_area_m2,
             grade_percent=grade_percent,
@@ -189,7 +188,7 @@ class RoadLoad:
         _require_positive(air_density_kg_m3, "air_density_kg_m3")
         _require_non_negative(rolling_coefficient, "rolling_coefficient")
         _require_non_negative(rolling_speed_coefficient_s_m, "rolling_speed_coefficient_s_m")
-        weight_n = mass_kg * _STANDARD_GRAVITY
+        weight_n = mass_kg * STANDARD_GRAVITY_M_S2
         return cls(
             form=RoadLoadForm.SPEED_DEPENDENT_ROLLING,
             mass_kg=mass_kg,
@@ -248,7 +247,7 @@ class RoadLoad:
     @property
     def grade_force_n(self) -> float:
         """Grade force ``m*g*sin(theta)`` [N]; negative downhill."""
-        return self.mass_kg * _STANDARD_GRAVITY * math.sin(self.grade_angle_rad)
+        return self.mass_kg * STANDARD_GRAVITY_M_S2 * math.sin(self.grade_angle_rad)
 
     @property
     def rolling_normal_factor(self) -> float:
@@ -344,7 +343,7 @@ def gradeability_percent(
         index = int(bad[0])
         where = "net_force_n" if force.ndim == 0 else f"net_force_n[{index}]"
         raise VehicleError(f"`{where}` must not be NaN", parameter=where)
-    weight_n = mass_kg * _STANDARD_GRAVITY
+    weight_n = mass_kg * STANDARD_GRAVITY_M_S2
     phi = math.atan(rolling_coefficient)
     ratio = force / (weight_n * math.hypot(1.0, rolling_coefficient))
     theta = np.arcsin(np.clip(ratio, -1.0, 1.0)) - phi

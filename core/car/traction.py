@@ -28,6 +28,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from core.errors import VehicleError
+from core.units import STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "AxleGeometry",
@@ -39,8 +40,6 @@ __all__ = [
 ]
 
 FloatArray = NDArray[np.float64]
-
-_STANDARD_GRAVITY = 9.80665  # [m/s^2]
 
 
 class DriveLayout(enum.Enum):
@@ -207,9 +206,9 @@ def axle_loads(mass_kg: float, geometry: AxleGeometry, acceleration_m_s2: ArrayL
         index = int(bad[0])
         where = "acceleration_m_s2" if acceleration.ndim == 0 else f"acceleration_m_s2[{index}]"
         raise VehicleError(f"`{where}` must be finite, got {flat[index]}", parameter=where)
-    weight_n = mass_kg * _STANDARD_GRAVITY
+    weight_n = mass_kg * STANDARD_GRAVITY_M_S2
     length = geometry.wheelbase_m
-    transfer = weight_n * (acceleration / _STANDARD_GRAVITY) * geometry.cg_height_m / length
+    transfer = weight_n * (acceleration / STANDARD_GRAVITY_M_S2) * geometry.cg_height_m / length
     front: FloatArray = weight_n * geometry.cg_to_rear_axle_m / length - transfer
     rear: FloatArray = weight_n * geometry.cg_to_front_axle_m / length + transfer
     return AxleLoads(front_n=front, rear_n=rear)
@@ -311,7 +310,7 @@ def traction_limit_n(
         raise VehicleError(
             f"`grade_percent` must be finite, got {grade_percent}", parameter="grade_percent"
         )
-    normal_n = mass_kg * _STANDARD_GRAVITY * math.cos(math.atan(grade_percent / 100.0))
+    normal_n = mass_kg * STANDARD_GRAVITY_M_S2 * math.cos(math.atan(grade_percent / 100.0))
     limit = grip_limit_n(
         np.array([normal_n]),
         np.array([rolling_resistance_n]),

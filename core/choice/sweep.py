@@ -37,7 +37,7 @@ from core.engine.curves import RPM_TO_RAD_S, TorqueCurve
 from core.errors import SimulationError
 from core.notices import Notice
 from core.runs.batch import BatchRuns, batch_runs
-from core.runs.milestones import FOOT_M
+from core.runs.milestones import STANDARD_ROLLOUT_M
 from core.runs.simulate import drive_model
 from core.shifts.plan import resolve_rev_limit, shift_plan
 
@@ -130,7 +130,7 @@ def sweep_final_drives(
     shift_rpm: ArrayLike | None = None,
     constraints: SweepConstraints | None = None,
     cruise_target: CruiseTarget | None = None,
-    rollout_m: float = FOOT_M,
+    rollout_m: float = STANDARD_ROLLOUT_M,
 ) -> FinalDriveSweep:
     """Rank candidate final drive ratios for one car.
 

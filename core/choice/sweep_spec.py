@@ -15,7 +15,8 @@ from numpy.typing import ArrayLike, NDArray
 from core.choice.batch_drive import checked_final_drives
 from core.engine.curves import TorqueCurve
 from core.errors import DrivetrainError, SimulationError
-from core.runs.milestones import KMH, MPH, STANDARD_DISTANCES
+from core.runs.milestones import STANDARD_DISTANCES
+from core.units import KM_H_M_S, MPH_M_S
 
 __all__ = [
     "MAX_CANDIDATES",
@@ -39,7 +40,7 @@ MAX_CANDIDATES = 200
 MAX_CANDIDATE_GEARS = 1200
 """Candidates times forward gears per sweep: bounds the work of one sweep."""
 SWEEP_DISTANCES = tuple(d for d in STANDARD_DISTANCES if d[0] in ("60 ft", "1/8 mile", "1/4 mile"))
-SWEEP_SPEEDS = (("0-60 mph", 0.0, 60.0 * MPH), ("0-100 km/h", 0.0, 100.0 * KMH))
+SWEEP_SPEEDS = (("0-60 mph", 0.0, 60.0 * MPH_M_S), ("0-100 km/h", 0.0, 100.0 * KM_H_M_S))
 
 
 class SweepObjective(enum.Enum):

@@ -41,6 +41,7 @@ from core.air.atmosphere import air_state
 from core.engine.curves import TorqueCurve
 from core.errors import CorrectionError
 from core.notices import Notice
+from core.units import HECTOPASCAL_PA, INCH_OF_MERCURY_PA, KILOPASCAL_PA, ZERO_CELSIUS_K
 
 __all__ = [
     "CELL_TEMPERATURE_RANGE_K",
@@ -55,11 +56,7 @@ __all__ = [
     "reference_conditions",
 ]
 
-_PA_PER_KPA = 1000.0
-_PA_PER_MBAR = 100.0
 # Conventional inch of mercury: 25.4 mm x 13595.1 kg/m^3 x 9.80665 m/s^2 (NIST SP 811).
-_PA_PER_INHG = 3386.388640341
-_KELVIN_AT_0_C = 273.15
 
 CELL_TEMPERATURE_RANGE_K = (233.15, 333.15)
 """Intake-air temperature accepted [K]: -40 degC (-40 degF) to 60 degC (140 degF)."""
@@ -145,7 +142,7 @@ _REFERENCES = {
     CorrectionStandard.SAE_J1349_1990: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
     CorrectionStandard.SAE_J1349_2004: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
     CorrectionStandard.SAE_J607: ReferenceConditions(
-        (60.0 - 32.0) / 1.8 + _KELVIN_AT_0_C, 29.92 * _PA_PER_INHG, PressureBasis.DRY
+        (60.0 - 32.0) / 1.8 + ZERO_CELSIUS_K, 29.92 * INCH_OF_MERCURY_PA, PressureBasis.DRY
     ),
     CorrectionStandard.DIN_70020: ReferenceConditions(293.0, 101_300.0, PressureBasis.TOTAL),
     CorrectionStandard.ISO_1585: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
@@ -222,16 +219,16 @@ def _formula(standard: CorrectionStandard, t_k: float, p_pa: float, p_dry_pa: fl
     """The bare correction formula of a standard."""
     match standard:
         case CorrectionStandard.SAE_J1349_1990:
-            return 1.18 * (99.0 / (p_dry_pa / _PA_PER_KPA)) * math.sqrt(t_k / 298.0) - 0.18
+            return 1.18 * (99.0 / (p_dry_pa / KILOPASCAL_PA)) * math.sqrt(t_k / 298.0) - 0.18
         case CorrectionStandard.SAE_J1349_2004:
-            return 1.176 * (99.0 / (p_dry_pa / _PA_PER_KPA)) * math.sqrt(t_k / 298.0) - 0.176
+            return 1.176 * (99.0 / (p_dry_pa / KILOPASCAL_PA)) * math.sqrt(t_k / 298.0) - 0.176
         case CorrectionStandard.SAE_J607:
-            t_f = (t_k - _KELVIN_AT_0_C) * 1.8 + 32.0
-            return 29.92 / (p_dry_pa / _PA_PER_INHG) * math.sqrt((t_f + 459.7) / 519.7)
+            t_f = (t_k - ZERO_CELSIUS_K) * 1.8 + 32.0
+            return 29.92 / (p_dry_pa / INCH_OF_MERCURY_PA) * math.sqrt((t_f + 459.7) / 519.7)
         case CorrectionStandard.DIN_70020:
-            return (1013.0 / (p_pa / _PA_PER_MBAR)) * math.sqrt(t_k / 293.0)
+            return (1013.0 / (p_pa / HECTOPASCAL_PA)) * math.sqrt(t_k / 293.0)
         case CorrectionStandard.ISO_1585:
-            return float((99.0 / (p_dry_pa / _PA_PER_KPA)) ** 1.2 * (t_k / 298.0) ** 0.6)
+            return float((99.0 / (p_dry_pa / KILOPASCAL_PA)) ** 1.2 * (t_k / 298.0) ** 0.6)
     raise CorrectionError(  # pragma: no cover - every member is matched above
         f"`standard` must be a CorrectionStandard, got {standard!r}", parameter="standard"
     )

@@ -33,7 +33,7 @@ from core.runs.batch_timing import (
     timed_speeds,
 )
 from core.runs.integrator import MAX_SPEED_M_S, GearBlock, RunStart, ShiftBlock, integrate_runs
-from core.runs.milestones import FOOT_M
+from core.runs.milestones import STANDARD_ROLLOUT_M
 from core.runs.simulate import DriveModel, checked_shift_rpm, default_start_gear
 
 __all__ = ["BatchRuns", "batch_finish_times", "batch_runs"]
@@ -137,7 +137,7 @@ def batch_runs(
     *,
     distances: Sequence[tuple[str, float, bool]],
     speeds: Sequence[tuple[str, float, float]] = (),
-    rollout_m: float = FOOT_M,
+    rollout_m: float = STANDARD_ROLLOUT_M,
 ) -> BatchRuns:
     """Standing-start runs with each final drive ratio, integrated together and timed.
 

@@ -15,10 +15,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from core.runs.simulate import RunResult
+from core.units import FOOT_M, KM_H_M_S, MPH_M_S
 
 __all__ = [
-    "FOOT_M",
     "STANDARD_DISTANCES",
+    "STANDARD_ROLLOUT_M",
     "STANDARD_SPEEDS",
     "TRAP_WINDOW_M",
     "TimedDistance",
@@ -30,9 +31,8 @@ __all__ = [
     "timed_speed",
 ]
 
-FOOT_M = 0.3048
-MPH = 0.44704
-KMH = 1.0 / 3.6
+STANDARD_ROLLOUT_M = FOOT_M
+"""Rollout of a standing start when the caller gives none [m] (one foot, common practice)."""
 TRAP_WINDOW_M = 66.0 * FOOT_M
 STANDARD_DISTANCES: tuple[tuple[str, float, bool], ...] = (
     ("60 ft", 60.0 * FOOT_M, False),
@@ -46,9 +46,9 @@ STANDARD_DISTANCES: tuple[tuple[str, float, bool], ...] = (
 """Name, distance [m] and whether a trap speed is timed there."""
 
 STANDARD_SPEEDS: tuple[tuple[str, float, float], ...] = (
-    ("0-60 mph", 0.0, 60.0 * MPH),
-    ("0-100 km/h", 0.0, 100.0 * KMH),
-    ("0-100 mph", 0.0, 100.0 * MPH),
+    ("0-60 mph", 0.0, 60.0 * MPH_M_S),
+    ("0-100 km/h", 0.0, 100.0 * KM_H_M_S),
+    ("0-100 mph", 0.0, 100.0 * MPH_M_S),
 )
 """Name, start and end speed [m/s]."""
 

@@ -18,6 +18,7 @@ from scipy.optimize import brentq
 
 from core.runs.milestones import (
     STANDARD_DISTANCES,
+    STANDARD_ROLLOUT_M,
     STANDARD_SPEEDS,
     TimedDistance,
     TimedSpeed,
@@ -157,7 +158,7 @@ def run_report(
     *,
     start_speed_m_s: float = 0.0,
     start_gear: int | None = None,
-    rollout_m: float = 0.3048,
+    rollout_m: float = STANDARD_ROLLOUT_M,
     finish_distance_m: float | None = None,
     finish_speed_m_s: float | None = None,
     extra_distances_m: Sequence[float] = (),
