@@ -30,6 +30,7 @@ from core.units import (
     POUND_FORCE_N,
     POUND_KG,
     STANDARD_GRAVITY_M_S2,
+    ZERO_CELSIUS_K,
 )
 
 __all__ = [
@@ -146,6 +147,11 @@ NAMED_UNITS: dict[str, float] = {
 """SI per unit of the units a logged channel may name for itself (speed, acceleration)."""
 
 
+def _zero_offset_k(system: UnitSystem) -> float:
+    """Kelvin at the zero of the system's temperature scale (0 degC or 0 degF)."""
+    return ZERO_CELSIUS_K if system is UnitSystem.METRIC else ZERO_CELSIUS_K - 32.0 * 5.0 / 9.0
+
+
 @overload
 def to_si(value: float, quantity: Quantity, system: UnitSystem) -> float: ...
 @overload
@@ -154,7 +160,7 @@ def to_si(value: float | FloatArray, quantity: Quantity, system: UnitSystem) -> 
     """Convert a caller's value to SI (N*m, W, m/s, N, m, kg, m^2, Pa, K)."""
     si = value * _TABLE[system][quantity].si_per_unit
     if quantity is Quantity.TEMPERATURE:
-        return si + (273.15 if system is UnitSystem.METRIC else 273.15 - 32.0 * 5.0 / 9.0)
+        return si + _zero_offset_k(system)
     return si
 
 
@@ -167,7 +173,7 @@ def from_si(
 ) -> float | FloatArray:
     """Convert an SI value to the caller's unit."""
     if quantity is Quantity.TEMPERATURE:
-        value = value - (273.15 if system is UnitSystem.METRIC else 273.15 - 32.0 * 5.0 / 9.0)
+        value = value - _zero_offset_k(system)
     return value / _TABLE[system][quantity].si_per_unit
 
 
