@@ -93,7 +93,6 @@ from core.choice.sweep_spec import (
     SweepConstraints,
     SweepObjective,
     checked_sweep,
-    checked_sweep_shift_rpm,
     final_drive_range,
 )
 from core.converter.drive import (
@@ -427,7 +426,6 @@ __all__ = [
     "chassis_conversion",
     "checked_final_drives",
     "checked_sweep",
-    "checked_sweep_shift_rpm",
     "coast_down_speed",
     "continuous_optimum",
     "converter_input",

@@ -16,8 +16,7 @@ This is the altimeter equation of the Smithsonian Meteorological Tables without 
 
 from __future__ import annotations
 
-import math
-
+from core.checks import require_range
 from core.errors import CorrectionError
 from core.units import (
     ISO_AIR_GAS_CONSTANT_J_KG_K,
@@ -38,16 +37,6 @@ ELEVATION_RANGE_M = (-500.0, 6000.0)
 """Station elevation accepted [m]."""
 _ALTIMETER_RANGE_PA = ALTIMETER_RANGE_PA
 _ELEVATION_RANGE_M = ELEVATION_RANGE_M
-
-
-def _check_between(value: float, name: str, low: float, high: float) -> None:
-    """Raise CorrectionError unless ``low <= value <= high`` (and finite)."""
-    if not math.isfinite(value):
-        raise CorrectionError(f"`{name}` must be finite, got {value}", parameter=name)
-    if not low <= value <= high:
-        raise CorrectionError(
-            f"`{name}` must lie in [{low:g}, {high:g}], got {value:g}", parameter=name
-        )
 
 
 def station_pressure_from_altimeter_pa(altimeter_setting_pa: float, elevation_m: float) -> float:
@@ -80,8 +69,10 @@ def station_pressure_from_altimeter_pa(altimeter_setting_pa: float, elevation_m:
     >>> round(station_pressure_from_altimeter_pa(101325.0, 1000.0), 1)
     89874.6
     """
-    _check_between(altimeter_setting_pa, "altimeter_setting_pa", *_ALTIMETER_RANGE_PA)
-    _check_between(elevation_m, "elevation_m", *_ELEVATION_RANGE_M)
+    require_range(
+        altimeter_setting_pa, "altimeter_setting_pa", *_ALTIMETER_RANGE_PA, CorrectionError
+    )
+    require_range(elevation_m, "elevation_m", *_ELEVATION_RANGE_M, CorrectionError)
     n = _ISO_EXPONENT
     p0, t0 = ISO_SEA_LEVEL_PRESSURE_PA, ISO_SEA_LEVEL_TEMPERATURE_K
     base = (altimeter_setting_pa / p0) ** n - ISO_LAPSE_RATE_K_PER_M * elevation_m / t0

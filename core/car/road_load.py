@@ -23,6 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.checks import require_finite, require_non_negative, require_positive
 from core.errors import VehicleError
 from core.units import MPH_M_S, STANDARD_GRAVITY_M_S2
 
@@ -48,23 +49,6 @@ class RoadLoadForm(enum.Enum):
     CONSTANT_ROLLING = "constant_rolling"
     SPEED_DEPENDENT_ROLLING = "speed_dependent_rolling"
     COAST_DOWN = "coast_down"
-
-
-def _require_finite(value: float, name: str) -> None:
-    if not math.isfinite(value):
-        raise VehicleError(f"`{name}` must be finite, got {value}", parameter=name)
-
-
-def _require_positive(value: float, name: str) -> None:
-    _require_finite(value, name)
-    if value <= 0.0:
-        raise VehicleError(f"`{name}` must be > 0, got {value:g}", parameter=name)
-
-
-def _require_non_negative(value: float, name: str) -> None:
-    _require_finite(value, name)
-    if value < 0.0:
-        raise VehicleError(f"`{name}` must be >= 0, got {value:g}", parameter=name)
 
 
 @dataclass(frozen=True)
@@ -99,11 +83,11 @@ class RoadLoad:
     grade_percent: float = 0.0
 
     def __post_init__(self) -> None:
-        _require_positive(self.mass_kg, "mass_kg")
-        _require_non_negative(self.constant_n, "constant_n")
-        _require_non_negative(self.linear_n_s_m, "linear_n_s_m")
-        _require_non_negative(self.quadratic_n_s2_m2, "quadratic_n_s2_m2")
-        _require_finite(self.grade_percent, "grade_percent")
+        require_positive(self.mass_kg, "mass_kg", VehicleError)
+        require_non_negative(self.constant_n, "constant_n", VehicleError)
+        require_non_negative(self.linear_n_s_m, "linear_n_s_m", VehicleError)
+        require_non_negative(self.quadratic_n_s2_m2, "quadratic_n_s2_m2", VehicleError)
+        require_finite(self.grade_percent, "grade_percent", VehicleError)
 
     @classmethod
     def from_constant_rolling(
@@ -139,10 +123,10 @@ class RoadLoad:
         >>> load.force_n([0.0, 10.0]).round(5).tolist()
         [98.0665, 134.0665]
         """
-        _require_positive(mass_kg, "mass_kg")
-        _require_non_negative(drag_area_m2, "drag_area_m2")
-        _require_positive(air_density_kg_m3, "air_density_kg_m3")
-        _require_non_negative(rolling_coefficient, "rolling_coefficient")
+        require_positive(mass_kg, "mass_kg", VehicleError)
+        require_non_negative(drag_area_m2, "drag_area_m2", VehicleError)
+        require_positive(air_density_kg_m3, "air_density_kg_m3", VehicleError)
+        require_non_negative(rolling_coefficient, "rolling_coefficient", VehicleError)
         return cls(
             form=RoadLoadForm.CONSTANT_ROLLING,
             mass_kg=mass_kg,
@@ -183,11 +167,13 @@ class RoadLoad:
         -------
         RoadLoad
         """
-        _require_positive(mass_kg, "mass_kg")
-        _require_non_negative(drag_area_m2, "drag_area_m2")
-        _require_positive(air_density_kg_m3, "air_density_kg_m3")
-        _require_non_negative(rolling_coefficient, "rolling_coefficient")
-        _require_non_negative(rolling_speed_coefficient_s_m, "rolling_speed_coefficient_s_m")
+        require_positive(mass_kg, "mass_kg", VehicleError)
+        require_non_negative(drag_area_m2, "drag_area_m2", VehicleError)
+        require_positive(air_density_kg_m3, "air_density_kg_m3", VehicleError)
+        require_non_negative(rolling_coefficient, "rolling_coefficient", VehicleError)
+        require_non_negative(
+            rolling_speed_coefficient_s_m, "rolling_speed_coefficient_s_m", VehicleError
+        )
         weight_n = mass_kg * STANDARD_GRAVITY_M_S2
         return cls(
             form=RoadLoadForm.SPEED_DEPENDENT_ROLLING,
@@ -226,10 +212,10 @@ class RoadLoad:
         -------
         RoadLoad
         """
-        _require_positive(mass_kg, "mass_kg")
-        _require_non_negative(f0_n, "f0_n")
-        _require_non_negative(f1_n_s_m, "f1_n_s_m")
-        _require_non_negative(f2_n_s2_m2, "f2_n_s2_m2")
+        require_positive(mass_kg, "mass_kg", VehicleError)
+        require_non_negative(f0_n, "f0_n", VehicleError)
+        require_non_negative(f1_n_s_m, "f1_n_s_m", VehicleError)
+        require_non_negative(f2_n_s2_m2, "f2_n_s2_m2", VehicleError)
         return cls(
             form=RoadLoadForm.COAST_DOWN,
             mass_kg=mass_kg,
@@ -334,8 +320,8 @@ def gradeability_percent(
     >>> gradeability_percent([0.0, 9.80665 * 1000 / 2**0.5], 1000.0).round(6).tolist()
     [0.0, 100.0]
     """
-    _require_positive(mass_kg, "mass_kg")
-    _require_non_negative(rolling_coefficient, "rolling_coefficient")
+    require_positive(mass_kg, "mass_kg", VehicleError)
+    require_non_negative(rolling_coefficient, "rolling_coefficient", VehicleError)
     force = np.asarray(net_force_n, dtype=np.float64)
     flat = force.reshape(-1)
     bad = np.flatnonzero(np.isnan(flat))

@@ -29,7 +29,6 @@ from core.choice.sweep_spec import (
     SweepConstraints,
     SweepObjective,
     checked_sweep,
-    checked_sweep_shift_rpm,
 )
 from core.driveline.drivetrain import Drivetrain
 from core.driveline.tires import Tire
@@ -40,6 +39,7 @@ from core.runs.batch import BatchRuns, batch_runs
 from core.runs.milestones import STANDARD_ROLLOUT_M
 from core.runs.simulate import drive_model
 from core.shifts.plan import resolve_rev_limit, shift_plan
+from core.shifts.shift_rpm import checked_shift_rpm
 
 __all__ = ["FinalDriveSweep", "sweep_final_drives"]
 
@@ -186,7 +186,7 @@ def sweep_final_drives(
         shifts = np.array([s.shift_rpm for s in plan.shifts], dtype=np.float64)
         notes = list(plan.notices)
     else:
-        shifts = checked_sweep_shift_rpm(curve, limit, gears, shift_rpm)
+        shifts = checked_shift_rpm(curve, limit, gears, shift_rpm)
         notes = list(notices)
     landing = shifts * drivetrain.gear_ratios[1:] / drivetrain.gear_ratios[:-1]
     model = None

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.checks import require_range
 from core.driveline.drivetrain import MAX_GEARS
 from core.engine.curves import RPM_TO_RAD_S
 from core.errors import CurveError, DrivetrainError
@@ -87,14 +88,6 @@ def efficiency_from_loss(loss_percent: float) -> float:
     return round(1.0 - loss_percent / 100.0, 12)
 
 
-def _checked_efficiency(eta: float, name: str) -> float:
-    if not (math.isfinite(eta) and MIN_EFFICIENCY <= eta <= 1.0):
-        raise DrivetrainError(
-            f"`{name}` must lie in [{MIN_EFFICIENCY:g}, 1], got {eta}", parameter=name
-        )
-    return float(eta)
-
-
 def engine_from_wheel(wheel: ArrayLike, efficiency: float) -> FloatArray:
     """Engine figure estimated from a wheel figure (power, or torque referred to the engine).
 
@@ -103,7 +96,7 @@ def engine_from_wheel(wheel: ArrayLike, efficiency: float) -> FloatArray:
     >>> engine_from_wheel([170.0], 0.85).round(9).tolist()
     [200.0]
     """
-    eta = _checked_efficiency(efficiency, "efficiency")
+    eta = require_range(efficiency, "efficiency", MIN_EFFICIENCY, 1.0, DrivetrainError)
     return np.asarray(wheel, dtype=np.float64) / eta
 
 
@@ -115,7 +108,7 @@ def wheel_from_engine(engine: ArrayLike, efficiency: float) -> FloatArray:
     >>> wheel_from_engine([200.0], 0.85).round(9).tolist()
     [170.0]
     """
-    eta = _checked_efficiency(efficiency, "efficiency")
+    eta = require_range(efficiency, "efficiency", MIN_EFFICIENCY, 1.0, DrivetrainError)
     return np.asarray(engine, dtype=np.float64) * eta
 
 
@@ -265,10 +258,13 @@ def chassis_conversion(
                 "`measured_gear` goes with, and only with, per-gear efficiencies",
                 parameter="measured_gear",
             )
-        eta = _checked_efficiency(float(efficiency), "efficiency")
+        eta = require_range(float(efficiency), "efficiency", MIN_EFFICIENCY, 1.0, DrivetrainError)
     else:
         per_gear = np.array(
-            [_checked_efficiency(float(e), f"efficiency[{i}]") for i, e in enumerate(efficiency)]
+            [
+                require_range(float(e), f"efficiency[{i}]", MIN_EFFICIENCY, 1.0, DrivetrainError)
+                for i, e in enumerate(efficiency)
+            ]
         )
         if not 1 <= per_gear.size <= MAX_GEARS:
             raise DrivetrainError(

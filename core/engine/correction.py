@@ -38,6 +38,7 @@ from dataclasses import dataclass
 
 from core.air.altimeter import station_pressure_from_altimeter_pa
 from core.air.atmosphere import air_state
+from core.checks import require_range
 from core.engine.curves import TorqueCurve
 from core.errors import CorrectionError
 from core.notices import Notice
@@ -149,16 +150,6 @@ _REFERENCES = {
 }
 
 
-def _check_between(value: float, name: str, low: float, high: float) -> None:
-    """Raise CorrectionError unless ``low <= value <= high`` (and finite)."""
-    if not math.isfinite(value):
-        raise CorrectionError(f"`{name}` must be finite, got {value}", parameter=name)
-    if not low <= value <= high:
-        raise CorrectionError(
-            f"`{name}` must lie in [{low:g}, {high:g}], got {value:g}", parameter=name
-        )
-
-
 def reference_conditions(standard: CorrectionStandard) -> ReferenceConditions:
     """The reference air of a standard, where its factor is exactly 1.
 
@@ -199,7 +190,12 @@ def _station_pressure(
                 "`elevation_m` must be given only with `altimeter_setting_pa`",
                 parameter="elevation_m",
             )
-        _check_between(station_pressure_pa, "station_pressure_pa", *_STATION_PRESSURE_RANGE_PA)
+        require_range(
+            station_pressure_pa,
+            "station_pressure_pa",
+            *_STATION_PRESSURE_RANGE_PA,
+            CorrectionError,
+        )
         return float(station_pressure_pa)
     if altimeter_setting_pa is None:
         raise CorrectionError(
@@ -211,7 +207,7 @@ def _station_pressure(
             "`elevation_m` must be given with `altimeter_setting_pa`", parameter="elevation_m"
         )
     pressure = station_pressure_from_altimeter_pa(altimeter_setting_pa, elevation_m)
-    _check_between(pressure, "station_pressure_pa", *_STATION_PRESSURE_RANGE_PA)
+    require_range(pressure, "station_pressure_pa", *_STATION_PRESSURE_RANGE_PA, CorrectionError)
     return pressure
 
 
@@ -300,8 +296,8 @@ def correction_factor(
         raise CorrectionError(
             f"`standard` must be a CorrectionStandard, got {standard!r}", parameter="standard"
         )
-    _check_between(temperature_k, "temperature_k", *_TEMPERATURE_RANGE_K)
-    _check_between(relative_humidity, "relative_humidity", 0.0, 1.0)
+    require_range(temperature_k, "temperature_k", *_TEMPERATURE_RANGE_K, CorrectionError)
+    require_range(relative_humidity, "relative_humidity", 0.0, 1.0, CorrectionError)
     pressure = _station_pressure(station_pressure_pa, altimeter_setting_pa, elevation_m)
     air = air_state(float(temperature_k), float(relative_humidity), pressure_pa=pressure)
     factor = _formula(standard, air.temperature_k, air.pressure_pa, air.dry_pressure_pa)

@@ -19,7 +19,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.typing import ArrayLike, NDArray
+from numpy.typing import NDArray
 
 from core.car.vehicle import Coupling, Launch, Vehicle
 from core.converter.operating_map import ConverterMap, converter_map
@@ -38,6 +38,7 @@ from core.runs.integrator import (
     integrate_runs,
 )
 from core.shifts.plan import resolve_rev_limit
+from core.shifts.shift_rpm import checked_shift_rpm
 
 __all__ = [
     "MAX_SPEED_M_S",
@@ -45,7 +46,6 @@ __all__ = [
     "DriveModel",
     "RunResult",
     "RunShift",
-    "checked_shift_rpm",
     "default_start_gear",
     "drive_model",
     "simulate_run",
@@ -337,33 +337,6 @@ class RunResult:
     notices: tuple[Notice, ...]
 
 
-def checked_shift_rpm(model: DriveModel, shift_rpm: ArrayLike) -> FloatArray:
-    """Shift rpms as an array, one per gear change, each above the curve's first point
-    and at most the rev limit [rpm].
-
-    Raises
-    ------
-    SimulationError
-        On a wrong count or an rpm out of range, naming ``shift_rpm[i]``.
-    """
-    gears = model.drivetrain.gear_count
-    shifts = np.asarray(shift_rpm, dtype=np.float64)
-    if shifts.shape != (gears - 1,):
-        raise SimulationError(
-            f"`shift_rpm` must give one rpm per gear change ({gears - 1}), got {shifts.size}",
-            parameter="shift_rpm",
-        )
-    for i, n in enumerate(shifts.tolist()):
-        if not math.isfinite(n) or not model.curve.rpm_min < n <= model.rev_limit_rpm + 1e-9:
-            raise SimulationError(
-                f"`shift_rpm[{i}]` must lie above the curve's first point "
-                f"({model.curve.rpm_min:g}) and at most the rev limit "
-                f"({model.rev_limit_rpm:g}), got {n:g}",
-                parameter=f"shift_rpm[{i}]",
-            )
-    return shifts
-
-
 def default_start_gear(model: DriveModel, shift_rpm: FloatArray, start_speed_m_s: float) -> int:
     """The lowest gear that can pull the start speed below its shift rpm (1 = first).
 
@@ -556,7 +529,9 @@ def simulate_run(
         When the car cannot move off, or the shift rpm list, start speed or start gear do
         not fit the gears.
     """
-    shifts = checked_shift_rpm(model, shift_rpm)
+    shifts = checked_shift_rpm(
+        model.curve, model.rev_limit_rpm, model.drivetrain.gear_count, shift_rpm
+    )
     gear = _checked_start(model, shifts, start_speed_m_s, start_gear)
     trace = _Trace()
     start = RunStart(start_speed_m_s, gear - 1, cover_distance_m, cover_speed_m_s)
