@@ -22,10 +22,9 @@ from core.runs.milestones import (
     STANDARD_SPEEDS,
     TimedDistance,
     TimedSpeed,
+    strip_times,
     time_at_distance,
     time_at_speed,
-    timed_distance,
-    timed_speed,
 )
 from core.runs.performance import TopSpeed, top_speed
 from core.runs.simulate import DriveModel, RunResult, simulate_run
@@ -209,15 +208,16 @@ def run_report(
         cover_distance_m=cover_d,
         cover_speed_m_s=cover_v,
     )
-    timed_d = tuple(timed_distance(run, n, d, rollout_m=rollout, trap=t) for n, d, t in dists)
-    timed_v = tuple(timed_speed(run, n, a, b, rollout_m=rollout) for n, a, b in speeds)
+    target = float(finish_speed_m_s or 0.0)
+    finish_d = [] if finish_distance_m is None else [("finish", finish_distance_m, True)]
+    finish_v = [] if finish_d else [("finish", float(run.speed_m_s[0]), target)]
+    timed_d, timed_v = strip_times(run, dists + finish_d, speeds + finish_v, rollout_m=rollout)
     finish: TimedDistance | TimedSpeed
     if finish_distance_m is not None:
-        finish = timed_distance(run, "finish", finish_distance_m, rollout_m=rollout, trap=True)
+        finish, timed_d = timed_d[-1], timed_d[:-1]
         end = time_at_distance(run, finish_distance_m + rollout)
     else:
-        target = float(finish_speed_m_s or 0.0)
-        finish = timed_speed(run, "finish", float(run.speed_m_s[0]), target, rollout_m=rollout)
+        finish, timed_v = timed_v[-1], timed_v[:-1]
         end = time_at_speed(run, target)
     return RunReport(
         run=run,

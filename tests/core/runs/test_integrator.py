@@ -33,8 +33,8 @@ from core.engine.curves import (
 )
 from core.errors import SimulationError
 from core.runs.batch import batch_finish_times
+from core.runs.batch_timing import TRAP_WINDOW_M
 from core.runs.milestones import (
-    TRAP_WINDOW_M,
     time_at_distance,
     time_at_speed,
     timed_distance,

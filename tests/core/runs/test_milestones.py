@@ -19,10 +19,10 @@ from core.car.vehicle import Launch, RotatingInertia, Vehicle
 from core.driveline.drivetrain import make_drivetrain
 from core.driveline.tires import tire_from_diameter, tire_from_size
 from core.engine.curves import torque_curve_from_torque
+from core.runs.batch_timing import TRAP_WINDOW_M
 from core.runs.milestones import (
     STANDARD_DISTANCES,
     STANDARD_SPEEDS,
-    TRAP_WINDOW_M,
     speed_at_distance,
     time_at_distance,
     time_at_speed,
