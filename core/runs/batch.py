@@ -269,6 +269,6 @@ def batch_finish_times(
         if finish_distance_m is not None:
             timed = timed_distances(probes, distances, ends.moved)[0].elapsed_s
         else:
-            timed = np.where(ends.moved, probes.reaching(1), np.nan)
+            timed = np.where(ends.moved, probes.reaching()[:, 1], np.nan)
         out[idx] = timed
     return out

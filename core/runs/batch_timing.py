@@ -210,15 +210,15 @@ class TraceProbes:
         self.last_a[rows] = a[:, -1]
         self.started[rows] = True
 
-    def passing(self, j: int) -> tuple[FloatArray, FloatArray]:
-        """Time [s] and speed [m/s] of each trace passing probe distance ``j``, shape (c,),
+    def passing(self) -> tuple[FloatArray, FloatArray]:
+        """Time [s] and speed [m/s] of each trace passing each probe distance, shape (c, d),
         NaN where a trace does not get there, with the acceleration constant between the
         points either side."""
-        d = float(self.d[j])
-        t0, v0, x0 = (le[:, j] for le in self.le)
-        found = self.gt_found[:, j]
-        t1 = np.where(found, self.gt[0][:, j], t0)
-        v1 = np.where(found, self.gt[1][:, j], v0)
+        d = self.d[None, :]
+        t0, v0, x0 = self.le
+        found = self.gt_found
+        t1 = np.where(found, self.gt[0], t0)
+        v1 = np.where(found, self.gt[1], v0)
         dx = d - x0
         flat = (t1 <= t0) | (dx <= 0.0) | ~found
         a = (v1 - v0) / np.where(flat, 1.0, t1 - t0)
@@ -226,17 +226,17 @@ class TraceProbes:
         moving = ~flat & (v0 + root > 0.0)
         tau = np.where(moving, 2.0 * dx / np.where(moving, v0 + root, 1.0), 0.0)
         tau = np.minimum(tau, np.where(flat, 0.0, t1 - t0))
-        reach = found | (d <= self.last[2] * (1 + 1e-12))
+        reach = found | (d <= self.last[2][:, None] * (1 + 1e-12))
         return np.where(reach, t0 + tau, np.nan), np.where(reach, v0 + a * tau, np.nan)
 
-    def reaching(self, j: int) -> FloatArray:
-        """Time [s] at which each trace first reaches probe speed ``j``, shape (c,), NaN
+    def reaching(self) -> FloatArray:
+        """Time [s] at which each trace first reaches each probe speed, shape (c, s), NaN
         where it does not."""
-        s = float(self.s[j])
-        t1, v1, a1 = (h[:, j] for h in self.hit)
-        t0, v0, a0 = (p[:, j] for p in self.pre)
-        first = self.found[:, j] & np.isnan(t0)
-        later = self.found[:, j] & ~first
+        s = self.s[None, :]
+        t1, v1, a1 = self.hit
+        t0, v0, a0 = self.pre
+        first = self.found & np.isnan(t0)
+        later = self.found & ~first
         dv = np.where(later, v1 - v0, 1.0)
         ds = s - v0
         frac = np.where(later, ds / dv, 0.0)
@@ -247,7 +247,7 @@ class TraceProbes:
         shape = (ds * i0 + (i1 - i0) * ds * ds / (2.0 * dv)) / (0.5 * dv * (i0 + i1))
         frac = np.where(curved, shape, frac)
         time = np.where(later, t0 + frac * (t1 - t0), t1)
-        return np.where(self.found[:, j], time, np.nan)
+        return np.where(self.found, time, np.nan)
 
 
 def _trapped(distance_m: float, trap: bool) -> bool:
@@ -273,14 +273,15 @@ def timed_distances(
     tuple of BatchTimedDistance
     """
     nan = np.full(moved.shape, np.nan)
-    start, _ = probes.passing(0)
+    passing_t, passing_v = probes.passing()
+    start = passing_t[:, 0]
     out, entry_j = [], 1 + len(distances)
     for j, (name, d, trap) in enumerate(distances, start=1):
-        end, speed = probes.passing(j)
+        end, speed = passing_t[:, j], passing_v[:, j]
         elapsed = np.where(moved, end - start, np.nan)
         trap_speed = nan
         if _trapped(d, trap):
-            entry, _ = probes.passing(entry_j)
+            entry = passing_t[:, entry_j]
             entry_j += 1
             timed = moved & np.isfinite(entry) & np.isfinite(end) & (end > entry)
             gap = np.where(timed, end - entry, 1.0)
@@ -313,12 +314,13 @@ def timed_speeds(
     -------
     tuple of BatchTimedSpeed
     """
-    rolled, _ = probes.passing(0)
+    rolled = probes.passing()[0][:, 0]
+    reaching = probes.reaching()
     out = []
     for j, (name, a, b) in enumerate(speeds):
         begun = moved & (probes.first_v <= a + 1e-9)
-        start = probes.first_t if a <= 0.0 else probes.reaching(2 * j)
-        end = probes.reaching(2 * j + 1)
+        start = probes.first_t if a <= 0.0 else reaching[:, 2 * j]
+        end = reaching[:, 2 * j + 1]
         elapsed = np.where(begun, end - start, np.nan)
         from_rest = begun & (probes.first_v == 0.0) & (a == 0.0)
         less = np.where(from_rest, end - rolled, np.nan)

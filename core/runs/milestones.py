@@ -118,13 +118,13 @@ _MOVED = np.ones(1, dtype=np.bool_)
 
 
 def _probes(run: RunResult, distances: ArrayLike, speeds: ArrayLike) -> TraceProbes:
-    """The strip timer's probes read over one run, in blocks along which speed does not
-    fall (a shift's coast, a slowing car, start new blocks)."""
-    probes = TraceProbes(
-        1, np.asarray(distances, dtype=np.float64), np.asarray(speeds, dtype=np.float64)
-    )
+    """The strip timer's probes read over one run: the whole trace as one block (distance
+    never falls), or for speeds, in blocks along which speed does not fall (a shift's
+    coast or a slowing car starts a new block)."""
+    probe_v = np.asarray(speeds, dtype=np.float64)
+    probes = TraceProbes(1, np.asarray(distances, dtype=np.float64), probe_v)
     v = run.speed_m_s
-    cuts = (np.flatnonzero(v[1:] < v[:-1]) + 1).tolist()
+    cuts = (np.flatnonzero(v[1:] < v[:-1]) + 1).tolist() if probe_v.size else []
     for lo, hi in zip([0, *cuts], [*cuts, v.size], strict=True):
         probes.add(
             _ONE_RUN,
@@ -146,14 +146,14 @@ def time_at_distance(run: RunResult, distance_m: float) -> float | None:
     the acceleration as constant between trace points (exact for constant acceleration)."""
     if distance_m < 0.0:
         return None
-    return _value(_probes(run, [distance_m], []).passing(0)[0])
+    return _value(_probes(run, [distance_m], []).passing()[0][:, 0])
 
 
 def speed_at_distance(run: RunResult, distance_m: float) -> float | None:
     """Road speed [m/s] as the run passes ``distance_m`` [m]."""
     if distance_m < 0.0:
         return None
-    return _value(_probes(run, [distance_m], []).passing(0)[1])
+    return _value(_probes(run, [distance_m], []).passing()[1][:, 0])
 
 
 def time_at_speed(run: RunResult, speed_m_s: float) -> float | None:
@@ -163,7 +163,7 @@ def time_at_speed(run: RunResult, speed_m_s: float) -> float | None:
     the integrator's trapezoid rule does, so the time at a speed between them is
     quadratic in speed and meets both points; otherwise it is linear.
     """
-    return _value(_probes(run, [], [speed_m_s]).reaching(0))
+    return _value(_probes(run, [], [speed_m_s]).reaching()[:, 0])
 
 
 def strip_times(
