@@ -21,6 +21,7 @@ from core.dyno.rows import column_texts
 from core.errors import DynoFileError
 from core.notices import Notice
 from core.readers.delimited import (
+    MAX_TEXT_CHARS,
     Delimiter,
     best_delimiter,
     cells_or_none,
@@ -39,7 +40,6 @@ __all__ = [
     "read_table",
 ]
 
-MAX_TEXT_CHARS = 1_000_000
 MAX_LINES = 20_000
 MAX_COLUMNS = 64
 _DELIMITER_PROBE_LINES = 20

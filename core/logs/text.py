@@ -50,6 +50,7 @@ from core.logs.pass_data import (
 )
 from core.notices import Notice
 from core.readers.delimited import (
+    MAX_TEXT_CHARS,
     Delimiter,
     best_delimiter,
     cells_or_none,
@@ -61,7 +62,6 @@ from core.readers.delimited import (
 
 __all__ = ["MAX_TEXT_CHARS", "LogText", "read_log_text"]
 
-MAX_TEXT_CHARS = 1_000_000
 _HEADER_SEARCH_LINES = 50
 _PROBE_LINES = 20
 _COMMENTS = ("#", "//")

@@ -20,6 +20,7 @@ import numpy as np
 from core.errors import DynoFileError, LogDataError
 
 __all__ = [
+    "MAX_TEXT_CHARS",
     "Delimiter",
     "best_delimiter",
     "cells_or_none",
@@ -28,6 +29,9 @@ __all__ = [
     "significant_lines",
     "split_rows",
 ]
+
+MAX_TEXT_CHARS = 1_000_000
+"""Most characters an export may hold."""
 
 Lines = Sequence[tuple[int, str]]
 ReaderError = type[DynoFileError] | type[LogDataError]
