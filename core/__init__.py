@@ -17,12 +17,14 @@ from core.air.altimeter import *  # noqa: F403
 from core.air.atmosphere import *  # noqa: F403
 from core.air.weather import *  # noqa: F403
 from core.car import coast_down as _car_coast_down
+from core.car import coast_down_reference as _car_coast_down_reference
 from core.car import gradeability as _car_gradeability
 from core.car import inertia as _car_inertia
 from core.car import road_load as _car_road_load
 from core.car import traction as _car_traction
 from core.car import vehicle as _car_vehicle
 from core.car.coast_down import *  # noqa: F403
+from core.car.coast_down_reference import *  # noqa: F403
 from core.car.gradeability import *  # noqa: F403
 from core.car.inertia import *  # noqa: F403
 from core.car.road_load import *  # noqa: F403
@@ -77,8 +79,12 @@ from core.dyno.rows import *  # noqa: F403
 from core.dyno.values import *  # noqa: F403
 from core.engine import correction as _engine_correction
 from core.engine import curves as _engine_curves
+from core.engine import pchip as _engine_pchip
+from core.engine import reference_air as _engine_reference_air
 from core.engine.correction import *  # noqa: F403
 from core.engine.curves import *  # noqa: F403
+from core.engine.pchip import *  # noqa: F403
+from core.engine.reference_air import *  # noqa: F403
 from core.errors import *  # noqa: F403
 from core.logs import check as _logs_check
 from core.logs import crossover as _logs_crossover
@@ -103,17 +109,21 @@ from core.readers.delimited import *  # noqa: F403
 from core.readers.encoding import *  # noqa: F403
 from core.runs import batch as _runs_batch
 from core.runs import batch_timing as _runs_batch_timing
+from core.runs import drive_model as _runs_drive_model
 from core.runs import integrator as _runs_integrator
 from core.runs import milestones as _runs_milestones
 from core.runs import performance as _runs_performance
 from core.runs import report as _runs_report
+from core.runs import run_blocks as _runs_run_blocks
 from core.runs import simulate as _runs_simulate
 from core.runs.batch import *  # noqa: F403
 from core.runs.batch_timing import *  # noqa: F403
+from core.runs.drive_model import *  # noqa: F403
 from core.runs.integrator import *  # noqa: F403
 from core.runs.milestones import *  # noqa: F403
 from core.runs.performance import *  # noqa: F403
 from core.runs.report import *  # noqa: F403
+from core.runs.run_blocks import *  # noqa: F403
 from core.runs.simulate import *  # noqa: F403
 from core.shifts import best as _shifts_best
 from core.shifts import pattern as _shifts_pattern
@@ -134,6 +144,7 @@ __all__ += _air_altimeter.__all__
 __all__ += _air_atmosphere.__all__
 __all__ += _air_weather.__all__
 __all__ += _car_coast_down.__all__
+__all__ += _car_coast_down_reference.__all__
 __all__ += _car_gradeability.__all__
 __all__ += _car_inertia.__all__
 __all__ += _car_road_load.__all__
@@ -165,6 +176,8 @@ __all__ += _dyno_rows.__all__
 __all__ += _dyno_values.__all__
 __all__ += _engine_correction.__all__
 __all__ += _engine_curves.__all__
+__all__ += _engine_pchip.__all__
+__all__ += _engine_reference_air.__all__
 __all__ += _errors.__all__
 __all__ += _logs_check.__all__
 __all__ += _logs_crossover.__all__
@@ -179,10 +192,12 @@ __all__ += _readers_delimited.__all__
 __all__ += _readers_encoding.__all__
 __all__ += _runs_batch.__all__
 __all__ += _runs_batch_timing.__all__
+__all__ += _runs_drive_model.__all__
 __all__ += _runs_integrator.__all__
 __all__ += _runs_milestones.__all__
 __all__ += _runs_performance.__all__
 __all__ += _runs_report.__all__
+__all__ += _runs_run_blocks.__all__
 __all__ += _runs_simulate.__all__
 __all__ += _shifts_best.__all__
 __all__ += _shifts_pattern.__all__

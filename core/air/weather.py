@@ -23,14 +23,15 @@ from dataclasses import dataclass
 import numpy as np
 
 from core.air.atmosphere import air_density_kg_m3
-from core.engine.correction import CorrectionStandard, correction_factor
+from core.engine.correction import correction_factor
 from core.engine.curves import TorqueCurve
+from core.engine.reference_air import CorrectionStandard
 from core.errors import CorrectionError
 from core.notices import Notice
+from core.runs.drive_model import DriveModel, drive_model
 from core.runs.milestones import STANDARD_ROLLOUT_M
 from core.runs.performance import ShiftCriterion, planned_shift_rpm
 from core.runs.report import run_report
-from core.runs.simulate import DriveModel, drive_model
 from core.units import ISO_LAPSE_RATE_K_PER_M, ISO_SEA_LEVEL_TEMPERATURE_K, STANDARD_GRAVITY_M_S2
 
 __all__ = [

@@ -35,20 +35,19 @@ from scipy import stats
 from scipy.integrate import solve_ivp
 from scipy.optimize import least_squares
 
-from core.air.atmosphere import air_density_kg_m3
+from core.car.coast_down_reference import (
+    ReferenceCorrection,
+    reference_correction,
+)
 from core.errors import FitError
 from core.notices import Notice
 from core.units import KM_H_M_S, STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "EQUIVALENT_MASS_FACTOR",
-    "REFERENCE_PRESSURE_PA",
-    "REFERENCE_TEMPERATURE_K",
-    "ROLLING_TEMPERATURE_COEFFICIENT_PER_K",
     "CoastDownFit",
     "CoastDownRun",
     "CoastDownRunFit",
-    "ReferenceCorrection",
     "TravelDirection",
     "coast_down_speed",
     "fit_coast_down",
@@ -58,12 +57,6 @@ FloatArray = NDArray[np.float64]
 
 EQUIVALENT_MASS_FACTOR = 1.03
 """Default equivalent mass over test mass in neutral [-] (common practice)."""
-REFERENCE_TEMPERATURE_K = 293.15
-"""Reference temperature of SAE J1263, 20 degC [K] (from memory)."""
-REFERENCE_PRESSURE_PA = 98210.0
-"""Reference pressure of SAE J1263, 98.21 kPa [Pa] (from memory)."""
-ROLLING_TEMPERATURE_COEFFICIENT_PER_K = 0.00864
-"""Rolling-resistance temperature coefficient ``K0`` of SAE J1263 [1/K] (from memory)."""
 CONFIDENCE = 0.95
 MIN_SAMPLES = 10
 MIN_MASS_KG = 10.0  # lighter than any vehicle that coasts on a road
@@ -122,29 +115,6 @@ class CoastDownRunFit:
     end_speed_m_s: float
     coefficients: FloatArray
     residual_rms_m_s: float
-
-
-@dataclass(frozen=True)
-class ReferenceCorrection:
-    """Coefficients corrected to the reference conditions of SAE J1263 (in outline).
-
-    Attributes
-    ----------
-    applied : bool
-        False when no test conditions were given (coefficients as measured).
-    test_density_kg_m3, reference_density_kg_m3 : float
-        Air density during the test and at reference [kg/m^3].
-    rolling_factor : float
-        ``1 + K0*(T - T_ref)``, applied to ``F0`` and ``F1`` [-].
-    coefficients : ndarray, shape (3,)
-        ``F0`` [N], ``F1`` [N*s/m], ``F2`` [N*s^2/m^2] at reference.
-    """
-
-    applied: bool
-    test_density_kg_m3: float
-    reference_density_kg_m3: float
-    rolling_factor: float
-    coefficients: FloatArray
 
 
 @dataclass(frozen=True)
@@ -284,24 +254,6 @@ def _direction_average(
     return np.asarray(value, np.float64), np.asarray(cov, np.float64)
 
 
-def _reference(
-    coefficients: FloatArray,
-    temperature_k: float | None,
-    pressure_pa: float | None,
-    relative_humidity: float,
-) -> ReferenceCorrection:
-    rho_ref = air_density_kg_m3(REFERENCE_PRESSURE_PA, REFERENCE_TEMPERATURE_K, 0.0)
-    if temperature_k is None or pressure_pa is None:
-        return ReferenceCorrection(False, rho_ref, rho_ref, 1.0, coefficients.copy())
-    rho = air_density_kg_m3(pressure_pa, temperature_k, relative_humidity)
-    factor = 1.0 + ROLLING_TEMPERATURE_COEFFICIENT_PER_K * (
-        temperature_k - REFERENCE_TEMPERATURE_K
-    )
-    f0, f1, f2 = coefficients
-    corrected = np.array([f0 * factor, f1 * factor, f2 * rho_ref / rho])
-    return ReferenceCorrection(True, rho, rho_ref, factor, corrected)
-
-
 def _run_fit(run: CoastDownRun, x: FloatArray, resid: FloatArray) -> CoastDownRunFit:
     return CoastDownRunFit(
         direction=run.direction,
@@ -417,7 +369,7 @@ def fit_coast_down(
     half = stats.t.ppf(0.5 + CONFIDENCE / 2.0, dof) * np.sqrt(np.maximum(np.diag(cov), 0.0))
     run_fits = tuple(_run_fit(r, s[0], s[2]) for r, s in zip(runs, solved, strict=True))
     resid = np.concatenate([s[2] for s in solved])
-    ref = _reference(value, temperature_k, pressure_pa, relative_humidity)
+    ref = reference_correction(value, temperature_k, pressure_pa, relative_humidity)
     return CoastDownFit(
         coefficients=value,
         low=np.maximum(value - half, 0.0),

@@ -34,7 +34,7 @@ from scipy.optimize import minimize_scalar
 
 from core.car.road_load import RoadLoadForm
 from core.car.traction import DriveLayout
-from core.runs.simulate import DriveModel
+from core.runs.drive_model import DriveModel
 from core.units import STANDARD_GRAVITY_M_S2
 
 __all__ = [

@@ -36,8 +36,8 @@ from core.engine.curves import RPM_TO_RAD_S, TorqueCurve
 from core.errors import SimulationError
 from core.notices import Notice
 from core.runs.batch import BatchRuns, batch_runs
+from core.runs.drive_model import drive_model
 from core.runs.milestones import STANDARD_ROLLOUT_M
-from core.runs.simulate import drive_model
 from core.shifts.plan import resolve_rev_limit, shift_plan
 from core.shifts.shift_rpm import checked_shift_rpm
 

@@ -32,7 +32,6 @@ elevation (converted by :func:`core.air.altimeter.station_pressure_from_altimete
 
 from __future__ import annotations
 
-import enum
 import math
 from dataclasses import dataclass
 
@@ -40,6 +39,7 @@ from core.air.altimeter import station_pressure_from_altimeter_pa
 from core.air.atmosphere import air_state
 from core.checks import require_range
 from core.engine.curves import TorqueCurve
+from core.engine.reference_air import CorrectionStandard
 from core.errors import CorrectionError
 from core.notices import Notice
 from core.units import HECTOPASCAL_PA, INCH_OF_MERCURY_PA, KILOPASCAL_PA, ZERO_CELSIUS_K
@@ -48,13 +48,9 @@ __all__ = [
     "CELL_TEMPERATURE_RANGE_K",
     "STATION_PRESSURE_RANGE_PA",
     "Correction",
-    "CorrectionStandard",
-    "PressureBasis",
-    "ReferenceConditions",
     "apply_correction",
     "correction_factor",
     "correction_factors",
-    "reference_conditions",
 ]
 
 # Conventional inch of mercury: 25.4 mm x 13595.1 kg/m^3 x 9.80665 m/s^2 (NIST SP 811).
@@ -67,42 +63,6 @@ _TEMPERATURE_RANGE_K = CELL_TEMPERATURE_RANGE_K
 _STATION_PRESSURE_RANGE_PA = STATION_PRESSURE_RANGE_PA
 _FACTOR_RANGE = (0.0, 3.0)
 _ISO_1585_VALID_BAND = (0.93, 1.07)  # memory
-
-
-class CorrectionStandard(enum.Enum):
-    """A rating standard whose correction factor refers power to its reference air."""
-
-    SAE_J1349_1990 = "sae_j1349_1990"
-    SAE_J1349_2004 = "sae_j1349_2004"
-    SAE_J607 = "sae_j607"
-    DIN_70020 = "din_70020"
-    ISO_1585 = "iso_1585"
-
-
-class PressureBasis(enum.Enum):
-    """Which pressure a standard's formula takes: dry-air (``DRY``) or total (``TOTAL``)."""
-
-    DRY = "dry"
-    TOTAL = "total"
-
-
-@dataclass(frozen=True)
-class ReferenceConditions:
-    """The air in which a standard's correction factor is exactly 1.
-
-    Attributes
-    ----------
-    temperature_k : float
-        Reference air temperature [K], as the formula's constants give it.
-    pressure_pa : float
-        Reference pressure [Pa], dry-air or total according to ``pressure_basis``.
-    pressure_basis : PressureBasis
-        Whether the formula takes the dry-air or the total pressure.
-    """
-
-    temperature_k: float
-    pressure_pa: float
-    pressure_basis: PressureBasis
 
 
 @dataclass(frozen=True)
@@ -137,39 +97,6 @@ class Correction:
     dry_pressure_pa: float
     within_validity: bool
     notices: tuple[Notice, ...]
-
-
-_REFERENCES = {
-    CorrectionStandard.SAE_J1349_1990: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
-    CorrectionStandard.SAE_J1349_2004: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
-    CorrectionStandard.SAE_J607: ReferenceConditions(
-        (60.0 - 32.0) / 1.8 + ZERO_CELSIUS_K, 29.92 * INCH_OF_MERCURY_PA, PressureBasis.DRY
-    ),
-    CorrectionStandard.DIN_70020: ReferenceConditions(293.0, 101_300.0, PressureBasis.TOTAL),
-    CorrectionStandard.ISO_1585: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
-}
-
-
-def reference_conditions(standard: CorrectionStandard) -> ReferenceConditions:
-    """The reference air of a standard, where its factor is exactly 1.
-
-    Parameters
-    ----------
-    standard : CorrectionStandard
-        The rating standard.
-
-    Returns
-    -------
-    ReferenceConditions
-        Temperature [K] and pressure [Pa], with the pressure's basis (dry or total).
-
-    Examples
-    --------
-    >>> ref = reference_conditions(CorrectionStandard.DIN_70020)
-    >>> ref.temperature_k, ref.pressure_pa, ref.pressure_basis.value
-    (293.0, 101300.0, 'total')
-    """
-    return _REFERENCES[standard]
 
 
 def _station_pressure(

@@ -32,9 +32,11 @@ from core.runs.batch_timing import (
     timed_distances,
     timed_speeds,
 )
-from core.runs.integrator import MAX_SPEED_M_S, GearBlock, RunStart, ShiftBlock, integrate_runs
+from core.runs.drive_model import DriveModel
+from core.runs.integrator import MAX_SPEED_M_S, integrate_runs
 from core.runs.milestones import STANDARD_ROLLOUT_M
-from core.runs.simulate import DriveModel, default_start_gear
+from core.runs.run_blocks import GearBlock, RunStart, ShiftBlock
+from core.runs.simulate import default_start_gear
 from core.shifts.shift_rpm import checked_shift_rpm
 
 __all__ = ["BatchRuns", "batch_finish_times", "batch_runs"]

@@ -16,6 +16,7 @@ import numpy as np
 from numpy.typing import NDArray
 from scipy.optimize import brentq
 
+from core.runs.drive_model import DriveModel
 from core.runs.milestones import (
     STANDARD_DISTANCES,
     STANDARD_ROLLOUT_M,
@@ -27,7 +28,7 @@ from core.runs.milestones import (
     time_at_speed,
 )
 from core.runs.performance import TopSpeed, top_speed
-from core.runs.simulate import DriveModel, RunResult, simulate_run
+from core.runs.simulate import RunResult, simulate_run
 
 __all__ = [
     "QUARTER_MILE_M",

@@ -20,9 +20,10 @@ import numpy as np
 from numpy.typing import NDArray
 
 from core.errors import SimulationError
+from core.runs.drive_model import DriveModel
 from core.runs.milestones import time_at_distance, time_at_speed
 from core.runs.performance import ShiftCriterion, optimal_shift_rpm, planned_shift_rpm
-from core.runs.simulate import DriveModel, simulate_run
+from core.runs.simulate import simulate_run
 from core.shifts.search import OptimalShifts
 
 __all__ = ["DEFAULT_TOLERANCE_S", "ShiftWindow", "ShiftWindows", "shift_windows"]

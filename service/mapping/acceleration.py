@@ -8,8 +8,8 @@ from typing import Any
 import numpy as np
 
 from core import OptimalShifts, RunReport, TimedDistance, TimedSpeed, sample_trace
+from core.runs.drive_model import DriveModel
 from core.runs.report import QUARTER_MILE_M
-from core.runs.simulate import DriveModel
 from core.units import STANDARD_GRAVITY_M_S2 as G
 from service.mapping.shift_plan import notices_out, rounded
 from service.output.cautions import CAUTIONS, SHORT_CAUTION

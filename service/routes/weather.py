@@ -10,7 +10,7 @@ from starlette.responses import Response
 
 from core import Notice, air_state, drive_model
 from core.air.weather import Weather, predict_slip, weather_air
-from core.engine.correction import CorrectionStandard
+from core.engine.reference_air import CorrectionStandard
 from core.runs.report import QUARTER_MILE_M
 from core.units import ISO_SEA_LEVEL_TEMPERATURE_K
 from service.http.deps import JsonBody

@@ -16,14 +16,12 @@ from core.air.altimeter import station_pressure_from_altimeter_pa
 from core.air.atmosphere import saturation_vapour_pressure_pa
 from core.engine.correction import (
     Correction,
-    CorrectionStandard,
-    PressureBasis,
     apply_correction,
     correction_factor,
     correction_factors,
-    reference_conditions,
 )
 from core.engine.curves import CurveSource, Interpolation, torque_curve_from_torque
+from core.engine.reference_air import CorrectionStandard, PressureBasis, reference_conditions
 from core.errors import CorrectionError
 
 UREG: pint.UnitRegistry[float] = pint.UnitRegistry()

@@ -20,6 +20,7 @@ from core.driveline.drivetrain import make_drivetrain
 from core.driveline.tires import tire_from_diameter, tire_from_size
 from core.engine.curves import torque_curve_from_torque
 from core.runs.batch_timing import TRAP_WINDOW_M
+from core.runs.drive_model import drive_model
 from core.runs.milestones import (
     STANDARD_DISTANCES,
     STANDARD_SPEEDS,
@@ -29,7 +30,7 @@ from core.runs.milestones import (
     timed_distance,
     timed_speed,
 )
-from core.runs.simulate import RunResult, drive_model, simulate_run
+from core.runs.simulate import RunResult, simulate_run
 from core.shifts.plan import shift_plan
 from core.units import FOOT_M
 
