@@ -188,6 +188,50 @@ def _curve(
     return n, power
 
 
+def _checked_efficiencies(
+    efficiency: float | Sequence[float], measured_gear: int | None, fixed_loss_w: float
+) -> tuple[float, FloatArray | None]:
+    """The efficiency of the measured gear [-] and, given per gear, every gear's; with the
+    fixed loss [W] checked against them."""
+    if not (math.isfinite(fixed_loss_w) and 0.0 <= fixed_loss_w <= 500e3):
+        raise DrivetrainError(
+            f"`fixed_loss_w` must lie in [0, 500000], got {fixed_loss_w:g}",
+            parameter="fixed_loss_w",
+        )
+    if fixed_loss_w > 0.0 and not isinstance(efficiency, (int, float)):
+        raise DrivetrainError(
+            "`fixed_loss_w` goes with a single efficiency, not per-gear ones",
+            parameter="fixed_loss_w",
+        )
+    per_gear = None
+    if isinstance(efficiency, (int, float)):
+        if measured_gear is not None:
+            raise DrivetrainError(
+                "`measured_gear` goes with, and only with, per-gear efficiencies",
+                parameter="measured_gear",
+            )
+        eta = require_range(float(efficiency), "efficiency", MIN_EFFICIENCY, 1.0, DrivetrainError)
+    else:
+        per_gear = np.array(
+            [
+                require_range(float(e), f"efficiency[{i}]", MIN_EFFICIENCY, 1.0, DrivetrainError)
+                for i, e in enumerate(efficiency)
+            ]
+        )
+        if not 1 <= per_gear.size <= MAX_GEARS:
+            raise DrivetrainError(
+                f"`efficiency` must give 1 to {MAX_GEARS} gears, got {per_gear.size}",
+                parameter="efficiency",
+            )
+        if measured_gear is None or not 1 <= measured_gear <= per_gear.size:
+            raise DrivetrainError(
+                f"`measured_gear` must name a gear 1 to {per_gear.size}, got {measured_gear}",
+                parameter="measured_gear",
+            )
+        eta = float(per_gear[measured_gear - 1])
+    return eta, per_gear
+
+
 def chassis_conversion(
     rpm: ArrayLike,
     *,
@@ -240,43 +284,8 @@ def chassis_conversion(
     200000
     """
     n, power = _curve(rpm, torque_nm, power_w)
-    if not (math.isfinite(fixed_loss_w) and 0.0 <= fixed_loss_w <= 500e3):
-        raise DrivetrainError(
-            f"`fixed_loss_w` must lie in [0, 500000], got {fixed_loss_w:g}",
-            parameter="fixed_loss_w",
-        )
-    if fixed_loss_w > 0.0 and not isinstance(efficiency, (int, float)):
-        raise DrivetrainError(
-            "`fixed_loss_w` goes with a single efficiency, not per-gear ones",
-            parameter="fixed_loss_w",
-        )
+    eta, per_gear = _checked_efficiencies(efficiency, measured_gear, fixed_loss_w)
     notes: list[Notice] = []
-    per_gear = None
-    if isinstance(efficiency, (int, float)):
-        if measured_gear is not None:
-            raise DrivetrainError(
-                "`measured_gear` goes with, and only with, per-gear efficiencies",
-                parameter="measured_gear",
-            )
-        eta = require_range(float(efficiency), "efficiency", MIN_EFFICIENCY, 1.0, DrivetrainError)
-    else:
-        per_gear = np.array(
-            [
-                require_range(float(e), f"efficiency[{i}]", MIN_EFFICIENCY, 1.0, DrivetrainError)
-                for i, e in enumerate(efficiency)
-            ]
-        )
-        if not 1 <= per_gear.size <= MAX_GEARS:
-            raise DrivetrainError(
-                f"`efficiency` must give 1 to {MAX_GEARS} gears, got {per_gear.size}",
-                parameter="efficiency",
-            )
-        if measured_gear is None or not 1 <= measured_gear <= per_gear.size:
-            raise DrivetrainError(
-                f"`measured_gear` must name a gear 1 to {per_gear.size}, got {measured_gear}",
-                parameter="measured_gear",
-            )
-        eta = float(per_gear[measured_gear - 1])
     if measured_at is MeasuredAt.WHEELS:
         wheel, engine = power, engine_from_wheel(power + fixed_loss_w, eta)
     else:
