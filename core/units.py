@@ -3,9 +3,12 @@
 The core computes in SI; it needs a few factors of other units for the conventions of the
 trade (a one-foot rollout, strip distances in feet, speed milestones in mph, tire sizes in
 inches) and for the columns of dyno and logger files. Every factor is the SI value of one
-unit, taken from :mod:`scipy.constants` where it has the unit (whose values are exact by the
-1959 international yard and pound agreement and the CGPM definitions); the conventional
-inch of mercury and the ISO 2533 standard atmosphere are given here with their sources.
+unit, exact by the 1959 international yard and pound agreement and the CGPM definitions,
+taken from :mod:`scipy.constants` where it has the unit. Where scipy computes a factor from
+others (foot, mile, pound, mph) and lands one unit in the last place off the decimal
+definition, the definition itself is written here (``tests/core/test_units.py`` holds each
+against scipy and pint); the conventional inch of mercury and the ISO 2533 standard
+atmosphere are given here with their sources.
 The service converts its callers' units in ``service/units.py`` with these same factors.
 """
 
@@ -57,19 +60,19 @@ ISO_AIR_GAS_CONSTANT_J_KG_K: Final[float] = 287.05287
 # Lengths
 INCH_M: Final[float] = constants.inch
 """One inch [m]."""
-FOOT_M: Final[float] = constants.foot
+FOOT_M: Final[float] = 0.3048
 """One foot [m]."""
-MILE_M: Final[float] = constants.mile
+MILE_M: Final[float] = 1609.344
 """One statute mile [m]."""
 
 # Speed
-MPH_M_S: Final[float] = constants.mph
+MPH_M_S: Final[float] = 0.44704
 """One mile per hour [m/s]."""
 KM_H_M_S: Final[float] = constants.kmh
 """One kilometre per hour [m/s]."""
 
 # Mass, force, torque, power
-POUND_KG: Final[float] = constants.pound
+POUND_KG: Final[float] = 0.45359237
 """One avoirdupois pound [kg]."""
 POUND_FORCE_N: Final[float] = constants.pound_force
 """One pound-force [N]."""
@@ -77,7 +80,7 @@ KILOGRAM_FORCE_N: Final[float] = constants.kgf
 """One kilogram-force [N]."""
 POUND_FORCE_FOOT_NM: Final[float] = POUND_FORCE_N * FOOT_M
 """One pound-force foot [N*m]."""
-HORSEPOWER_W: Final[float] = constants.hp
+HORSEPOWER_W: Final[float] = 550.0 * POUND_FORCE_N * FOOT_M
 """One (mechanical) horsepower, 550 ft*lbf/s [W]."""
 METRIC_HORSEPOWER_W: Final[float] = 75.0 * KILOGRAM_FORCE_N
 """One metric horsepower, 75 kgf*m/s [W]."""

@@ -5,6 +5,7 @@ from __future__ import annotations
 import pint
 import pytest
 from numpy.testing import assert_allclose
+from scipy import constants
 
 from core import units
 
@@ -36,6 +37,28 @@ def test_unit_factor_matches_pint(value: float, pint_unit: str) -> None:
     # pint's default registry (units defined by NIST SP 811 / the 1959 yard and pound).
     expected = _REGISTRY.Quantity(1.0, pint_unit).to_base_units().magnitude
     assert_allclose(value, expected, rtol=1e-12)
+
+
+@pytest.mark.parametrize(
+    ("value", "scipy_name"),
+    [
+        pytest.param(units.INCH_M, "inch", id="inch"),
+        pytest.param(units.FOOT_M, "foot", id="foot"),
+        pytest.param(units.MILE_M, "mile", id="mile"),
+        pytest.param(units.MPH_M_S, "mph", id="mph"),
+        pytest.param(units.KM_H_M_S, "kmh", id="km/h"),
+        pytest.param(units.POUND_KG, "pound", id="pound"),
+        pytest.param(units.POUND_FORCE_N, "pound_force", id="lbf"),
+        pytest.param(units.KILOGRAM_FORCE_N, "kgf", id="kgf"),
+        pytest.param(units.HORSEPOWER_W, "hp", id="hp"),
+        pytest.param(units.STANDARD_GRAVITY_M_S2, "g", id="g0"),
+        pytest.param(units.ISO_SEA_LEVEL_PRESSURE_PA, "atm", id="atm"),
+        pytest.param(units.ZERO_CELSIUS_K, "zero_Celsius", id="0-degC"),
+    ],
+)
+def test_unit_factor_matches_scipy_constants(value: float, scipy_name: str) -> None:
+    # scipy.constants (CODATA / NIST SP 811 definitions), to a unit in the last place.
+    assert_allclose(value, getattr(constants, scipy_name), rtol=1e-15)
 
 
 def test_inch_of_mercury_is_the_conventional_one() -> None:
