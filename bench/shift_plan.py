@@ -91,7 +91,7 @@ def main() -> None:
 
     from scipy.interpolate import PchipInterpolator
 
-    from core.engine.curves import pchip_coefficients
+    from core.engine.pchip import pchip_coefficients
 
     x, y = curve.rpm, curve.torque_nm
     print("PCHIP coefficients for the 100-point curve")

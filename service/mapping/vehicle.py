@@ -18,6 +18,7 @@ from core import (
     Vehicle,
     air_state,
 )
+from core.units import ISO_SEA_LEVEL_TEMPERATURE_K
 from service.mapping.inputs import core_fields
 from service.schemas.vehicle import LaunchIn, VehicleIn
 from service.units import Quantity, UnitSystem, to_si
@@ -67,7 +68,7 @@ def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
         mass = to_si(body.mass, Quantity.MASS, units)
         air = body.air
         temperature_k = (
-            288.15
+            ISO_SEA_LEVEL_TEMPERATURE_K
             if air.temperature is None
             else to_si(air.temperature, Quantity.TEMPERATURE, units)
         )
