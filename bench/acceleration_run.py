@@ -27,9 +27,9 @@ from core import (
     simulate_run,
 )
 from core.runs.batch import batch_runs
+from core.runs.drive_model import DriveModel
 from core.runs.milestones import STANDARD_DISTANCES
 from core.runs.report import QUARTER_MILE_M
-from core.runs.simulate import DriveModel
 from service.mapping.acceleration import SEARCH_BUDGET
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"

@@ -23,7 +23,7 @@ import httpx
 import numpy as np
 
 from core import Drivetrain, Tire, drive_model, make_drivetrain, tire_from_diameter
-from core.runs.simulate import DriveModel
+from core.runs.drive_model import DriveModel
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire
 from service.mapping.vehicle import build_launch, build_vehicle
 from service.schemas.acceleration import AccelerationRunRequest

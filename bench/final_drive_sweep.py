@@ -30,9 +30,9 @@ from core.choice.batch_drive import batch_top_speed
 from core.choice.sweep import sweep_final_drives
 from core.choice.sweep_spec import SWEEP_DISTANCES, SWEEP_SPEEDS, SweepObjective
 from core.runs.batch import batch_runs
-from core.runs.milestones import FOOT_M
+from core.runs.drive_model import DriveModel
 from core.runs.report import QUARTER_MILE_M, run_report
-from core.runs.simulate import DriveModel
+from core.units import FOOT_M
 from service.app import app
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"

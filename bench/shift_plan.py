@@ -96,7 +96,7 @@ def _serialisation(body: dict[str, Any], car: tuple[TorqueCurve, Drivetrain, Tir
 def _pchip(curve: TorqueCurve) -> None:
     from scipy.interpolate import PchipInterpolator
 
-    from core.engine.curves import pchip_coefficients
+    from core.engine.pchip import pchip_coefficients
 
     x, y = curve.rpm, curve.torque_nm
     print("PCHIP coefficients for the 100-point curve")

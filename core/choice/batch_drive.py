@@ -4,7 +4,7 @@ With final drive ``f_c`` the overall ratio in gear g is ``gear_g * f_c * extra``
 candidate ratio c puts the same engine, converter, tires and road load behind a different
 gearing, so a gear's force and acceleration for every candidate are arrays of shape (c, n)
 evaluated in one numpy call; engine and converter come from
-:meth:`core.runs.simulate.DriveModel.gearbox_input`, the same code the one-car model uses:
+:meth:`core.runs.drive_model.DriveModel.gearbox_input`, the same code the one-car model uses:
 a clutch slipping at the launch rpm in the launch gear, a converter solved by
 :func:`core.converter.matching.converter_operating_points` on the flattened grid (locked 1:1
 in lock-up gears above the curve's first rpm), the traction cap, the rotating mass of the
@@ -29,7 +29,7 @@ from core.engine.curves import RPM_TO_RAD_S
 from core.errors import DrivetrainError
 
 if TYPE_CHECKING:
-    from core.runs.simulate import DriveModel
+    from core.runs.drive_model import DriveModel
 
 __all__ = [
     "BatchTopSpeed",

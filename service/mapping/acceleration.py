@@ -24,8 +24,10 @@ from core import (
     run_report,
     sample_trace,
 )
+from core.runs.drive_model import DriveModel
 from core.runs.report import QUARTER_MILE_M
-from core.runs.simulate import DriveModel, RunShift
+from core.runs.simulate import RunShift
+from core.units import STANDARD_GRAVITY_M_S2 as G  # accelerations are reported in g
 from service.mapping.documents import notices_out, rounded
 from service.mapping.inputs import (
     build_curve,
@@ -50,7 +52,6 @@ __all__ = [
     "run_summary",
 ]
 
-G = 9.80665
 # core parameter -> request field, for errors and warnings
 RUN_FIELDS = {
     **CAR_FIELDS,

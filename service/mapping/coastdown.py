@@ -9,13 +9,12 @@ from typing import Any
 import numpy as np
 
 from core.car.coast_down import (
-    REFERENCE_PRESSURE_PA,
-    REFERENCE_TEMPERATURE_K,
     CoastDownFit,
     CoastDownRun,
     TravelDirection,
     fit_coast_down,
 )
+from core.car.coast_down_reference import REFERENCE_PRESSURE_PA, REFERENCE_TEMPERATURE_K
 from service.mapping.documents import notices_out
 from service.mapping.inputs import core_fields
 from service.output.cautions import CAUTIONS

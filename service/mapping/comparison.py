@@ -13,8 +13,8 @@ import numpy as np
 
 from core.choice.setups import Setup, SetupFigures, setup_figures
 from core.engine.curves import RPM_TO_RAD_S
+from core.notices import Notice
 from core.runs.performance import ShiftCriterion
-from core.shifts.plan import Notice
 from service.mapping.documents import (
     notices_out,
     rounded,

@@ -23,6 +23,7 @@ from core import (
     torque_curve_from_power,
     torque_curve_from_torque,
 )
+from core.runs.milestones import STANDARD_ROLLOUT_M
 from service.http.problems import ProblemError
 from service.schemas.inputs import CurveIn, DrivetrainIn, TireIn
 from service.units import Quantity, UnitSystem, from_si, to_si, unit_label
@@ -31,7 +32,6 @@ __all__ = [
     "DRIVETRAIN_FIELDS",
     "ENGINE_FIELDS",
     "MIN_RATIO",
-    "ROLLOUT_M",
     "build_curve",
     "build_drivetrain",
     "build_tire",
@@ -64,7 +64,6 @@ DRIVETRAIN_FIELDS: Mapping[str, str] = {
     "rolling_factor": "drivetrain.tire.rolling_factor",
 }
 MIN_RATIO = 0.01  # no gearbox or axle has a smaller ratio
-ROLLOUT_M = 0.3048  # one foot before the timer starts: the strip's rollout (common practice)
 
 
 def request_field(parameter: str | None, fields: Mapping[str, str]) -> str | None:
@@ -156,7 +155,7 @@ def check_ratio_floor(drivetrain: DrivetrainIn) -> None:
 
 def rollout_m(rollout: float | None, units: UnitSystem) -> float:
     """The rollout [m]: the caller's, else the strip's one foot."""
-    return ROLLOUT_M if rollout is None else to_si(rollout, Quantity.LENGTH, units)
+    return STANDARD_ROLLOUT_M if rollout is None else to_si(rollout, Quantity.LENGTH, units)
 
 
 def build_curve(curve: CurveIn, units: UnitSystem) -> TorqueCurve:

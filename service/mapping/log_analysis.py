@@ -8,10 +8,12 @@ from dataclasses import dataclass
 from typing import Any
 
 from core import Drivetrain, Tire, acceleration_shifts, drive_model, shift_plan
+from core.errors import LogDataError
 from core.logs.check import PassAnalysis, analyse_pass
-from core.logs.pass_data import AccelerationUnit, LogDataError, PassLog, SpeedUnit, pass_log
+from core.logs.pass_data import AccelerationUnit, PassLog, SpeedUnit, pass_log
 from core.logs.shift import LoggedShift
 from core.logs.text import LogText, read_log_text
+from core.units import STANDARD_GRAVITY_M_S2 as G  # accelerations are reported in g
 from service.http.problems import ProblemError
 from service.mapping.documents import notices_out
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
@@ -34,7 +36,6 @@ __all__ = [
     "model_shifts",
 ]
 
-G = 9.80665  # [m/s^2]; accelerations are reported in g, as in the acceleration-run trace
 VERDICT_RULE = (
     "Verdict: the crossover is where the next gear's logged acceleration, fitted against "
     "speed and extrapolated back, meets this gear's, extrapolated forward; the target is "

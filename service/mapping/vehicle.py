@@ -18,6 +18,7 @@ from core import (
     Vehicle,
     air_state,
 )
+from core.units import ISO_SEA_LEVEL_TEMPERATURE_K
 from service.mapping.inputs import DRIVETRAIN_FIELDS, ENGINE_FIELDS, core_fields
 from service.schemas.vehicle import LaunchIn, VehicleIn
 from service.units import Quantity, UnitSystem, to_si
@@ -80,7 +81,9 @@ def vehicle_air_density(body: VehicleIn, units: UnitSystem) -> float:
     15 degC unless given, the pressure or else the altitude)."""
     air = body.air
     temperature_k = (
-        288.15 if air.temperature is None else to_si(air.temperature, Quantity.TEMPERATURE, units)
+        ISO_SEA_LEVEL_TEMPERATURE_K
+        if air.temperature is None
+        else to_si(air.temperature, Quantity.TEMPERATURE, units)
     )
     state = air_state(
         temperature_k,

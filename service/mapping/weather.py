@@ -10,7 +10,7 @@ from typing import Any
 
 from core import Notice, drive_model
 from core.air.weather import SlipPrediction, Weather, WeatherAir, predict_slip, weather_air
-from core.engine.correction import CorrectionStandard
+from core.engine.reference_air import CorrectionStandard
 from core.runs.report import QUARTER_MILE_M
 from service.mapping.acceleration import RUN_FIELDS
 from service.mapping.documents import notices_out

@@ -8,7 +8,7 @@ from collections.abc import Callable, Sequence
 from typing import Any
 
 from core.choice.setups import SetupFigures
-from core.shifts.plan import Notice
+from core.notices import Notice
 from service.mapping.comparison import (
     Comparison,
     NamedSetup,

@@ -5,7 +5,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Any
 
-from core.shifts.plan import Notice
+from core.notices import Notice
 from service.mapping.gear_design import GearSetStudy, SpeedometerStudy
 from service.output.cautions import SPEEDOMETER_SHORT_CAUTION
 from service.output.sheets import summary_sheet, wrap_text
