@@ -20,6 +20,7 @@ from service.http.openapi import build_openapi
 from service.http.problems import install_problem_handlers
 from service.routes import (
     acceleration,
+    calibration,
     charts,
     chassis,
     coastdown,
@@ -115,6 +116,7 @@ def create_app() -> FastAPI:
             {"name": "road load", "description": "Road load fitted to coast-downs."},
             {"name": "shift window", "description": "What each shift rpm costs."},
             {"name": "weather", "description": "Density altitude; slips between weathers."},
+            {"name": "calibration", "description": "The car fitted to a logged pass."},
             {
                 "name": "reports",
                 "description": "Printable sheets (HTML, text, PDF) of every answer.",
@@ -140,6 +142,7 @@ def create_app() -> FastAPI:
         app.include_router(module.router)
     for module in (coastdown, shift_window, weather):
         app.include_router(module.router)
+    app.include_router(calibration.router)
     app.include_router(demo.router)
     install_problem_handlers(app)
     if settings.docs:

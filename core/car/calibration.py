@@ -207,9 +207,7 @@ class _Problem:
         base = self.model
         j = self.inertia
         k = float(x[0])
-        inertia = RotatingInertia(
-            j.engine_kg_m2 * k, j.driveshaft_kg_m2 * k, j.wheels_kg_m2 * k
-        )
+        inertia = RotatingInertia(j.engine_kg_m2 * k, j.driveshaft_kg_m2 * k, j.wheels_kg_m2 * k)
         load = dataclasses.replace(
             base.vehicle.road_load, quadratic_n_s2_m2=0.5 * self.density * float(x[2])
         )

@@ -217,4 +217,3 @@ def launch_bounds(window: FitWindow) -> tuple[float, float]:
     moving = window.time_s[window.speed_m_s >= 2.0 * STANDING_SPEED_M_S]
     late = float(moving[0]) - window.start_time_s if moving.size else 1.0
     return -LAUNCH_SEARCH_S, max(late, 0.05)
-

@@ -115,7 +115,7 @@ def gear_residuals(
     -------
     tuple of GearResidual
     """
-    out = []
+    out: list[GearResidual] = []
     t = window.time_s
     starts = [s[1] for s in window.segments[1:]] + [np.inf]
     for (gear, first, last, speed), nxt in zip(window.segments, starts, strict=True):

@@ -19,10 +19,10 @@ from core import (
     air_state,
 )
 from service.mapping.inputs import core_fields
-from service.schemas.vehicle import LaunchIn, VehicleIn
+from service.schemas.vehicle import AirIn, LaunchIn, VehicleIn
 from service.units import Quantity, UnitSystem, to_si
 
-__all__ = ["LAUNCH_FIELDS", "VEHICLE_FIELDS", "build_launch", "build_vehicle"]
+__all__ = ["LAUNCH_FIELDS", "VEHICLE_FIELDS", "air_density", "build_launch", "build_vehicle"]
 
 VEHICLE_FIELDS: Mapping[str, str] = {
     "mass_kg": "vehicle.mass",
@@ -61,11 +61,9 @@ LAUNCH_FIELDS: Mapping[str, str] = {
 }
 
 
-def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
-    """The core vehicle of a request's vehicle."""
+def air_density(air: AirIn, units: UnitSystem) -> float:
+    """Density of the request's air [kg/m^3]: ISO 2533 sea level unless stated."""
     with core_fields(VEHICLE_FIELDS, units):
-        mass = to_si(body.mass, Quantity.MASS, units)
-        air = body.air
         temperature_k = (
             288.15
             if air.temperature is None
@@ -81,6 +79,14 @@ def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
             if air.pressure is not None
             else to_si(air.altitude or 0.0, Quantity.DISTANCE, units),
         )
+    return state.density_kg_m3
+
+
+def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
+    """The core vehicle of a request's vehicle."""
+    with core_fields(VEHICLE_FIELDS, units):
+        mass = to_si(body.mass, Quantity.MASS, units)
+        density = air_density(body.air, units)
         load = body.road_load
         if load.coast_down is not None:
             f0, f1, f2 = load.coast_down
@@ -100,13 +106,13 @@ def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
                 )
             if load.rolling_coefficient is None:
                 road = RoadLoad.from_speed_dependent_rolling(
-                    mass, cda, state.density_kg_m3, grade_percent=load.grade_percent
+                    mass, cda, density, grade_percent=load.grade_percent
                 )
             else:
                 road = RoadLoad.from_constant_rolling(
                     mass,
                     cda,
-                    state.density_kg_m3,
+                    density,
                     load.rolling_coefficient,
                     grade_percent=load.grade_percent,
                 )
