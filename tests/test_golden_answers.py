@@ -51,6 +51,7 @@ CASES: list[tuple[str, str, str]] = [
     ("demo_shift_window_metric", "/v1/shift-window", "shift_window_metric.json"),
     ("demo_weather_metric", "/v1/weather-correction", "weather_metric.json"),
     ("demo_log_text_request_metric", "/v1/log-analysis", "log_analysis_metric.json"),
+    ("demo_calibration_metric", "/v1/calibration/pass", "calibration_pass_metric.json"),
 ]
 
 

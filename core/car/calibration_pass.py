@@ -5,10 +5,11 @@ the rpm-to-speed ratio (or acceleration dips without rpm), every shift, and the 
 throttle. A calibration simulates the pass with the project's one integrator
 (:func:`core.runs.simulate.simulate_run`), so it must tell the simulation
 
-* where to start: a log that begins at rest (first speed below ``STANDING_SPEED_M_S``) is a
-  standing start, and the launch instant ``t0`` is fitted (a nuisance parameter, guessed at
-  the last sample at rest); any other log is a rolling start at its first sample in the
-  first logged gear, and the start speed is fitted;
+* where to start: a log that begins at rest (first speed below ``STANDING_SPEED_M_S``) in
+  first gear is a standing start, and the launch instant ``t0`` is fitted (a nuisance
+  parameter, guessed at the last sample at rest); any other log (or one whose first gear
+  matched is not first, as with a converter slipping in first) is a rolling start at its
+  first sample in the first matched gear, and the start speed is fitted;
 * where to shift: at the speed each logged shift began, as the engine rpm the model turns
   there (with a slipping converter that is above the coupled rpm);
 * which samples to compare: from the start up to the end of full throttle, or up to the
@@ -126,12 +127,12 @@ def _shift_rpm(model: DriveModel, analysis: PassAnalysis, count: int) -> FloatAr
 
 
 def _start(
-    log: PassLog, first_time: float, until: float
+    log: PassLog, first_time: float, until: float, standing: bool
 ) -> tuple[StartKind, float, float, NDArray[np.bool_]]:
     """Start kind, start time and speed, and which samples are fitted."""
     t, v = log.time_s, log.speed_m_s
     inside = t <= until + 1e-9
-    if v[0] < STANDING_SPEED_M_S:
+    if standing:
         moving = np.flatnonzero(v >= STANDING_SPEED_M_S)
         last_rest = int(moving[0]) - 1 if moving.size else t.size - 1
         keep = inside & (np.arange(t.size) >= last_rest)
@@ -184,8 +185,20 @@ def fit_window(
     count = _consistent(analysis, notes)
     segs = analysis.segments[:count]
     until = analysis.analysed_until_s if count == len(analysis.segments) else segs[-1].end_time_s
-    kind, t_start, v_start, keep = _start(log, segs[0].start_time_s, until)
-    if kind is StartKind.ROLLING and segs[0].start_time_s - float(log.time_s[0]) > 1.0:
+    at_rest = bool(log.speed_m_s[0] < STANDING_SPEED_M_S)
+    standing = at_rest and segs[0].gear == 1
+    kind, t_start, v_start, keep = _start(log, segs[0].start_time_s, until, standing)
+    if at_rest and not standing:
+        notes.append(
+            Notice(
+                "first_gear_not_matched",
+                f"The log starts at rest but the first gear it matches is gear {segs[0].gear} "
+                "(a slipping converter or clutch, or ratios that do not fit): the fit starts "
+                f"at t = {t_start:.2f} s as a rolling start in that gear.",
+                "log",
+            )
+        )
+    elif kind is StartKind.ROLLING and segs[0].start_time_s - float(log.time_s[0]) > 1.0:
         notes.append(
             Notice(
                 "fit_starts_later",
