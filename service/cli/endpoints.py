@@ -134,7 +134,12 @@ ENDPOINTS: tuple[Endpoint, ...] = (
     _family("coast-down", "/v1/road-load/coast-down", "road-load-coast-down"),
     _family("shift-window", "/v1/shift-window"),
     _family("weather", "/v1/weather-correction", "weather-correction"),
-    _family("calibrate", "/v1/calibration/pass", "calibration-pass"),
+    _family(
+        "calibrate",
+        "/v1/calibration/pass",
+        "calibration-pass",
+        report="/v1/reports/calibration-pass",
+    ),
 )
 
 

@@ -300,7 +300,8 @@ def calibration_summary(
         if f["start"] == "standing"
         else f"rolling start at {f['start_speed']:.1f} {lab['speed']}"
     )
-    span = f"gear {gears[0]['gear']}" + (f"-{gears[-1]['gear']}" if len(gears) > 1 else "")
+    first, last = gears[0]["gear"], gears[-1]["gear"]
+    span = f"gears {first}-{last}" if last > first else f"gear {first}"
     body = [
         *wrap_text(
             f"Pass: {start}; {f['samples']} samples fitted from {f['fitted_from']:.2f} to "

@@ -16,6 +16,7 @@ from fastapi import APIRouter, Request
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.output.chart_data import RunChart
 from service.output.model import Report
 from service.output.sheet_response import (
     SHEET_RESPONSES,
@@ -23,6 +24,7 @@ from service.output.sheet_response import (
     FormatQuery,
     sheet_response,
 )
+from service.output.sheets_calibration import calibration_chart, calibration_report
 from service.output.sheets_choice import (
     comparison_report,
     spacing_report,
@@ -30,7 +32,16 @@ from service.output.sheets_choice import (
     sweep_report,
 )
 from service.output.sheets_shop import chassis_report, dyno_correction_report, log_check_report
-from service.routes import chassis, comparison, dyno, final_drive, gear_design, log_analysis
+from service.routes import (
+    calibration,
+    chassis,
+    comparison,
+    dyno,
+    final_drive,
+    gear_design,
+    log_analysis,
+)
+from service.schemas.calibration import CalibrationRequest
 from service.schemas.chassis import ChassisConversionRequest
 from service.schemas.comparison import ComparisonRequest
 from service.schemas.dyno import DynoCorrectionRequest
@@ -54,6 +65,7 @@ class Sheet:
     model: type[Any]
     answer: Callable[[Any, None], Awaitable[Response]]
     build: Callable[[dict[str, Any], UnitSystem], Report]
+    chart: Callable[[dict[str, Any], UnitSystem], RunChart] | None = None
 
 
 SHEETS = (
@@ -113,6 +125,15 @@ SHEETS = (
         chassis.create_chassis_conversion,
         chassis_report,
     ),
+    Sheet(
+        "calibration-pass",
+        "pass_calibration",
+        "the car fitted to a logged pass",
+        CalibrationRequest,
+        calibration.create_pass_calibration,
+        calibration_report,
+        calibration_chart,
+    ),
 )
 
 
@@ -126,10 +147,11 @@ def _endpoint(sheet: Sheet) -> Callable[..., Awaitable[Response]]:
     ) -> Response:
         answer = await sheet.answer(body, None)
         doc = orjson.loads(bytes(answer.body))
+        draw = sheet.chart
         return await sheet_response(
             request,
             sheet.build(doc, body.units),
-            chart=None,
+            chart=None if draw is None else lambda: draw(doc, body.units),
             fmt=format,
             appendix=appendix,
             job=body.job,

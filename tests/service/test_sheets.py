@@ -52,6 +52,7 @@ SHEETS: dict[str, tuple[str, int]] = {
     "log-analysis": ("demo_log_request_metric", 1),
     "dyno-correction": ("demo_dyno_correction_metric", 1),
     "chassis-dyno": ("demo_chassis_metric", 1),
+    "calibration-pass": ("demo_calibration_metric", 2),
 }
 
 
