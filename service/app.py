@@ -8,10 +8,10 @@ import threading
 from collections.abc import AsyncIterator
 
 from fastapi import FastAPI
-from starlette.middleware.gzip import GZipMiddleware
 
 from service.http.admission import Admission, AdmissionGate, CalculationSlots
 from service.http.cache import ResultCache
+from service.http.compression import OffLoopGZip
 from service.http.docs import install_docs
 from service.http.headers import ProblemCORS, ResponseHeaders
 from service.http.limits import BodySizeLimit
@@ -166,7 +166,7 @@ def create_app() -> FastAPI:
     app.add_middleware(BodySizeLimit, max_bytes=settings.max_body_bytes)
     if settings.gzip_level > 0:
         app.add_middleware(
-            GZipMiddleware,
+            OffLoopGZip,
             minimum_size=settings.gzip_min_bytes,
             compresslevel=settings.gzip_level,
         )

@@ -1,4 +1,4 @@
-"""Decoding an uploaded export's bytes: UTF-8 (with or without a byte-order mark) or UTF-16.
+"""Decoding an uploaded export's bytes: UTF-8 (with or without a mark), UTF-16 or Windows-1252.
 
 Dyno and logger software on Windows often saves text as UTF-16 with a byte-order mark, or
 as UTF-8 with one. The bytes are read as:
@@ -7,10 +7,13 @@ as UTF-8 with one. The bytes are read as:
   ``FE FF`` (the mark is dropped);
 * UTF-16 without a mark when the first bytes hold a NUL in every second byte and nowhere
   else (text in the Latin range stored in two bytes a character);
-* otherwise UTF-8.
+* otherwise UTF-8, and when that fails Windows-1252: older Windows programs save text in the
+  system's "ANSI" code page, which in Western Europe and the Americas is Windows-1252, so a
+  unit written ``\xb0C`` or ``\xb5s`` arrives as one byte that is not UTF-8 (common
+  practice; the code page is defined by the WHATWG Encoding Standard's ``windows-1252``).
 
-Bytes that are not valid in the encoding found are an error naming the byte's 1-based
-position.
+Bytes that are not valid in the encoding found (UTF-8 or UTF-16 behind a mark, or neither
+UTF-8 nor Windows-1252 without one) are an error naming the byte's 1-based position.
 """
 
 from __future__ import annotations
@@ -40,7 +43,7 @@ class DecodedText:
         The decoded text, without a byte-order mark.
     encoding : str
         ``UTF-8``, ``UTF-8 with byte-order mark``, ``UTF-16LE with byte-order mark``,
-        ``UTF-16BE with byte-order mark``, ``UTF-16LE`` or ``UTF-16BE``.
+        ``UTF-16BE with byte-order mark``, ``UTF-16LE``, ``UTF-16BE`` or ``Windows-1252``.
     """
 
     text: str
@@ -83,6 +86,8 @@ def decode_export(raw: bytes) -> DecodedText:
     DecodedText(text='RPM;Nm', encoding='UTF-16LE with byte-order mark')
     >>> decode_export(b"\\xef\\xbb\\xbfRPM;Nm").encoding
     'UTF-8 with byte-order mark'
+    >>> decode_export(b"RPM;T (\\xb0C)")
+    DecodedText(text='RPM;T (°C)', encoding='Windows-1252')
     """
     codec, name, skip = "utf-8", "UTF-8", 0
     for mark, mark_codec, mark_name in _BOMS:
@@ -94,10 +99,18 @@ def decode_export(raw: bytes) -> DecodedText:
         if unmarked is not None:
             codec, name = unmarked, unmarked.upper().replace("UTF-16-", "UTF-16")
     try:
-        text = raw[skip:].decode(codec)
+        return DecodedText(raw[skip:].decode(codec), name)
     except UnicodeDecodeError as exc:
-        raise DynoFileError(
-            f"`text` is not valid {name} text (byte {skip + exc.start + 1}); save the export "
-            "as UTF-8 or UTF-16"
-        ) from exc
-    return DecodedText(text, name)
+        if name != "UTF-8":
+            raise _not_valid(name, skip + exc.start) from exc
+    try:
+        return DecodedText(raw.decode("cp1252"), "Windows-1252")
+    except UnicodeDecodeError as exc:
+        raise _not_valid("UTF-8 or Windows-1252", exc.start) from exc
+
+
+def _not_valid(name: str, index: int) -> DynoFileError:
+    """The error for a byte (0-based ``index``) that the encoding cannot read."""
+    return DynoFileError(
+        f"`text` is not valid {name} text (byte {index + 1}); save the export as UTF-8 or UTF-16"
+    )

@@ -158,11 +158,11 @@ async def import_torque_curve(
     tire_rolling_factor: Annotated[float | None, Query(description=_ROLLING)] = None,
 ) -> Response:
     """Comma, semicolon or tab separated text (UTF-8 or UTF-16, with or without a byte-order
-    mark) with a header naming rpm and torque and/or power with units (lbf*ft, N*m, hp, kW,
-    PS); wheel columns (WHP, wheel torque, RWHP ...) give a chassis curve; summary rows and
-    blank cells are skipped with a warning; a speed-based export (road speed with power or
-    tractive force) needs `overall_ratio` and the tire, as query parameters or multipart
-    fields. Errors name the line and column."""
+    mark, or Windows-1252) with a header naming rpm and torque and/or power with units
+    (lbf*ft, N*m, hp, kW, PS); wheel columns (WHP, wheel torque, RWHP ...) give a chassis
+    curve; summary rows and blank cells are skipped with a warning; a speed-based export
+    (road speed with power or tractive force) needs `overall_ratio` and the tire, as query
+    parameters or multipart fields. Errors name the line and column."""
     kind = request.headers.get("content-type", "").split(";")[0].strip().lower()
     form: dict[str, str] = {}
     if kind == "multipart/form-data":

@@ -13,6 +13,7 @@ from service.schemas.common import (
     Reference,
     UnitLabels,
     UnitsRequest,
+    schema_rules,
 )
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
@@ -56,6 +57,10 @@ class SpeedIntervalIn(ApiModel):
 
 class RunOptions(ApiModel):
     """Start, finish and what to report."""
+
+    model_config = ConfigDict(
+        json_schema_extra=schema_rules(exclusive=[("finish_distance", "finish_speed")])
+    )
 
     start_speed: RoadSpeedOrZero = Field(
         0.0, description="0 for a standing start, else a rolling start [km/h | mph]."

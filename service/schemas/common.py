@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import typing
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Mapping, Sequence
 from typing import Annotated, Any, Self
 
 from pydantic import BaseModel, ConfigDict, Field, model_validator
@@ -39,29 +39,41 @@ def with_default_shift_criterion(data: Any, field: str = "shift_criterion") -> A
     return data
 
 
+def _given(fields: Sequence[str], all_fields: Sequence[str] = ()) -> dict[str, Any]:
+    """A schema: ``fields`` present and not null (and, listed in ``all_fields`` but not in
+    ``fields``, absent or null)."""
+    return {
+        "required": list(fields),
+        "properties": {
+            name: {"not": {"type": "null"}} if name in fields else {"type": "null"}
+            for name in (all_fields or fields)
+        },
+    }
+
+
 def schema_rules(
-    *forms: tuple[str, ...], example: Mapping[str, Any] | None = None
+    *forms: tuple[str, ...],
+    example: Mapping[str, Any] | None = None,
+    any_form: Sequence[tuple[str, ...]] = (),
+    exclusive: Sequence[tuple[str, ...]] = (),
 ) -> Callable[[dict[str, Any]], None]:
     """A ``json_schema_extra`` stating in the schema what a model validator enforces.
 
     Each form is a set of fields given together; exactly one form may be given (``oneOf``):
     a form's fields are present and not null, every other form's fields absent or null.
-    ``example`` adds an example request.
+    ``any_form`` lists forms of which at least one is given (``anyOf``); each tuple of
+    ``exclusive`` names fields that may not all be given together (``not``). ``example``
+    adds an example request.
     """
     fields = sorted({name for form in forms for name in form})
 
     def extra(schema: dict[str, Any]) -> None:
         if forms:
-            schema["oneOf"] = [
-                {
-                    "required": list(form),
-                    "properties": {
-                        name: {"not": {"type": "null"}} if name in form else {"type": "null"}
-                        for name in fields
-                    },
-                }
-                for form in forms
-            ]
+            schema["oneOf"] = [_given(form, fields) for form in forms]
+        if any_form:
+            schema["anyOf"] = [_given(form) for form in any_form]
+        if exclusive:
+            schema["allOf"] = [{"not": _given(group)} for group in exclusive]
         if example is not None:
             schema["examples"] = [dict(example)]
 

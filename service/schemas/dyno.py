@@ -122,7 +122,9 @@ class ImportedCurveResponse(ApiModel):
         "`torque`, `power` and `force` where used."
     )
     delimiter: str
-    encoding: str = Field(description="How the file's text was stored (UTF-8, UTF-16 ...).")
+    encoding: str = Field(
+        description="How the file's text was stored (UTF-8, UTF-16, Windows-1252 ...)."
+    )
     rows: int = Field(description="Data rows read (summary and blank rows not counted).")
     road_speed_conversion: RoadSpeedConversionOut | None = Field(
         description="For a speed-based export: the gear and tire used; else null."

@@ -7,7 +7,14 @@ from typing import Self
 from pydantic import ConfigDict, Field, model_validator
 
 from core.shifts.window import DEFAULT_TOLERANCE_S, MAX_POINTS, MIN_POINTS
-from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
+from service.schemas.common import (
+    ApiModel,
+    NoticeOut,
+    Reference,
+    UnitLabels,
+    UnitsRequest,
+    schema_rules,
+)
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.quantities import RoadSpeed, RoadSpeedOrZero, Rollout, RunDistance
@@ -23,6 +30,10 @@ __all__ = [
 
 class ShiftWindowFinishIn(ApiModel):
     """Start and finish of the run the shifts are priced against."""
+
+    model_config = ConfigDict(
+        json_schema_extra=schema_rules(exclusive=[("finish_distance", "finish_speed")])
+    )
 
     start_speed: RoadSpeedOrZero = Field(
         0.0, description="0 for a standing start, else a rolling start [km/h | mph]."

@@ -31,6 +31,8 @@ __all__ = ["AirIn", "ConverterIn", "InertiaIn", "LaunchIn", "RoadLoadIn", "Vehic
 class AirIn(ApiModel):
     """Ambient air, for the density in aerodynamic drag. Default: ISO standard sea level."""
 
+    model_config = ConfigDict(json_schema_extra=schema_rules(exclusive=[("pressure", "altitude")]))
+
     temperature: AirTemperature | None = Field(
         None,
         description="Air temperature [degC | degF]; default 15 degC, 59 degF (ISO 2533 sea "
@@ -55,6 +57,24 @@ class AirIn(ApiModel):
 
 class RoadLoadIn(ApiModel):
     """Resistance: drag (Cd and frontal area, or CdA) plus rolling, or coast-down terms."""
+
+    model_config = ConfigDict(
+        json_schema_extra=schema_rules(
+            any_form=[("drag_area",), ("drag_coefficient", "frontal_area"), ("coast_down",)],
+            exclusive=[
+                ("drag_area", "drag_coefficient"),
+                *(
+                    ("coast_down", name)
+                    for name in (
+                        "drag_coefficient",
+                        "frontal_area",
+                        "drag_area",
+                        "rolling_coefficient",
+                    )
+                ),
+            ],
+        )
+    )
 
     drag_coefficient: float | None = Field(None, ge=0, le=3, description="Cd [-].")
     frontal_area: FrontalArea | None = Field(None, description="Frontal area [m^2 | ft^2].")

@@ -229,9 +229,17 @@ def test_utf16_without_a_mark_is_recognised_by_its_zero_bytes() -> None:
         assert (decoded.text, decoded.encoding) == (text, name)
 
 
+def test_text_that_is_not_utf8_is_read_as_windows_1252() -> None:
+    # Python's cp1252 codec is the reference for the code page's table
+    text = "Drehzahl;Moment (Nm);Ansaug (\u00b0C)\n2000;150;25\n"
+    decoded = decode_export(text.encode("cp1252"))
+    assert (decoded.text, decoded.encoding) == (text, "Windows-1252")
+
+
 def test_undecodable_bytes_are_reported_with_their_position() -> None:
+    # 0x81: no UTF-8 lead byte, unassigned in windows-1252 (WHATWG Encoding Standard)
     with pytest.raises(DynoFileError, match=r"byte 5\b"):
-        decode_export(b"RPM;\xff\xfe\xfd")
+        decode_export(b"RPM;\x81")
     with pytest.raises(DynoFileError, match="UTF-16"):
         decode_export(codecs.BOM_UTF16_LE + b"R\x00P")
 

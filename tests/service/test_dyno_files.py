@@ -156,8 +156,21 @@ def test_utf16_and_bom_files_import_as_body_and_upload(
         assert r.json()["curve"]["torque"] == [180.0, 210.0, 225.0, 215.0]
 
 
-def test_invalid_utf8_is_a_422_naming_the_byte(api: ApiClient) -> None:
-    r = api.post(URL, content=b"RPM;\xff\xfe\xfd", headers={"content-type": "text/csv"})
+def test_bytes_neither_utf8_nor_windows_1252_are_a_422_naming_the_byte(api: ApiClient) -> None:
+    # 0x81 starts no UTF-8 sequence and is unassigned in windows-1252 (WHATWG Encoding Standard)
+    r = api.post(URL, content=b"RPM;\x81\x8d", headers={"content-type": "text/csv"})
     assert r.status_code == 422
     assert r.json()["field"] == "body"
     assert "byte 5" in r.json()["detail"]
+    assert "UTF-8 or Windows-1252" in r.json()["detail"]
+
+
+def test_a_windows_1252_export_is_read_and_says_so(api: ApiClient) -> None:
+    """An older Windows program's "ANSI" export: the degree sign is the single byte 0xB0."""
+    text = "RPM;Torque (Nm);Intake (\u00b0C)\n2000;150;25\n3000;180;26\n4000;170;27\n"
+    raw = text.encode("cp1252")
+    assert b"\xb0" in raw
+    r = api.post(URL, content=raw, headers={"content-type": "text/csv"})
+    assert r.status_code == 200, r.text
+    assert r.json()["encoding"] == "Windows-1252"
+    assert r.json()["curve"]["torque"] == [150.0, 180.0, 170.0]
