@@ -52,6 +52,7 @@ CASES: list[tuple[str, str, str]] = [
     ("demo_weather_metric", "/v1/weather-correction", "weather_metric.json"),
     ("demo_log_text_request_metric", "/v1/log-analysis", "log_analysis_metric.json"),
     ("demo_calibration_metric", "/v1/calibration/pass", "calibration_pass_metric.json"),
+    ("demo_calibration_us", "/v1/calibration/pass", "calibration_pass_us.json"),
 ]
 
 

@@ -132,7 +132,7 @@ def _vehicle_block(
         return block
     area = load.get("frontal_area")
     if area is not None and load.get("drag_coefficient") is not None:
-        cd = cda / from_si(1.0, Quantity.AREA, u) / area
+        cd = from_si(cda, Quantity.AREA, u) / area
         if cd <= 3.0:
             load["drag_coefficient"] = round(cd, 4)
             return block

@@ -187,6 +187,12 @@ def test_us_units_give_the_same_fit_in_pounds_feet_and_mph(
         metric["calibrated"]["vehicle"]["inertia"]["wheels"],
         rtol=2e-3,
     )
+    # Cd = CdA / A in either system (the frontal area converted with the same factor)
+    assert_allclose(
+        block["road_load"]["drag_coefficient"],
+        metric["calibrated"]["vehicle"]["road_load"]["drag_coefficient"],
+        rtol=2e-3,
+    )
     run = {**us_body(trace, 11), **us["calibrated"]}
     run.pop("log")
     assert api.post("/v1/acceleration-run", json=run).status_code == 200
@@ -258,3 +264,21 @@ def test_the_reported_uncertainty_matches_the_scatter_over_seeds(
     assert np.all(np.abs(scores) <= 3.0), scores
     rms = np.sqrt(np.mean(scores**2, axis=0))
     assert np.all((rms > 0.5) & (rms < 2.0)), rms
+
+
+def test_a_coast_down_road_load_keeps_f0_f1_and_gets_the_fitted_drag_as_f2(
+    api: ApiClient, trace: dict[str, list[float]]
+) -> None:
+    body = metric_body(trace, 2)
+    body["vehicle"]["road_load"] = {"coast_down": [160.0, 0.0, 0.033]}  # N, N/(km/h), ...^2
+    r = api.post(URL, json=body)
+    assert r.status_code == 200, r.text
+    doc = r.json()
+    f0, f1, f2 = doc["calibrated"]["vehicle"]["road_load"]["coast_down"]
+    assert (f0, f1) == (160.0, 0.0)
+    # Gillespie ch. 2: F2 = 0.5 rho CdA; per (km/h)^2 divide by 3.6^2 (exact); the air of
+    # 20 degC at 150 m is about 1.19 kg/m^3 (ISO 2533 and the ideal gas law, from memory)
+    rho = f2 * 3.6**2 / (0.5 * doc["figures"]["drag_area"]["value"])
+    assert_allclose(rho, 1.19, rtol=0.02)
+    run = {**caller_car(), **doc["calibrated"]}
+    assert api.post("/v1/acceleration-run", json=run).status_code == 200
