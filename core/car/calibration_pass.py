@@ -25,7 +25,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from core.errors import FitError
-from core.logs.check import PassAnalysis, analyse_pass
+from core.logs.check import GearSegment, PassAnalysis, analyse_pass
 from core.logs.pass_data import PassLog
 from core.runs.simulate import DriveModel
 from core.shifts.plan import Notice
@@ -142,6 +142,32 @@ def _start(
     return StartKind.ROLLING, float(t[first]), float(v[first]), keep
 
 
+def _start_notices(
+    log: PassLog, first: GearSegment, kind: StartKind, t_start: float, at_rest: bool
+) -> list[Notice]:
+    """Why the fit does not start where the log does, if it does not."""
+    if at_rest and kind is StartKind.ROLLING:
+        return [
+            Notice(
+                "first_gear_not_matched",
+                f"The log starts at rest but the first gear it matches is gear {first.gear} "
+                "(a slipping converter or clutch, or ratios that do not fit): the fit starts "
+                f"at t = {t_start:.2f} s as a rolling start in that gear.",
+                "log",
+            )
+        ]
+    if kind is StartKind.ROLLING and first.start_time_s - float(log.time_s[0]) > 1.0:
+        return [
+            Notice(
+                "fit_starts_later",
+                f"The log does not start at rest; the fit starts at t = {t_start:.2f} s, the "
+                f"first sample matched to gear {first.gear}.",
+                "log",
+            )
+        ]
+    return []
+
+
 def fit_window(
     log: PassLog, model: DriveModel, *, smoothing_window_s: float, start_gear: int
 ) -> FitWindow:
@@ -188,25 +214,7 @@ def fit_window(
     at_rest = bool(log.speed_m_s[0] < STANDING_SPEED_M_S)
     standing = at_rest and segs[0].gear == 1
     kind, t_start, v_start, keep = _start(log, segs[0].start_time_s, until, standing)
-    if at_rest and not standing:
-        notes.append(
-            Notice(
-                "first_gear_not_matched",
-                f"The log starts at rest but the first gear it matches is gear {segs[0].gear} "
-                "(a slipping converter or clutch, or ratios that do not fit): the fit starts "
-                f"at t = {t_start:.2f} s as a rolling start in that gear.",
-                "log",
-            )
-        )
-    elif kind is StartKind.ROLLING and segs[0].start_time_s - float(log.time_s[0]) > 1.0:
-        notes.append(
-            Notice(
-                "fit_starts_later",
-                f"The log does not start at rest; the fit starts at t = {t_start:.2f} s, the "
-                f"first sample matched to gear {segs[0].gear}.",
-                "log",
-            )
-        )
+    notes += _start_notices(log, segs[0], kind, t_start, at_rest)
     bounds = [(s.gear, s.start_time_s, s.end_time_s, s.end_speed_m_s) for s in segs]
     bounds[0] = (segs[0].gear, t_start, segs[0].end_time_s, segs[0].end_speed_m_s)
     return FitWindow(

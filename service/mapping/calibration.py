@@ -8,12 +8,11 @@ from typing import Any
 import numpy as np
 
 from core import drive_model
-from core.car.calibration import (
+from core.car.calibration import FittedFigure, PassCalibration, calibrate_pass
+from core.car.calibration_fit import (
+    EFFICIENCY_WIDTH,
     MASS_FACTOR_WIDTH,
     PRIOR_SPEED_M_S,
-    FittedFigure,
-    PassCalibration,
-    calibrate_pass,
 )
 from service.mapping.inputs import (
     DRIVETRAIN_FIELDS,
@@ -71,7 +70,8 @@ CALIBRATION_METHOD = (
 )
 PRIORS_TEXT = (
     f"Each figure is pulled towards your value by a residual worth {PRIOR_SPEED_M_S:g} m/s "
-    f"of speed error per prior width: {MASS_FACTOR_WIDTH:g} for the mass factor, 0.10 for "
+    f"of speed error per prior width: {MASS_FACTOR_WIDTH:g} for the mass factor, "
+    f"{EFFICIENCY_WIDTH:.2f} for "
     "the efficiency, half your drag area (at least 0.1 m^2) for the drag area."
 )
 _NAMES = ("mass_factor", "efficiency", "drag_area")
