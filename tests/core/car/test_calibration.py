@@ -200,3 +200,13 @@ def test_a_converter_car_keeps_its_converter_map_across_trials() -> None:
     fit = calibrate_pass(logged(model), model, RHO)
     assert_allclose(fit.efficiency.value, 0.9, rtol=0.01)
     assert fit.residual_rms_m_s < 0.1
+
+
+def test_a_log_without_rpm_finds_its_gears_from_the_dips_and_is_fitted() -> None:
+    truth = car(k=1.3, eta=0.86, cda=0.72)
+    log = logged(truth, noise_m_s=0.05, seed=1)
+    speed_only = pass_log(log.time_s, log.speed_m_s, speed_unit=SpeedUnit.M_S)
+    fit = calibrate_pass(speed_only, car(), RHO)
+    assert "no_rpm" in {n.code for n in fit.notices}
+    for figure, true in ((fit.mass_factor, 1.3), (fit.efficiency, 0.86), (fit.drag_area, 0.72)):
+        assert abs(figure.value - true) <= 3.0 * figure.std_error, figure
