@@ -1,4 +1,5 @@
-"""PDF sheet cost against the computed shift plan it draws (issue target: <= 10x).
+"""PDF sheet cost against the computed shift plan it draws (issue target: <= 10x), and
+each track answer's PDF sheet (coast-down, shift window, weather) against its JSON answer.
 
 Run with ``python -m bench.sheets``. Figures are printed, never asserted. Every request body
 differs (the driveline efficiency steps per call), so nothing is answered from a cache; the
@@ -79,6 +80,30 @@ def _served(
     return call
 
 
+TRACK = (  # JSON route, its sheet, demo body
+    ("/v1/road-load/coast-down", "/v1/reports/road-load/coast-down", "demo_coastdown_metric"),
+    ("/v1/shift-window", "/v1/reports/shift-window", "demo_shift_window_metric"),
+    ("/v1/weather-correction", "/v1/reports/weather-correction", "demo_weather_metric"),
+)
+
+
+def _track_sheets(runs: int = RUNS // 4) -> None:
+    """Each track answer's PDF sheet against its JSON answer, served in process."""
+    print(f"track answers: PDF sheet against the JSON answer it prints, median of {runs}")
+    for route, sheet, demo in TRACK:
+        raw = json.loads((DATA / f"{demo}.json").read_text())
+        bodies = [{**raw, "reference": f"BENCH-{i}"} for i in range(2 * runs + 2)]
+        answer = _served(route, bodies[: runs + 1])
+        pdf = _served(sheet, bodies[runs + 1 :], accept="application/pdf")
+        answer(runs)  # first call: imports, caches
+        pdf(runs)
+        t = _alternate({"json": answer, "pdf": pdf}, runs)
+        print(
+            f"   {route:<28} {t['json'] * 1e3:8.1f} ms   sheet {t['pdf'] * 1e3:8.1f} ms"
+            f"   {t['pdf'] / t['json']:5.2f} x"
+        )
+
+
 def main() -> None:
     import logging
     import os
@@ -156,6 +181,7 @@ def main() -> None:
     print(f"   run (JSON document)               {r['run'] * 1e3:8.2f} ms")
     print(f"   PDF sheet (run + sheet + chart)   {r['pdf'] * 1e3:8.2f} ms")
     print(f"   PDF sheet / run                   {r['pdf'] / r['run']:8.1f} x")
+    _track_sheets()
     while _OPEN:  # stop the portals' event-loop threads, so the process ends
         _OPEN.pop().__exit__(None, None, None)
 

@@ -48,11 +48,27 @@ CASES: list[tuple[str, str, str]] = [
     ("demo_dyno_correction_metric", "/v1/dyno-correction", "dyno_correction_metric.json"),
     ("demo_chassis_metric", "/v1/chassis-dyno/convert", "chassis_metric.json"),
     ("demo_coastdown_metric", "/v1/road-load/coast-down", "coast_down_metric.json"),
+    (
+        "demo_coastdown_metric",
+        "/v1/reports/road-load/coast-down?format=text",
+        "coast_down_metric.txt",
+    ),
     ("demo_shift_window_metric", "/v1/shift-window", "shift_window_metric.json"),
+    (
+        "demo_shift_window_metric",
+        "/v1/reports/shift-window?format=text",
+        "shift_window_metric.txt",
+    ),
     ("demo_weather_metric", "/v1/weather-correction", "weather_metric.json"),
+    ("demo_weather_metric", "/v1/reports/weather-correction?format=text", "weather_metric.txt"),
     ("demo_log_text_request_metric", "/v1/log-analysis", "log_analysis_metric.json"),
     ("demo_calibration_metric", "/v1/calibration/pass", "calibration_pass_metric.json"),
     ("demo_calibration_us", "/v1/calibration/pass", "calibration_pass_us.json"),
+    (
+        "demo_calibration_metric",
+        "/v1/reports/calibration/pass?format=text",
+        "calibration_pass_metric.txt",
+    ),
 ]
 
 

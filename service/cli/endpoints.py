@@ -131,14 +131,24 @@ ENDPOINTS: tuple[Endpoint, ...] = (
         "chassis-dyno-convert",
         report="/v1/reports/chassis-dyno",
     ),
-    _family("coast-down", "/v1/road-load/coast-down", "road-load-coast-down"),
-    _family("shift-window", "/v1/shift-window"),
-    _family("weather", "/v1/weather-correction", "weather-correction"),
+    _family(
+        "coast-down",
+        "/v1/road-load/coast-down",
+        "road-load-coast-down",
+        report="/v1/reports/road-load/coast-down",
+    ),
+    _family("shift-window", "/v1/shift-window", report="/v1/reports/shift-window"),
+    _family(
+        "weather",
+        "/v1/weather-correction",
+        "weather-correction",
+        report="/v1/reports/weather-correction",
+    ),
     _family(
         "calibrate",
         "/v1/calibration/pass",
         "calibration-pass",
-        report="/v1/reports/calibration-pass",
+        report="/v1/reports/calibration/pass",
     ),
 )
 

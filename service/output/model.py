@@ -9,7 +9,7 @@ only lay them out, so the three formats always say the same thing.
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -23,6 +23,7 @@ __all__ = [
     "gear_groups",
     "join_numbers",
     "thin_rows",
+    "with_inputs",
 ]
 
 MAX_TABLE_ROWS = 25  # rows of a printed table: a page, not a data dump
@@ -105,6 +106,14 @@ class Report:
     key_figures: tuple[KeyFigure, ...] = ()
     job: tuple[tuple[str, str], ...] = ()
     appendix: tuple[Section, ...] = ()
+
+
+def with_inputs(report: Report, inputs: Section) -> Report:
+    """The report with its inputs part after the results, before any warnings."""
+    body = list(report.sections)
+    at = len(body) - 1 if body and body[-1].heading == "Warnings" else len(body)
+    body.insert(at, inputs)
+    return replace(report, sections=tuple(body))
 
 
 def thin_rows(count: int, most: int = MAX_TABLE_ROWS) -> list[int]:

@@ -19,6 +19,7 @@ from datetime import UTC, datetime
 from fpdf import FPDF
 
 from service.output.chart_data import RunChart, TractiveForceChart
+from service.output.chart_data_track import PlotChart
 from service.output.letterhead import Letterhead, get_letterhead
 from service.output.model import Report
 from service.output.pdf_blocks import (
@@ -31,6 +32,7 @@ from service.output.pdf_blocks import (
     section_blocks,
 )
 from service.output.pdf_chart import Box, draw_pdf_chart
+from service.output.pdf_chart_track import draw_track_chart
 from service.output.pdf_ink import Ink
 from service.output.pdf_layout import Block, Placed, flow, latin, text_width, wrap
 
@@ -129,7 +131,10 @@ def _title(pdf: Ink, report: Report, width: float, y: float) -> float:
     return y + 1.0
 
 
-def _chart_block(report: Report, chart: TractiveForceChart | RunChart, width: float) -> Block:
+SheetChart = TractiveForceChart | RunChart | PlotChart
+
+
+def _chart_block(report: Report, chart: SheetChart, width: float) -> Block:
     def draw(pdf: Ink, y: float) -> None:
         x = pdf.l_margin
         pdf.set_font("helvetica", "B", 9.5)
@@ -138,7 +143,11 @@ def _chart_block(report: Report, chart: TractiveForceChart | RunChart, width: fl
         pdf.set_font("helvetica", "", 6.5)
         pdf.set_text_color(*GREY)
         pdf.text(x, y + 7.4, latin(chart.subtitle))
-        draw_pdf_chart(pdf, Box(x + 14.0, y + 11.0, width - 22.0, CHART_MM - 24.0), chart)
+        box = Box(x + 14.0, y + 11.0, width - 22.0, CHART_MM - 24.0)
+        if isinstance(chart, PlotChart):
+            draw_track_chart(pdf, box, chart)
+        else:
+            draw_pdf_chart(pdf, box, chart)
         pdf.set_font("helvetica", "", 6.5)
         pdf.set_text_color(*GREY)
         pdf.text(x, y + CHART_MM - 1.5, wrap(pdf, report.chart_caption, width)[0])
@@ -146,9 +155,7 @@ def _chart_block(report: Report, chart: TractiveForceChart | RunChart, width: fl
     return Block(CHART_MM, draw, gap_before=2.0)
 
 
-def _blocks(
-    pdf: Ink, report: Report, chart: TractiveForceChart | RunChart | None, width: float
-) -> list[Block]:
+def _blocks(pdf: Ink, report: Report, chart: SheetChart | None, width: float) -> list[Block]:
     blocks: list[Block] = []
     if report.key_figures:
         blocks.append(key_figure_block(pdf, width, report.key_figures))
@@ -199,7 +206,7 @@ def _draw(pdf: Ink, placed: Placed) -> None:
 
 def render_pdf(
     report: Report,
-    chart: TractiveForceChart | RunChart | None,
+    chart: SheetChart | None,
     paper: str = "a4",
     letterhead: Letterhead | None = None,
 ) -> bytes:

@@ -17,11 +17,12 @@ from starlette.responses import Response
 from service.http.negotiation import inline_disposition, negotiate
 from service.http.openapi import PROBLEM_RESPONSES
 from service.output.chart_data import RunChart, TractiveForceChart
+from service.output.chart_data_track import PlotChart
 from service.output.html import render_html
 from service.output.letterhead import get_letterhead, job_facts
 from service.output.model import Report
 from service.output.pdf import paper_for, render_pdf
-from service.output.png_chart import svg_markup
+from service.output.svg_chart_track import sheet_svg
 from service.output.text import render_text
 from service.schemas.common import Problem
 from service.schemas.job import JobIn
@@ -80,7 +81,7 @@ SHEET_RESPONSES: dict[int | str, dict[str, Any]] = {
     **PROBLEM_RESPONSES,
 }
 
-ChartMaker = Callable[[], TractiveForceChart | RunChart]
+ChartMaker = Callable[[], TractiveForceChart | RunChart | PlotChart | None]
 
 
 async def sheet_response(
@@ -104,7 +105,8 @@ async def sheet_response(
     if media == TEXT:
         content: bytes | str = render_text(report, head)
     elif media == HTML:
-        svg = None if chart is None else svg_markup(chart())
+        drawn = None if chart is None else chart()  # None: nothing to draw after all
+        svg = None if drawn is None else sheet_svg(drawn)
         content = render_html(report, svg, head)
     else:
         paper = paper_for(get_settings().sheet_paper, units.value)

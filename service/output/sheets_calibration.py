@@ -11,7 +11,7 @@ from typing import Any
 import numpy as np
 
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
-from service.output.chart_data import FOOTER, GearSegment, RunChart, RunMark
+from service.output.chart_data_track import PlotChart, PlotSeries
 from service.output.inputs import units_line
 from service.output.model import Column, KeyFigure, Report, Section, Table, fmt, thin_rows
 from service.units import UnitSystem
@@ -133,32 +133,43 @@ def _block_facts(doc: dict[str, Any]) -> tuple[tuple[str, str], ...]:
     )
 
 
-def calibration_chart(doc: dict[str, Any], units: UnitSystem) -> RunChart:
-    """Fitted speed by gear (lines) against the logged samples (diamonds) over time."""
+def calibration_chart(doc: dict[str, Any], units: UnitSystem) -> PlotChart:
+    """The calibrated model's speed (a line per gear) and the logged samples (marks)."""
     tr, lab = doc["trace"], doc["units"]
     t = np.asarray(tr["time"], dtype=np.float64)
     fitted = np.asarray(tr["fitted_speed"], dtype=np.float64)
+    logged = np.asarray(tr["logged_speed"], dtype=np.float64)
     starts = [g["start_time"] for g in doc["gears"][1:]] + [np.inf]
-    segments, lo = [], -np.inf
+    series, lo = [], -np.inf
+    every = max(1, -(-t.size // CHART_MARKS))
+    marked = np.zeros(t.size, dtype=np.bool_)
+    marked[::every] = True
     for g, hi in zip(doc["gears"], starts, strict=True):
         keep = (t >= lo) & (t < hi)
-        if keep.sum() >= 2:
-            segments.append(GearSegment(g["gear"], t[keep], fitted[keep]))
+        if keep.any():
+            series.append(
+                PlotSeries(
+                    str(g["gear"]), t[keep], fitted[keep], t[keep & marked], logged[keep & marked]
+                )
+            )
         lo = hi
-    marks = tuple(
-        RunMark("", float(tr["time"][i]), float(tr["logged_speed"][i]))
-        for i in thin_rows(len(tr["time"]), CHART_MARKS)
-    )
-    ref = doc.get("reference")
-    return RunChart(
-        title="Logged and fitted speed",
-        subtitle=" | ".join([*([f"ref {ref}"] if ref else []), "units " + units.value]),
-        time_label="Time [s]",
-        speed_label=f"Speed [{lab['speed']}]",
-        segments=tuple(segments),
-        shifts=marks,
-        milestones=(),
-        footer=FOOTER,
+    f = doc["fit"]
+    top = float(max(fitted.max(), logged.max())) if t.size else 1.0
+    return PlotChart(
+        title="Pass calibration: logged speed and the calibrated model",
+        subtitle=" | ".join(
+            [
+                *([f"ref {doc['reference']}"] if doc.get("reference") else []),
+                f"{f['samples']} samples",
+                f"residual {f['residual_rms']:.2f} {lab['speed']} RMS ({units.value})",
+            ]
+        ),
+        x_label="Log time [s]",
+        y_label=f"Road speed [{lab['speed']}]",
+        x_range=(min(0.0, float(t[0])), max(float(t[-1]), 1e-3) * 1.03),
+        y_range=(0.0, max(top, 1e-3) * 1.12),
+        series=tuple(series),
+        key="marks: logged speed; line: calibrated model, tagged by gear",
     )
 
 
@@ -219,8 +230,7 @@ def calibration_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         short_caution=SHORT_CAUTION,
         sections=sections,
         cautions=CAUTIONS,
-        chart_caption="Speed against time: the calibrated model by gear (lines, circled "
-        "number: gear) and the logged samples (diamonds, thinned to at most "
-        f"{CHART_MARKS}).",
+        chart_caption="Speed against time: the calibrated model gear by gear (lines) and the "
+        f"logged samples (marks, at most {CHART_MARKS}).",
         key_figures=key,
     )

@@ -16,8 +16,8 @@ from fastapi import APIRouter, Request
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
-from service.output.chart_data import RunChart
-from service.output.model import Report
+from service.output.chart_data_track import PlotChart, coast_down_chart, shift_window_chart
+from service.output.model import Report, Section, with_inputs
 from service.output.sheet_response import (
     SHEET_RESPONSES,
     AppendixQuery,
@@ -31,23 +31,36 @@ from service.output.sheets_choice import (
     speedometer_report,
     sweep_report,
 )
+from service.output.sheets_coast_down import coast_down_inputs, coast_down_report
 from service.output.sheets_shop import chassis_report, dyno_correction_report, log_check_report
+from service.output.sheets_track import (
+    shift_window_inputs,
+    shift_window_report,
+    weather_inputs,
+    weather_report,
+)
 from service.routes import (
     calibration,
     chassis,
+    coastdown,
     comparison,
     dyno,
     final_drive,
     gear_design,
     log_analysis,
+    shift_window,
+    weather,
 )
 from service.schemas.calibration import CalibrationRequest
 from service.schemas.chassis import ChassisConversionRequest
+from service.schemas.coastdown import CoastDownRequest
 from service.schemas.comparison import ComparisonRequest
 from service.schemas.dyno import DynoCorrectionRequest
 from service.schemas.final_drive import FinalDriveSweepRequest
 from service.schemas.gear_design import GearSpacingRequest, SpeedometerRequest
 from service.schemas.log_analysis import LogAnalysisRequest
+from service.schemas.shift_window import ShiftWindowRequest
+from service.schemas.weather import WeatherCorrectionRequest
 from service.units import UnitSystem
 
 __all__ = ["SHEETS", "router"]
@@ -57,7 +70,8 @@ router = APIRouter(prefix="/v1/reports", tags=["reports"])
 
 @dataclass(frozen=True)
 class Sheet:
-    """One sheet endpoint: its path, the JSON handler it prints, and the sheet builder."""
+    """One sheet endpoint: its path, the JSON handler it prints, and the sheet builder;
+    optionally the inputs part read from the request and the chart (request, document)."""
 
     path: str
     name: str
@@ -65,7 +79,8 @@ class Sheet:
     model: type[Any]
     answer: Callable[[Any, None], Awaitable[Response]]
     build: Callable[[dict[str, Any], UnitSystem], Report]
-    chart: Callable[[dict[str, Any], UnitSystem], RunChart] | None = None
+    inputs: Callable[[Any], Section] | None = None
+    chart: Callable[[Any, dict[str, Any]], PlotChart | None] | None = None
 
 
 SHEETS = (
@@ -126,13 +141,43 @@ SHEETS = (
         chassis_report,
     ),
     Sheet(
-        "calibration-pass",
+        "road-load/coast-down",
+        "coast_down",
+        "road load fitted to logged coast-downs",
+        CoastDownRequest,
+        coastdown.create_coast_down_fit,
+        coast_down_report,
+        coast_down_inputs,
+        coast_down_chart,
+    ),
+    Sheet(
+        "shift-window",
+        "shift_window",
+        "time lost against each shift rpm, and the window",
+        ShiftWindowRequest,
+        shift_window.create_shift_window,
+        shift_window_report,
+        shift_window_inputs,
+        lambda _body, doc: shift_window_chart(doc),
+    ),
+    Sheet(
+        "weather-correction",
+        "weather_correction",
+        "density altitude and a slip carried to other weather",
+        WeatherCorrectionRequest,
+        weather.create_weather_correction,
+        weather_report,
+        weather_inputs,
+    ),
+    Sheet(
+        "calibration/pass",
         "pass_calibration",
         "the car fitted to a logged pass",
         CalibrationRequest,
         calibration.create_pass_calibration,
         calibration_report,
-        calibration_chart,
+        None,
+        lambda body, doc: calibration_chart(doc, body.units),
     ),
 )
 
@@ -147,16 +192,19 @@ def _endpoint(sheet: Sheet) -> Callable[..., Awaitable[Response]]:
     ) -> Response:
         answer = await sheet.answer(body, None)
         doc = orjson.loads(bytes(answer.body))
+        report = sheet.build(doc, body.units)
+        if sheet.inputs is not None:
+            report = with_inputs(report, sheet.inputs(body))
         draw = sheet.chart
         return await sheet_response(
             request,
-            sheet.build(doc, body.units),
-            chart=None if draw is None else lambda: draw(doc, body.units),
+            report,
+            chart=None if draw is None else lambda: draw(body, doc),
             fmt=format,
             appendix=appendix,
             job=body.job,
             units=body.units,
-            stem=sheet.path,
+            stem=sheet.path.replace("/", "-"),
         )
 
     endpoint.__annotations__["body"] = sheet.model

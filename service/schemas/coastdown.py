@@ -8,6 +8,7 @@ from pydantic import ConfigDict, Field, model_validator
 
 from core.car.coast_down import MAX_RUNS, MIN_SAMPLES
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
+from service.schemas.job import JobField
 from service.schemas.quantities import AirPressure, AirTemperature, Mass, RoadSpeed
 from service.schemas.vehicle import RoadLoadIn
 
@@ -173,6 +174,7 @@ class CoastDownRequest(UnitsRequest):
         description="Test weather; omitted: the coefficients are not corrected to "
         "reference conditions.",
     )
+    job: JobField
 
 
 class CoefficientOut(ApiModel):

@@ -17,6 +17,7 @@ from service.schemas.common import (
 )
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.quantities import RoadSpeed, RoadSpeedOrZero, Rollout, RunDistance
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
@@ -79,6 +80,7 @@ class ShiftWindowRequest(UnitsRequest):
         le=MAX_POINTS,
         description="Shift rpms tried per gear change, across the usable range.",
     )
+    job: JobField
 
 
 class ShiftWindowOut(ApiModel):

@@ -9,6 +9,7 @@ from pydantic import ConfigDict, Field, model_validator
 from service.schemas.common import ApiModel, NoticeOut, Reference, UnitLabels, UnitsRequest
 from service.schemas.examples import ACCELERATION_RUN_EXAMPLE
 from service.schemas.inputs import DrivetrainIn, EngineIn
+from service.schemas.job import JobField
 from service.schemas.quantities import CellTemperature, RoadSpeed, RunDistance, StationPressure
 from service.schemas.vehicle import LaunchIn, VehicleIn
 
@@ -77,6 +78,7 @@ class WeatherCorrectionRequest(UnitsRequest):
     finish_distance: RunDistance | None = Field(
         None, description="Finish distance [m | ft]; default 1/4 mile."
     )
+    job: JobField
 
     @model_validator(mode="after")
     def _car_for_prediction(self) -> Self:

@@ -135,6 +135,42 @@ def test_report_and_chart_formats_equal_the_http_answer(
     assert target.read_bytes() == r.content
 
 
+@pytest.mark.parametrize(
+    ("command", "route", "demo"),
+    [
+        pytest.param(
+            "coast-down",
+            "/v1/reports/road-load/coast-down",
+            "demo_coastdown_metric.json",
+            id="coast-down",
+        ),
+        pytest.param(
+            "shift-window",
+            "/v1/reports/shift-window",
+            "demo_shift_window_metric.json",
+            id="window",
+        ),
+        pytest.param(
+            "weather", "/v1/reports/weather-correction", "demo_weather_metric.json", id="weather"
+        ),
+    ],
+)
+@pytest.mark.parametrize(("fmt", "accept"), [("text", "text/plain"), ("pdf", "application/pdf")])
+def test_track_sheets_are_formats_of_their_subcommands(
+    api: ApiClient, tmp_path: Any, command: str, route: str, demo: str, fmt: str, accept: str
+) -> None:
+    target = tmp_path / f"sheet.{fmt}"
+    out = invoke(command, str(DATA / demo), "-f", fmt, "-o", str(target))
+    r = api.post(
+        route,
+        content=(DATA / demo).read_bytes(),
+        headers={"content-type": "application/json", "accept": accept},
+    )
+    assert r.status_code == 200, r.text
+    assert out.exit_code == 0, out.stderr
+    assert target.read_bytes() == r.content
+
+
 def test_pdf_report_is_written_to_the_output_file(tmp_path: Any) -> None:
     target = tmp_path / "run.pdf"
     demo = str(DATA / "demo_sedan_run_metric.json")

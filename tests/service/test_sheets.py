@@ -52,7 +52,10 @@ SHEETS: dict[str, tuple[str, int]] = {
     "log-analysis": ("demo_log_request_metric", 1),
     "dyno-correction": ("demo_dyno_correction_metric", 1),
     "chassis-dyno": ("demo_chassis_metric", 1),
-    "calibration-pass": ("demo_calibration_metric", 2),
+    "road-load/coast-down": ("demo_coastdown_metric", 2),
+    "shift-window": ("demo_shift_window_metric", 2),
+    "weather-correction": ("demo_weather_metric", 1),
+    "calibration/pass": ("demo_calibration_metric", 2),
 }
 
 
