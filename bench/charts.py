@@ -1,5 +1,6 @@
-"""Chart and report rendering benchmark: matplotlib import, first render, steady renders,
-and each chart's cost against the computed shift plan it draws, measured side by side.
+"""Chart and report rendering benchmark: import costs, first render, steady renders, each
+chart's cost against the computed shift plan it draws, measured side by side, the PNG's
+compression settings, and matplotlib's PNG of the same chart (how it was made before).
 
 Run with ``python -m bench.charts``. Figures are printed, never asserted: the machine is
 shared, so each line gives the median and the 99th percentile of repeated renders, and the
@@ -10,6 +11,7 @@ reference (as a caller's page sends, so nothing could be answered from a cache).
 from __future__ import annotations
 
 import functools
+import io
 import itertools
 import json
 import subprocess
@@ -34,14 +36,53 @@ def _import_cost(modules: str) -> float:
     return float(out.strip().splitlines()[-1])
 
 
+def _png_settings(chart: object) -> None:
+    """Size and encoding time of the painted chart under other PNG settings: RGB against the
+    palette the writer uses, zlib levels, the optimize flag."""
+    from PIL import Image
+
+    from service.output.png_chart import PNG_COMPRESSION, chart_picture
+
+    picture, palette = chart_picture(chart)  # type: ignore[arg-type]
+    indexed = picture.quantize(palette=palette, dither=Image.Dither.NONE)
+    print(
+        "   PNG settings (encoding only; the writer uses palette, level",
+        PNG_COMPRESSION,
+        end=")\n",
+    )
+    quantize = time_call(
+        lambda: picture.quantize(palette=palette, dither=Image.Dither.NONE), runs=RUNS, warmup=3
+    )
+    print("      map onto the palette           ", quantize)
+    cases = [("palette", indexed, level, False) for level in (1, 3, 6, 9)]
+    cases += [
+        ("palette", indexed, 6, True),
+        ("RGB", picture, 1, False),
+        ("RGB", picture, 3, False),
+    ]
+    for mode, image, level, optimize in cases:
+
+        def save(
+            image: Image.Image = image, level: int = level, optimize: bool = optimize
+        ) -> bytes:
+            out = io.BytesIO()
+            image.save(out, format="PNG", compress_level=level, optimize=optimize)
+            return out.getvalue()
+
+        label = f"{mode} level {level}{' optimize' if optimize else ''}"
+        timing = time_call(save, runs=RUNS // 2, warmup=2)
+        print(f"      {label:<32}", timing, f"  {len(save()) / 1024:.0f} KiB")
+
+
 def main() -> None:
     mpl = "matplotlib.figure, matplotlib.backends.backend_agg, matplotlib.backends.backend_pdf"
     print(f"import matplotlib (figure, Agg, PDF), fresh process: {_import_cost(mpl):.3f} s")
     print(
-        f"import service.output.png_chart and what it needs, fresh process: "
+        f"import service.output.png_chart and what it needs (no matplotlib), fresh process: "
         f"{_import_cost('service.output.png_chart'):.3f} s"
     )
 
+    from bench.matplotlib_chart import matplotlib_png
     from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
     from service.output.chart_data import run_chart, tractive_force_chart
     from service.output.html import render_html
@@ -61,7 +102,10 @@ def main() -> None:
     force = tractive_force_chart(plan)
     t0 = time.perf_counter()
     render_chart(force, ChartFormat.SVG)
-    print(f"first SVG render in the process (fonts loaded): {time.perf_counter() - t0:.3f} s")
+    print(f"first SVG render in the process: {time.perf_counter() - t0:.3f} s")
+    t0 = time.perf_counter()
+    render_chart(force, ChartFormat.PNG)
+    print(f"first PNG render in the process (fonts loaded): {time.perf_counter() - t0:.3f} s")
 
     print(f"tractive-force chart, demo coupe (6 gears), {RUNS} renders each")
     print("   chart data    ", time_call(lambda: tractive_force_chart(plan), runs=RUNS, warmup=3))
@@ -69,6 +113,10 @@ def main() -> None:
         timing = time_call(functools.partial(render_chart, force, fmt), runs=RUNS, warmup=3)
         size = len(render_chart(force, fmt))
         print(f"   {fmt.name:<14}", timing, f"  {size / 1024:.0f} KiB")
+    timing = time_call(functools.partial(matplotlib_png, force), runs=RUNS // 4, warmup=2)
+    size = len(matplotlib_png(force))
+    print("   PNG matplotlib", timing, f"  {size / 1024:.0f} KiB  (before)")
+    _png_settings(force)
 
     run = compute_acceleration_run(sedan)
     speed = run_chart(run)
@@ -104,7 +152,15 @@ def main() -> None:
     )
     png = side_by_side(
         {"plan": plan_request, "png": functools.partial(chart_request, ChartFormat.PNG)},
-        rounds=5,
+        rounds=7,
+        calls=5,
+    )
+    old = side_by_side(
+        {
+            "plan": plan_request,
+            "mpl": lambda: matplotlib_png(tractive_force_chart(compute_shift_plan(fresh()))),
+        },
+        rounds=3,
         calls=3,
     )
     print("demo coupe, each request computed: plan JSON vs the chart of the same plan")
@@ -112,6 +168,8 @@ def main() -> None:
     print("   SVG chart (compute, draw)          ", got["svg"])
     print("   shift plan, in the PNG's run       ", png["plan"])
     print("   PNG chart (compute, draw)          ", png["png"])
+    print("   shift plan, in matplotlib's run    ", old["plan"])
+    print("   matplotlib PNG (compute, draw)     ", old["mpl"])
     print(
         ratio_line(
             "SVG chart / computed shift plan", got["svg"].median / got["plan"].median, "<= 4"
@@ -119,9 +177,14 @@ def main() -> None:
     )
     print(
         ratio_line(
-            "PNG chart / computed shift plan",
-            png["png"].median / png["plan"].median,
-            "as low as SVG's",
+            "PNG chart / computed shift plan", png["png"].median / png["plan"].median, "<= 4"
+        )
+    )
+    print(
+        ratio_line(
+            "matplotlib PNG (before) / computed shift plan",
+            old["mpl"].median / old["plan"].median,
+            "for comparison",
         )
     )
 

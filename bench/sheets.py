@@ -114,10 +114,10 @@ def main() -> None:
 
     logging.getLogger("matplotlib.font_manager").setLevel(logging.ERROR)
 
+    from bench.matplotlib_chart import chart_figure, drawing
     from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
     from service.output.chart_data import run_chart, tractive_force_chart
     from service.output.pdf import render_pdf
-    from service.output.png_chart import chart_figure, drawing
     from service.output.run_report import acceleration_run_report
     from service.output.shift_plan_report import shift_plan_report
     from service.schemas.acceleration import AccelerationRunRequest

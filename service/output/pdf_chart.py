@@ -1,10 +1,9 @@
 """The charts of a PDF sheet drawn as PDF vector paths, straight from the chart records.
 
-The PNG chart (``service.output.png_chart``) goes through matplotlib; a PDF page does
-not need to: its lines, fills and text are PDF operators already, so the same records are drawn
-here in a few hundred path segments, in the same inks, dash patterns, markers and labels, at a
-small fraction of the cost. Tick positions come from matplotlib's ``MaxNLocator`` with the
-same settings as the SVG, so the two pictures share their scales.
+A PDF page's lines, fills and text are PDF operators already, so the chart records are
+drawn here in a few hundred path segments, in the same inks, dash patterns, markers and labels
+as the SVG and PNG charts. Tick positions follow the same "nice step" rule as theirs
+(``service.output.chart_layout.nice_ticks``), so the pictures share their scales.
 """
 
 from __future__ import annotations
@@ -13,12 +12,12 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from matplotlib.ticker import MaxNLocator
 
 from service.output.chart_data import RunChart, TractiveForceChart
+from service.output.chart_layout import nice_ticks
+from service.output.chart_page import ENVELOPE, INKS
 from service.output.pdf_ink import Ink
 from service.output.pdf_layout import text_width
-from service.output.png_chart import ENVELOPE, INKS
 
 __all__ = ["Box", "draw_pdf_chart"]
 
@@ -60,11 +59,6 @@ class _Axes:
         return list(zip(px.tolist(), py.tolist(), strict=True))
 
 
-def _ticks(top: float, bins: int) -> list[float]:
-    values = MaxNLocator(nbins=bins, steps=[1, 2, 2.5, 5, 10]).tick_values(0.0, top)
-    return [float(v) for v in values if 0.0 <= v <= top * (1 + 1e-9)]
-
-
 def _tick_text(value: float) -> str:
     return f"{value:.0f}" if abs(value - round(value)) < 1e-9 else f"{value:g}"
 
@@ -73,7 +67,7 @@ def _frame(pdf: Ink, ax: _Axes, xlabel: str, ylabel: str) -> None:
     box = ax.box
     pdf.set_font("helvetica", "", 7)
     pdf.set_dash_pattern()
-    for value in _ticks(ax.ymax / 1.0, 6):
+    for value in nice_ticks(ax.ymax / 1.0, 6):
         y = float(ax.y(value))
         if value > 0:
             pdf.set_draw_color(185, 185, 185)
@@ -87,7 +81,7 @@ def _frame(pdf: Ink, ax: _Axes, xlabel: str, ylabel: str) -> None:
         text = _tick_text(value)
         pdf.set_text_color(58, 58, 58)
         pdf.text(box.x - 1.8 - text_width(pdf, text), y + 0.9, text)
-    for value in _ticks(ax.xmax, 7):
+    for value in nice_ticks(ax.xmax, 7):
         x = float(ax.x(value))
         pdf.line(x, box.y + box.h, x, box.y + box.h + 1.2)
         text = _tick_text(value)

@@ -6,10 +6,10 @@ from __future__ import annotations
 import numpy as np
 
 from service.output.chart_data_track import PlotChart, PlotSeries, clip_polyline
+from service.output.chart_page import INKS
 from service.output.pdf_chart import Box
 from service.output.pdf_ink import Ink
 from service.output.pdf_layout import latin, text_width
-from service.output.png_chart import INKS
 from service.output.svg_chart_track import free_spot, range_ticks, tick_text
 
 __all__ = ["draw_track_chart"]

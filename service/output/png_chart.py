@@ -1,92 +1,68 @@
-"""Charts drawn with matplotlib (Agg, no GUI, no pyplot): tractive force by gear, a timed run.
+"""Charts as PNG, painted with Pillow from the page laid out by ``service.output.chart_layout``:
+the same layout, inks, dashes, markers, labels and ticks as the SVG, at 120 dpi.
 
-Matplotlib is imported once with the module and the backend fixed to Agg before anything
-draws. Figures are built with ``matplotlib.figure.Figure`` directly (pyplot's global figure
-manager is never touched). Style parameters are applied inside ``drawing()``, which also
-serialises renders: rcParams are process-wide, so two threads must not draw at once.
+Each item of the page is painted in drawing order through its coverage mask
+(``service.output.png_coverage``), so every edge is antialiased. The picture is then mapped
+onto a palette of the chart's inks and their blends with the paper and the envelope tint
+(the colours of those edges), which keeps the look and leaves a third of the bytes to
+compress.
 
-The look is for paper: gears differ by dash pattern and marker as well as by ink, each
-curve carries its gear number in a circle at its end, and fonts are matplotlib's bundled
-DejaVu so the same request gives the same bytes on any machine (the SVG id salt is fixed
-and no dates are written).
+Nothing depends on the clock, the machine's fonts or a text-shaping library, so the same
+chart always gives the same bytes.
 """
 
 from __future__ import annotations
 
 import enum
+import functools
 import io
-import threading
-from collections.abc import Iterator
-from contextlib import contextmanager
-from typing import Any
-
-import matplotlib
-
-matplotlib.use("Agg")
+from collections.abc import Sequence
 
 import numpy as np
-from matplotlib.axes import Axes
-from matplotlib.backends.backend_agg import FigureCanvasAgg
-from matplotlib.figure import Figure
-from matplotlib.ticker import MaxNLocator
+from PIL import Image, ImageDraw
 
+from service.output import chart_page as page
 from service.output.chart_data import RunChart, TractiveForceChart
+from service.output.chart_layout import chart_items
+from service.output.chart_page import (
+    CLIP_BOX,
+    ENVELOPE,
+    HEIGHT_PT,
+    PAPER,
+    WIDTH_PT,
+)
+from service.output.png_coverage import (
+    Mask,
+    box_mask,
+    line_mask,
+    sprite,
+    steep_edges,
+    stroke_mask,
+    text_mask,
+)
 from service.output.svg_chart import svg_chart
 
 __all__ = [
+    "PNG_DPI",
+    "SIZE_IN",
     "ChartFormat",
-    "chart_figure",
-    "draw_chart",
-    "drawing",
-    "gear_style",
+    "chart_picture",
+    "png_chart",
     "render_chart",
     "svg_markup",
 ]
 
-RC: dict[str, Any] = {
-    "svg.hashsalt": "gearwork",
-    "svg.fonttype": "none",  # text stays text: small, searchable, selectable
-    "pdf.fonttype": 42,
-    # drawn in the bundled DejaVu Sans; an SVG viewer without it falls back along the list
-    "font.family": "sans-serif",
-    "font.sans-serif": ["DejaVu Sans", "Verdana", "Arial", "Helvetica"],
-    "font.size": 8.5,
-    "text.parse_math": False,  # a reference with "$" is text, not mathtext
-    "axes.unicode_minus": False,
-    "axes.formatter.limits": (-4, 5),  # tick labels of at most five digits, else an offset
-    "axes.linewidth": 0.8,
-    "axes.edgecolor": "#3a3a3a",
-    "axes.labelcolor": "#1e1e1e",
-    "xtick.color": "#3a3a3a",
-    "ytick.color": "#3a3a3a",
-    "xtick.direction": "out",
-    "ytick.direction": "out",
-    "path.simplify": True,
-}
-SIZE_IN = (7.5, 4.6)
-AXES_RECT = (0.1, 0.115, 0.86, 0.735)
+SIZE_IN = (WIDTH_PT / 72.0, HEIGHT_PT / 72.0)
 PNG_DPI = 120
-PNG_COMPRESSION = 3  # zlib level: most of level 6's size for a third of its time
-PAPER = "#ffffff"
-ENVELOPE = "#ece6dc"  # warm tint under the best-gear envelope
-INKS = ("#14213d", "#9a3b1b", "#23645a", "#5c3470", "#5f5514", "#2f4f86")
-DASHES: tuple[Any, ...] = (
-    "-",
-    (0, (7.0, 2.2)),
-    (0, (1.6, 1.8)),
-    (0, (7.0, 2.0, 1.6, 2.0)),
-    (0, (3.6, 1.8)),
-    (0, (10.0, 2.0, 1.6, 2.0, 1.6, 2.0)),
-)
-MARKERS = ("o", "s", "^", "D", "v", "P")
-SHIFT_MARKER: dict[str, Any] = {
-    "marker": "D",
-    "markersize": 4.6,
-    "markerfacecolor": "#111111",
-    "markeredgecolor": PAPER,
-    "markeredgewidth": 0.7,
-}
-_LOCK = threading.Lock()
+PNG_COMPRESSION = 1  # zlib level: see bench/charts.py for size against time
+PX = PNG_DPI / 72.0  # pixels per point
+RAMP = 12  # blend steps of an ink into the paper (half as many into the envelope tint)
+BAND = 32  # rows of a large mask painted at a time
+SPARSE = 40_000  # pixels of a mask above which it is painted band by band
+SMALL = 1_000  # pixels of a mask below which a colour is painted through it directly
+_ANCHORS = {"start": "ls", "middle": "ms", "end": "rs"}
+
+RGB = tuple[int, int, int]
 
 
 class ChartFormat(enum.StrEnum):
@@ -96,242 +72,187 @@ class ChartFormat(enum.StrEnum):
     PNG = "image/png"
 
 
-@contextmanager
-def drawing(overrides: dict[str, Any] | None = None) -> Iterator[None]:
-    """Hold the render lock with the house style (and ``overrides``) in force; rcParams
-    are process-wide, so renders take turns."""
-    merged: dict[Any, Any] = {**RC, **(overrides or {})}
-    with _LOCK, matplotlib.rc_context(merged):
-        yield
+@functools.cache
+def _rgb(ink: str) -> RGB:
+    return int(ink[1:3], 16), int(ink[3:5], 16), int(ink[5:7], 16)
 
 
-def gear_style(gear: int) -> dict[str, Any]:
-    """Line style of a gear (1 for first): ink, dash pattern and marker all differ, so the
-    gears stay apart in greyscale; gears 7-12 repeat 1-6 with filled markers."""
-    i = gear - 1
-    ink = INKS[i % len(INKS)]
-    return {
-        "color": ink,
-        "linestyle": DASHES[i % len(DASHES)],
-        "marker": MARKERS[i % len(MARKERS)],
-        "markerfacecolor": PAPER if i < len(MARKERS) else ink,
-        "markeredgecolor": ink,
-        "markersize": 3.6,
-        "linewidth": 1.5,
-    }
+def _put(picture: Image.Image, rgb: RGB, left: int, top: int, mask: Image.Image) -> None:
+    box = (left, top, left + mask.width, top + mask.height)
+    if mask.width * mask.height <= SMALL:
+        picture.paste(rgb, box, mask)
+    else:  # Pillow blends an image through a mask about twice as fast as a colour
+        picture.paste(Image.new("RGB", mask.size, rgb), box, mask)
 
 
-def _label_gear(ax: Axes, gear: int, x: float, y: float, dx: float, dy: float) -> None:
-    ink = INKS[(gear - 1) % len(INKS)]
-    ax.annotate(
-        str(gear),
-        (x, y),
-        xytext=(dx, dy),
-        textcoords="offset points",
-        ha="center",
-        va="center",
-        fontsize=7,
-        fontweight="bold",
-        color=ink,
-        bbox={"boxstyle": "circle,pad=0.22", "fc": PAPER, "ec": ink, "lw": 0.8},
-        zorder=6,
-    )
+def _paint(picture: Image.Image, ink: str, mask: Mask | None) -> None:
+    """Paint ``ink`` through ``mask``; a large mask band by band, each cut to where it
+    covers anything (a curve's box is mostly empty, and painting costs by the pixel)."""
+    if mask is None:
+        return
+    m, rgb = mask.image, _rgb(ink)
+    if m.width * m.height <= SPARSE:
+        _put(picture, rgb, mask.left, mask.top, m)
+        return
+    for y in range(0, m.height, BAND):
+        band = m.crop((0, y, m.width, min(y + BAND, m.height)))
+        inked = band.getbbox()
+        if inked is not None:
+            _put(picture, rgb, mask.left + inked[0], mask.top + y + inked[1], band.crop(inked))
 
 
-def _frame(ax: Axes, xlabel: str, ylabel: str) -> None:
-    # few ticks: each one costs three lines and two texts to build and draw
-    ax.xaxis.set_major_locator(MaxNLocator(nbins=7, steps=[1, 2, 2.5, 5, 10]))
-    ax.yaxis.set_major_locator(MaxNLocator(nbins=6, steps=[1, 2, 2.5, 5, 10]))
-    ax.spines["top"].set_visible(False)
-    ax.spines["right"].set_visible(False)
-    ax.grid(True, axis="y", color="#b9b9b9", linewidth=0.5, linestyle=(0, (1.0, 2.0)))
-    ax.set_axisbelow(True)
-    ax.set_xlabel(xlabel)
-    ax.set_ylabel(ylabel)
-
-
-def _envelope(chart: TractiveForceChart, top_speed: float) -> tuple[Any, Any]:
-    grid = np.linspace(0.0, top_speed, 161)
-    each = np.stack(
-        [np.interp(grid, g.speed, g.force, left=np.nan, right=np.nan) for g in chart.gears]
-    )
-    defined = ~np.isnan(each).all(axis=0)
-    best = np.where(defined, np.nanmax(np.where(np.isnan(each), -np.inf, each), axis=0), 0.0)
-    return grid, np.maximum(best, 0.0)
-
-
-def _mark_drops(
-    ax: Axes, x: list[float], y: list[float], labels: list[str], label_y: float, ground: str
+def _line(
+    picture: Image.Image, x1: float, y1: float, x2: float, y2: float, s: page.Stroke
 ) -> None:
-    """Points with a dotted drop to the axis and their label standing along it."""
-    drop_x = np.repeat(np.asarray(x), 3)
-    drop_y = np.column_stack([np.zeros(len(y)), y, np.full(len(y), np.nan)]).ravel()
-    ax.plot(drop_x, drop_y, color="#555555", linewidth=0.7, linestyle=(0, (1.0, 1.6)), zorder=1)
-    for xi, text in zip(x, labels, strict=True):
-        ax.text(
-            xi,
-            label_y,
-            text,
-            rotation=90,
-            ha="right",
-            va="bottom",
-            fontsize=6.5,
-            color="#333333",
-            zorder=4,
-            bbox={"boxstyle": "square,pad=0.1", "fc": ground, "ec": "none", "alpha": 0.85},
+    dash = tuple(d * PX for d in s.dash)
+    _paint(picture, s.ink, line_mask(x1 * PX, y1 * PX, x2 * PX, y2 * PX, s.width * PX, dash))
+
+
+def _polyline(picture: Image.Image, item: page.Polyline) -> None:
+    s = item.stroke
+    left, top, right, bottom = CLIP_BOX
+    clip = (left * PX, top * PX, right * PX, bottom * PX) if item.clipped else None
+    dash = tuple(d * PX for d in s.dash)
+    _paint(picture, s.ink, stroke_mask(item.x * PX, item.y * PX, s.width * PX, dash, clip))
+
+
+def _stamp(
+    picture: Image.Image, kind: str, x: float, y: float, size: float, face: str, edge: page.Stroke
+) -> None:
+    s = sprite(kind, x * PX, y * PX, size * PX, face, edge.ink, edge.width * PX)
+    box = (s.left, s.top, s.left + s.pixels.width, s.top + s.pixels.height)
+    picture.paste(s.pixels, box, s.coverage)
+
+
+def _fill(picture: Image.Image, draw: ImageDraw.ImageDraw, item: page.Polygon) -> None:
+    """A filled outline: a plain fill, its near-vertical edges (where a plain fill shows a
+    staircase) smoothed by a pixel-wide antialiased line of the fill along them."""
+    x, y = item.x * PX, item.y * PX
+    # corners only: points on a straight run between their neighbours add nothing
+    bend = (np.roll(x, -1) - x) * (y - np.roll(y, 1)) != (np.roll(y, -1) - y) * (x - np.roll(x, 1))
+    x, y = x[bend], y[bend]
+    ink = _rgb(item.fill)
+    draw.polygon(list(zip((x - 0.5).tolist(), (y - 0.5).tolist(), strict=True)), fill=ink)
+    for i in steep_edges(x, y):
+        j = (i + 1) % x.size
+        _paint(picture, item.fill, stroke_mask(x[[i, j]], y[[i, j]], 1.0, (), None))
+
+
+def _paint_item(picture: Image.Image, draw: ImageDraw.ImageDraw, item: page.Item) -> None:
+    if isinstance(item, page.Text):
+        mask = text_mask(
+            item.text,
+            item.x * PX,
+            item.y * PX,
+            item.size * PX,
+            _ANCHORS[item.anchor],
+            bold=item.bold,
+            italic=item.italic,
+            rotated=item.rotated,
         )
-
-
-def draw_tractive_force(ax: Axes, chart: TractiveForceChart) -> None:
-    """Force per gear over road speed, the best-gear envelope, shifts, road load, grip."""
-    top_speed = max(float(g.speed[-1]) for g in chart.gears)
-    top_force = max(float(g.force.max()) for g in chart.gears)
-    if chart.traction_limit is not None and chart.traction_limit < 1.6 * top_force:
-        top_force = max(top_force, chart.traction_limit)
-    top_speed, top_force = max(top_speed, 1e-3), max(top_force, 1e-3)
-    grid, best = _envelope(chart, top_speed)
-    ax.fill_between(grid, 0.0, best, color=ENVELOPE, linewidth=0, zorder=0.5)
-    if chart.road_load is not None:
-        v, f = chart.road_load
-        ax.plot(v, f, color="#8f8f8f", linewidth=2.8, solid_capstyle="butt", zorder=2)
-        k = int(np.searchsorted(f, 0.55 * top_force)) if f[-1] > 0.55 * top_force else -1
-        ax.annotate(
-            "road load",
-            (float(v[k]), float(f[k])),
-            xytext=(-4, 4),
-            textcoords="offset points",
-            ha="right",
-            fontsize=7,
-            color="#5e5e5e",
-            style="italic",
-            annotation_clip=True,
-        )
-    if chart.traction_limit is not None and chart.traction_limit < 1.6 * top_force:
-        ax.axhline(chart.traction_limit, color="#4a4a4a", linewidth=0.9, linestyle=(0, (5, 3)))
-        ax.text(
-            1.07 * top_speed,
-            chart.traction_limit,
-            "traction limit ",
-            ha="right",
-            va="bottom",
-            fontsize=7,
-            color="#4a4a4a",
-            style="italic",
-        )
-    for n, g in enumerate(chart.gears):
-        style = gear_style(g.gear)
-        ax.plot(g.speed, g.force, markevery=(3 + 2 * (n % 5), 14), zorder=3, **style)
-        _label_gear(ax, g.gear, float(g.speed[-1]), float(g.force[-1]), 8.0, 4.0)
-    if chart.shifts:
-        x = [s.speed for s in chart.shifts]
-        y = [s.force_before for s in chart.shifts]
-        labels = [f"{s.from_gear}-{s.to_gear} {s.rpm:.0f} rpm" for s in chart.shifts]
-        _mark_drops(ax, x, y, labels, 0.015 * top_force, ENVELOPE)
-        ax.plot(x, y, linestyle="none", zorder=5, **SHIFT_MARKER)
-    ax.set_xlim(0.0, top_speed * 1.07)
-    ax.set_ylim(0.0, top_force * 1.12)
-    _frame(ax, chart.speed_label, chart.force_label)
-    ax.text(
-        0.995,
-        0.985,
-        "circled number: gear; diamond: shift point",
-        transform=ax.transAxes,
-        ha="right",
-        va="top",
-        fontsize=6.5,
-        color="#555555",
-    )
-
-
-def draw_run(ax: Axes, chart: RunChart) -> None:
-    """Road speed over time by gear, the shifts and the timed distances."""
-    top_time = max(max(float(s.time[-1]) for s in chart.segments), 1e-3)
-    top_speed = max(max(float(s.speed.max()) for s in chart.segments), 1e-3)
-    for n, seg in enumerate(chart.segments):
-        style = gear_style(seg.gear)
-        ax.plot(seg.time, seg.speed, markevery=(2 + n % 4, 12), zorder=3, **style)
-        mid = seg.time.size // 2
-        _label_gear(ax, seg.gear, float(seg.time[mid]), float(seg.speed[mid]), -7.0, 8.0)
-    if chart.milestones:
-        _mark_drops(
-            ax,
-            [m.time for m in chart.milestones],
-            [m.speed for m in chart.milestones],
-            [m.label for m in chart.milestones],
-            0.015 * top_speed,
-            PAPER,
-        )
-    if chart.shifts:
-        ax.plot(
-            [s.time for s in chart.shifts],
-            [s.speed for s in chart.shifts],
-            linestyle="none",
-            zorder=5,
-            **SHIFT_MARKER,
-        )
-        for s in chart.shifts:
-            ax.annotate(
-                s.label,
-                (s.time, s.speed),
-                xytext=(5, -4),
-                textcoords="offset points",
-                ha="left",
-                va="top",
-                fontsize=6.5,
-                color="#333333",
-            )
-    ax.set_xlim(0.0, top_time * 1.03)
-    ax.set_ylim(0.0, top_speed * 1.12)
-    _frame(ax, chart.time_label, chart.speed_label)
-
-
-def draw_chart(ax: Axes, chart: TractiveForceChart | RunChart) -> None:
-    """Draw either chart into an existing axes (the PDF page places its own)."""
-    if isinstance(chart, TractiveForceChart):
-        draw_tractive_force(ax, chart)
+        _paint(picture, item.fill, mask)
+    elif isinstance(item, page.Polyline):
+        _polyline(picture, item)
+    elif isinstance(item, page.Marker):
+        _stamp(picture, item.kind, item.x, item.y, item.size, item.fill, item.edge)
+    elif isinstance(item, page.Circle):
+        _stamp(picture, "O", item.x, item.y, 2.0 * item.r, item.fill, item.edge)
+    elif isinstance(item, page.Polygon):
+        _fill(picture, draw, item)
+    elif isinstance(item, page.Line):
+        _line(picture, item.x1, item.y1, item.x2, item.y2, item.stroke)
+    elif isinstance(item, page.LineGroup):
+        for line in item.lines:
+            _line(picture, *line, item.stroke)
+    elif isinstance(item, page.Frame):
+        _line(picture, item.left, item.top, item.left, item.foot, item.stroke)
+        _line(picture, item.left, item.foot, item.right, item.foot, item.stroke)
+        for line in item.ticks:
+            _line(picture, *line, item.stroke)
     else:
-        draw_run(ax, chart)
+        mask = box_mask(item.x * PX, item.y * PX, item.w * PX, item.h * PX, item.opacity)
+        _paint(picture, item.fill, mask)
 
 
-def chart_figure(chart: TractiveForceChart | RunChart) -> Figure:
-    """A stand-alone figure: title block, the chart, a footer. Call inside ``drawing()``."""
-    fig = Figure(figsize=SIZE_IN, dpi=100, facecolor=PAPER)
-    FigureCanvasAgg(fig)
-    fig.text(0.1, 0.955, chart.title, fontsize=12, fontweight="bold", color="#14213d")
-    fig.text(0.1, 0.905, chart.subtitle, fontsize=7.5, color="#4d4d4d")
-    fig.text(0.99, 0.012, chart.footer, ha="right", fontsize=6.5, color="#6b6b6b")
-    ax = fig.add_axes(AXES_RECT)
-    draw_chart(ax, chart)
-    return fig
+def _blends(ink: RGB, ground: RGB, steps: int) -> list[RGB]:
+    """``ink`` faded into ``ground`` in ``steps`` equal steps, the ground itself left out."""
+    return [
+        (
+            round(ink[0] + (ground[0] - ink[0]) * i / steps),
+            round(ink[1] + (ground[1] - ink[1]) * i / steps),
+            round(ink[2] + (ground[2] - ink[2]) * i / steps),
+        )
+        for i in range(1, steps)
+    ]
 
 
-def _save(fig: Figure, fmt: ChartFormat) -> bytes:
+def _near(a: RGB, b: RGB) -> int:
+    return (a[0] - b[0]) ** 2 + (a[1] - b[1]) ** 2 + (a[2] - b[2]) ** 2
+
+
+@functools.lru_cache(maxsize=16)
+def _palette(inks: frozenset[str]) -> Image.Image:
+    """The chart's inks, then greys and each ink's blends into the paper and into the
+    envelope tint (the colours of antialiased edges and text), at most 256 entries.
+
+    Pillow maps a colour to the entry nearest its value rounded down to a multiple of four
+    in each channel, so a blend nearer than the ink itself to an ink's rounded value is left
+    out: every flat ink maps to itself."""
+    flats = sorted({_rgb(ink) for ink in inks})
+    paper, tint = _rgb(PAPER), _rgb(ENVELOPE)
+    blends = [(v, v, v) for v in range(0, 256, 8)]
+    for ink in flats:
+        if len(set(ink)) > 1:  # a neutral ink on the paper is among the greys
+            blends += _blends(ink, paper, RAMP)
+        if ink != tint:
+            blends += _blends(ink, tint, RAMP // 2)
+    corners = [((r & ~3, g & ~3, b & ~3), (r, g, b)) for r, g, b in flats]
+    entries = dict.fromkeys(flats)
+    for blend in blends:
+        if all(_near(blend, corner) > _near(ink, corner) for corner, ink in corners):
+            entries.setdefault(blend)
+    palette = Image.new("P", (1, 1))
+    palette.putpalette([v for rgb in list(entries)[:256] for v in rgb])
+    return palette
+
+
+def _inks(items: Sequence[page.Item]) -> frozenset[str]:
+    found = {PAPER}
+    for item in items:
+        if isinstance(item, (page.Polyline, page.Line, page.LineGroup, page.Frame)):
+            found.add(item.stroke.ink)
+        elif isinstance(item, (page.Marker, page.Circle)):
+            found.update((item.fill, item.edge.ink))
+        elif isinstance(item, (page.Polygon, page.Rect, page.Text)):
+            found.add(item.fill)
+    return frozenset(found)
+
+
+def chart_picture(chart: TractiveForceChart | RunChart) -> tuple[Image.Image, Image.Image]:
+    """The chart painted in RGB at 120 dpi, and the palette it is written in."""
+    items = chart_items(chart)
+    picture = Image.new("RGB", (round(WIDTH_PT * PX), round(HEIGHT_PT * PX)), _rgb(PAPER))
+    draw = ImageDraw.Draw(picture)
+    for item in items:
+        _paint_item(picture, draw, item)
+    return picture, _palette(_inks(items))
+
+
+def png_chart(chart: TractiveForceChart | RunChart) -> bytes:
+    """The chart as a PNG picture (8-bit palette, 120 dpi), the same bytes for the same chart."""
+    picture, palette = chart_picture(chart)
+    indexed = picture.quantize(palette=palette, dither=Image.Dither.NONE)
     out = io.BytesIO()
-    if fmt is ChartFormat.SVG:
-        fig.savefig(out, format="svg", metadata={"Date": None, "Creator": "gearwork"})
-    else:
-        fig.savefig(
-            out,
-            format="png",
-            dpi=PNG_DPI,
-            metadata={"Software": None},
-            pil_kwargs={"compress_level": PNG_COMPRESSION},
-        )
+    indexed.save(out, format="PNG", compress_level=PNG_COMPRESSION, dpi=(PNG_DPI, PNG_DPI))
     return out.getvalue()
 
 
 def render_chart(chart: TractiveForceChart | RunChart, fmt: ChartFormat) -> bytes:
-    """The chart as SVG or PNG bytes, the same bytes for the same chart.
-
-    SVG is written directly by ``service.output.svg_chart`` (the same page without a matplotlib
-    figure, about 1/30 of its cost); PNG is drawn by matplotlib's Agg."""
-    if fmt is ChartFormat.SVG:
-        return svg_chart(chart)
-    with drawing():
-        return _save(chart_figure(chart), fmt)
+    """The chart as SVG or PNG bytes, the same bytes for the same chart."""
+    return svg_chart(chart) if fmt is ChartFormat.SVG else png_chart(chart)
 
 
 def svg_markup(chart: TractiveForceChart | RunChart) -> str:
     """The chart as an ``<svg>`` element to inline in HTML (no XML prolog or doctype)."""
-    text = render_chart(chart, ChartFormat.SVG).decode("utf-8")
+    text = svg_chart(chart).decode("utf-8")
     return text[text.index("<svg") :]

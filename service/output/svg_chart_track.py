@@ -14,15 +14,13 @@ import numpy as np
 
 from service.output.chart_data import RunChart, TractiveForceChart
 from service.output.chart_data_track import PlotChart, PlotSeries, clip_polyline
-from service.output.png_chart import svg_markup
-from service.output.svg_chart import (
+from service.output.chart_page import (
     AX_H,
     AX_W,
     AX_X,
     AX_Y,
     CHAR_EM,
     DASHES,
-    FONT,
     HEIGHT_PT,
     INKS,
     LINE_WIDTH,
@@ -30,10 +28,9 @@ from service.output.svg_chart import (
     MARKERS,
     PAPER,
     WIDTH_PT,
-    _marker,
-    _n,
-    _text,
 )
+from service.output.png_chart import svg_markup
+from service.output.svg_chart import FONT, _marker, _n, _text
 
 __all__ = ["free_spot", "range_ticks", "sheet_svg", "tick_text", "track_svg"]
 

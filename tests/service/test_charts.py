@@ -13,7 +13,8 @@ from numpy.testing import assert_allclose
 
 from service.mapping.calculations import compute_acceleration_run, compute_shift_plan
 from service.output.chart_data import run_chart, tractive_force_chart
-from service.output.png_chart import PNG_DPI, SIZE_IN, ChartFormat, gear_style, render_chart
+from service.output.chart_page import gear_look
+from service.output.png_chart import PNG_DPI, SIZE_IN, ChartFormat, render_chart
 from service.schemas.acceleration import AccelerationRunRequest
 from service.schemas.shift_plan import ShiftPlanRequest
 from tests.conftest import ApiClient, load_demo
@@ -111,10 +112,7 @@ def test_road_load_is_drawn_in_the_callers_units() -> None:
 
 def test_gears_differ_by_more_than_colour() -> None:
     # greyscale print: dash pattern, marker and fill must tell all twelve gears apart
-    looks = {
-        (str(s["linestyle"]), s["marker"], s["markerfacecolor"] == s["color"])
-        for s in (gear_style(g) for g in range(1, 13))
-    }
+    looks = {(look.dash, look.marker, look.filled) for look in map(gear_look, range(1, 13))}
     assert len(looks) == 12
 
 

@@ -12,7 +12,8 @@ from numpy.testing import assert_allclose
 
 from service.mapping.calculations import compute_shift_plan
 from service.output.chart_data import tractive_force_chart
-from service.output.svg_chart import nice_ticks, svg_chart
+from service.output.chart_layout import nice_ticks
+from service.output.svg_chart import svg_chart
 from service.schemas.shift_plan import ShiftPlanRequest
 
 DATA = Path(__file__).resolve().parents[1] / "data"
