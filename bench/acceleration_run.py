@@ -29,9 +29,9 @@ from core import (
     simulate_run,
 )
 from core.runs.batch import batch_runs
+from core.runs.drive_model import DriveModel
 from core.runs.milestones import STANDARD_DISTANCES
 from core.runs.report import QUARTER_MILE_M
-from core.runs.simulate import DriveModel
 from service.mapping.calculations import SEARCH_BUDGET
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire
 from service.mapping.vehicle import build_launch, build_vehicle

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import math
 import os
 import re
 import shutil
@@ -28,6 +29,7 @@ __all__ = [
     "median_wrk",
     "ratio_line",
     "serve",
+    "server_cpu",
     "side_by_side",
     "time_call",
     "wrk",
@@ -177,6 +179,7 @@ def serve(workers: int = 1, env: dict[str, str] | None = None) -> Iterator[str]:
         env=env,
     )
     base = f"http://127.0.0.1:{port}"
+    _SERVERS[base] = proc.pid
     try:
         deadline = time.monotonic() + 60.0  # a loaded machine can take a while to import
         while True:
@@ -191,6 +194,45 @@ def serve(workers: int = 1, env: dict[str, str] | None = None) -> Iterator[str]:
     finally:
         proc.terminate()
         proc.wait(timeout=10)
+        _SERVERS.pop(base, None)
+
+
+_SERVERS: dict[str, int] = {}  # base URL -> pid of the server started by serve()
+
+
+def _cpu_ticks(pid: int) -> tuple[int, int]:
+    """(parent pid, user + system clock ticks) of a live process, from /proc."""
+    with open(f"/proc/{pid}/stat") as f:
+        fields = f.read().rsplit(")", 1)[1].split()
+    return int(fields[1]), int(fields[11]) + int(fields[12])
+
+
+def server_cpu(base: str) -> Callable[[], float]:
+    """A clock of the CPU seconds used so far by the server at ``base`` (started by
+    :func:`serve`) and its worker processes, read from /proc (Linux). CPU time of the
+    server alone: the load generator and other work on a shared machine do not count."""
+    root = _SERVERS[base]
+    tick = os.sysconf("SC_CLK_TCK")
+
+    def clock() -> float:
+        family, found = {root}, True
+        stats = {}
+        for entry in os.listdir("/proc"):
+            if entry.isdigit():
+                try:
+                    stats[int(entry)] = _cpu_ticks(int(entry))
+                except OSError:  # the process ended meanwhile
+                    continue
+        while found:
+            found = False
+            for pid, (parent, _) in stats.items():
+                if parent in family and pid not in family:
+                    family.add(pid)
+                    found = True
+        total = sum(stats[pid][1] for pid in family if pid in stats)
+        return total / tick
+
+    return clock
 
 
 @dataclass(frozen=True)
@@ -201,11 +243,13 @@ class WrkResult:
     p50_ms: float
     p99_ms: float
     errors: int
+    server_cpu_ms: float = math.nan  # server CPU per request, when measured [ms]
 
     def __str__(self) -> str:
+        cpu = "" if math.isnan(self.server_cpu_ms) else f"   CPU {self.server_cpu_ms:6.3f} ms/req"
         return (
             f"{self.requests_per_s:9.0f} req/s   p50 {self.p50_ms:7.2f} ms   "
-            f"p99 {self.p99_ms:7.2f} ms   errors {self.errors}"
+            f"p99 {self.p99_ms:7.2f} ms   errors {self.errors}{cpu}"
         )
 
 
@@ -232,12 +276,19 @@ end
 
 
 def wrk(
-    url: str, *, body: bytes | None = None, seconds: int = 8, connections: int = 16
+    url: str,
+    *,
+    body: bytes | None = None,
+    seconds: int = 8,
+    connections: int = 16,
+    cpu: Callable[[], float] | None = None,
 ) -> WrkResult:
     """Load ``url`` with wrk (one thread, keep-alive) and parse its figures.
 
     Where the body holds ``VARY`` each request replaces it with its own number, so every
-    body differs and a result cache never answers."""
+    body differs and a result cache never answers. With ``cpu`` (a clock of the server's
+    CPU seconds, :func:`server_cpu`) the server's CPU time per answered request is
+    reported too; the server is first left to finish what an earlier run left in flight."""
     exe = shutil.which("wrk")
     if exe is None:
         raise SystemExit("wrk not found: apt-get install wrk")
@@ -249,35 +300,52 @@ def wrk(
     with tempfile.TemporaryDirectory() as tmp:
         script = Path(tmp) / "req.lua"
         script.write_text(lua)
+        if cpu is not None:
+            time.sleep(0.5)  # requests a previous run left in flight are answered by now
+            cpu0 = cpu()
         done = subprocess.run(
             [exe, "-t1", f"-c{connections}", f"-d{seconds}s", "-s", str(script), url],
             capture_output=True,
             text=True,
             check=False,
         )
+        cpu_s = cpu() - cpu0 if cpu is not None else math.nan
     if done.returncode != 0:
         raise SystemExit(f"wrk failed on {url}: {done.stdout[-300:]} {done.stderr[-300:]}")
     out = done.stdout
     rps = float(re.search(r"Requests/sec:\s+([\d.]+)", out).group(1))  # type: ignore[union-attr]
     stats = json.loads(out[out.index("JSON ") + 5 :].splitlines()[0])
-    return WrkResult(rps, stats["p50"], stats["p99"], int(stats["non2xx"]) + int(stats["errors"]))
+    answered = int(re.search(r"(\d+) requests in", out).group(1))  # type: ignore[union-attr]
+    return WrkResult(
+        rps,
+        stats["p50"],
+        stats["p99"],
+        int(stats["non2xx"]) + int(stats["errors"]),
+        cpu_s * 1e3 / max(answered, 1),
+    )
 
 
 def median_wrk(
-    runs: dict[str, tuple[str, bytes | None]], *, repeats: int = 3, seconds: int = 3
+    runs: dict[str, tuple[str, bytes | None]],
+    *,
+    repeats: int = 3,
+    seconds: int = 3,
+    cpu: Callable[[], float] | None = None,
 ) -> dict[str, WrkResult]:
     """wrk runs of several targets, interleaved ``repeats`` times; per target the median
-    throughput, p50 and p99 over the repeats (errors summed)."""
+    throughput, p50, p99 and (with ``cpu``) server CPU per request over the repeats
+    (errors summed)."""
     got: dict[str, list[WrkResult]] = {k: [] for k in runs}
     for _ in range(repeats):
         for name, (url, body) in runs.items():
-            got[name].append(wrk(url, body=body, seconds=seconds))
+            got[name].append(wrk(url, body=body, seconds=seconds, cpu=cpu))
     return {
         k: WrkResult(
             float(np.median([r.requests_per_s for r in v])),
             float(np.median([r.p50_ms for r in v])),
             float(np.median([r.p99_ms for r in v])),
             sum(r.errors for r in v),
+            float(np.median([r.server_cpu_ms for r in v])),
         )
         for k, v in got.items()
     }

@@ -30,9 +30,9 @@ from core.choice.batch_drive import batch_top_speed
 from core.choice.sweep import sweep_final_drives
 from core.choice.sweep_spec import SWEEP_DISTANCES, SWEEP_SPEEDS, SweepObjective
 from core.runs.batch import batch_runs
-from core.runs.milestones import FOOT_M
+from core.runs.drive_model import DriveModel, drive_model
 from core.runs.report import QUARTER_MILE_M, run_report
-from core.runs.simulate import DriveModel, drive_model
+from core.units import FOOT_M
 from service.app import app
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire
 from service.mapping.vehicle import build_launch, build_vehicle

@@ -7,7 +7,9 @@ Four families, each timed in-process at sizes up to the service's cap: curve poi
 to 1000, or the cap when it is lower) and samples of a logged pass (up to the cap). The
 sizes of a family are timed interleaved round by round (medians of every call), and each
 line prints the cost relative to the smallest size and the growth exponent k of
-cost ~ size^k from the previous size (1 is linear). Figures are printed, never asserted.
+cost ~ size^k from the previous size (1 is linear). Sweep candidates are timed twice: the
+whole sweep up to the service's cap, and its batched runs and top speeds up to 1000.
+Figures are printed, never asserted.
 """
 
 from __future__ import annotations
@@ -99,6 +101,30 @@ def sweep_candidates() -> None:
     _report("final-drive sweep (core), demo sedan, by candidates", "candidates", sizes, fns, 3, 1)
     if over:
         print(f"   {', '.join(map(str, over))} candidates: above the service's cap of {cap}")
+    batched_candidates(model)
+
+
+def batched_candidates(model: Any) -> None:
+    """The sweep's own integration (every candidate's runs and top speed, one batch) up to
+    1000 candidates: the part of a sweep that grows with them, past the service's cap."""
+    from core import shift_plan as plan_of
+    from core.choice.batch_drive import batch_top_speed
+    from core.choice.sweep_spec import SWEEP_DISTANCES, SWEEP_SPEEDS
+    from core.runs.batch import batch_runs
+
+    plan = plan_of(model.curve, model.drivetrain, model.tire, rev_limit_rpm=model.rev_limit_rpm)
+    shifts = np.array([s.shift_rpm for s in plan.shifts])
+    fns: dict[int, Callable[[], object]] = {}
+
+    def batch(ratios: np.ndarray[Any, Any]) -> object:
+        runs = batch_runs(model, ratios, shifts, distances=SWEEP_DISTANCES, speeds=SWEEP_SPEEDS)
+        return runs, batch_top_speed(model, ratios)
+
+    for n in SWEEP_SIZES:
+        ratios = np.linspace(2.5, 4.5, n) if n > 1 else np.array([3.5])
+        fns[n] = functools.partial(batch, ratios)
+    title = "final-drive candidates batched (core runs + top speeds), demo sedan"
+    _report(title, "candidates", list(SWEEP_SIZES), fns, 3, 1)
 
 
 def log_samples() -> None:

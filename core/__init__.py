@@ -4,514 +4,206 @@ No web framework, no I/O, no module state. Functions take floats, NumPy arrays o
 dataclasses and return frozen dataclasses.
 """
 
-from core.air.altimeter import (
-    station_pressure_from_altimeter_pa,
-)
-from core.air.atmosphere import (
-    AirState,
-    air_density_kg_m3,
-    air_state,
-    saturation_vapour_pressure_pa,
-    standard_pressure_pa,
-)
-from core.air.weather import (
-    SlipPrediction,
-    Weather,
-    WeatherAir,
-    density_altitude_m,
-    predict_slip,
-    weather_air,
-)
-from core.car.coast_down import (
-    CoastDownFit,
-    CoastDownRun,
-    CoastDownRunFit,
-    ReferenceCorrection,
-    TravelDirection,
-    coast_down_speed,
-    fit_coast_down,
-)
-from core.car.gradeability import (
-    MAX_GRADE_ANGLE_DEG,
-    Gradeability,
-    GradeLimit,
-    gradeability,
-    steepest_grade_rad,
-)
-from core.car.inertia import (
-    equivalent_mass_kg,
-    mass_factor,
-    rotating_mass_kg,
-)
-from core.car.road_load import (
-    RoadLoad,
-    RoadLoadForm,
-    gradeability_percent,
-)
-from core.car.traction import (
-    AxleGeometry,
-    AxleLoads,
-    DriveLayout,
-    axle_loads,
-    grip_limit_n,
-    traction_limit_n,
-)
-from core.car.vehicle import (
-    Coupling,
-    Launch,
-    RotatingInertia,
-    Vehicle,
-)
-from core.choice.batch_drive import (
-    BatchTopSpeed,
-    batch_acceleration,
-    batch_drive,
-    batch_top_speed,
-    candidate_masses,
-    checked_final_drives,
-    overall_ratios,
-    take_rows,
-)
-from core.choice.setups import (
-    Setup,
-    SetupFigures,
-    setup_figures,
-)
-from core.choice.sweep import (
-    FinalDriveSweep,
-    sweep_final_drives,
-)
-from core.choice.sweep_optimum import (
-    SweepOptimum,
-    continuous_optimum,
-    objective_at,
-    top_gear_rpm,
-)
-from core.choice.sweep_spec import (
-    CruiseTarget,
-    Rejection,
-    SweepConstraints,
-    SweepObjective,
-    checked_sweep,
-    checked_sweep_shift_rpm,
-    final_drive_range,
-)
-from core.converter.drive import (
-    ConverterDrive,
-    ConverterInput,
-    converter_input,
-)
-from core.converter.matching import (
-    ConverterOperatingPoints,
-    EngineTorqueFn,
-    converter_operating_points,
-    stall_speed_rpm,
-)
-from core.converter.tables import (
-    TorqueConverter,
-)
-from core.driveline.chassis import (
-    ChassisConversion,
-    MeasuredAt,
-    chassis_conversion,
-    efficiency_from_loss,
-    engine_from_wheel,
-    wheel_from_engine,
-)
-from core.driveline.drivetrain import (
-    Drivetrain,
-    make_drivetrain,
-)
-from core.driveline.gearing import (
-    GearTable,
-    engine_rpm_at_speed,
-    gear_tables,
-    road_speed_m_s,
-    rpm_grid,
-)
-from core.driveline.landing import (
-    LandingAnalysis,
-    LandingBand,
-    landing_analysis,
-)
-from core.driveline.spacing import (
-    GearSet,
-    ShiftLandings,
-    Spacing,
-    geometric_gear_set,
-    max_progression_factor,
-    progressive_gear_set,
-    shift_landings,
-)
-from core.driveline.speedometer import (
-    DistanceReadings,
-    DrivenGearChange,
-    SpeedometerCorrection,
-    SpeedometerDrive,
-    SpeedometerSetup,
-    SpeedReadings,
-    driven_gear_change,
-    odometer_readings,
-    speed_readings,
-    speedometer_correction,
-    speedometer_setup,
-)
-from core.driveline.tires import (
-    Tire,
-    tire_from_diameter,
-    tire_from_revs_per_km,
-    tire_from_revs_per_mile,
-    tire_from_size,
-)
-from core.dyno.file import (
-    DynoRun,
-    read_dyno_text,
-)
-from core.engine.correction import (
-    Correction,
-    CorrectionStandard,
-    PressureBasis,
-    ReferenceConditions,
-    apply_correction,
-    correction_factor,
-    correction_factors,
-    reference_conditions,
-)
-from core.engine.curves import (
-    CurveSource,
-    Interpolation,
-    TorqueCurve,
-    pchip_coefficients,
-    torque_curve_from_power,
-    torque_curve_from_torque,
-)
-from core.errors import (
-    CorrectionError,
-    CurveError,
-    DrivetrainError,
-    DynoFileError,
-    FitError,
-    GearworkError,
-    SimulationError,
-    TireSizeError,
-    VehicleError,
-)
-from core.logs.check import (
-    GearSegment,
-    GearSource,
-    PassAnalysis,
-    analyse_pass,
-)
-from core.logs.crossover import (
-    CrossoverFit,
-    ShiftVerdict,
-    VerdictBasis,
-    acceleration_fit,
-    crossover,
-    verdict,
-)
-from core.logs.pass_data import (
-    AccelerationUnit,
-    LogDataError,
-    PassLog,
-    SpeedUnit,
-    TimeUnit,
-    UniformSamples,
-    pass_log,
-    uniform_samples,
-)
-from core.logs.shift import (
-    LoggedShift,
-    ShiftSignals,
-    measure_shift,
-)
-from core.logs.text import (
-    LogText,
-    read_log_text,
-)
-from core.runs.batch import (
-    BatchRuns,
-    batch_runs,
-)
-from core.runs.batch_timing import (
-    BatchTimedDistance,
-    BatchTimedSpeed,
-    TraceProbes,
-    probe_distances,
-    probe_speeds,
-    timed_distances,
-    timed_speeds,
-)
-from core.runs.milestones import (
-    TimedDistance,
-    TimedSpeed,
-    speed_at_distance,
-    time_at_distance,
-    time_at_speed,
-    timed_distance,
-    timed_speed,
-)
-from core.runs.performance import (
-    OptimalShifts,
-    ShiftCriterion,
-    TopSpeed,
-    acceleration_shift_points,
-    acceleration_shifts,
-    cruise_rpm,
-    engine_rpm_at,
-    gradeability_by_gear,
-    model_converter,
-    optimal_shift_rpm,
-    planned_shift_rpm,
-    top_speed,
-)
-from core.runs.report import (
-    RunReport,
-    SampledTrace,
-    run_report,
-    sample_trace,
-)
-from core.runs.simulate import (
-    DriveModel,
-    RunResult,
-    RunShift,
-    drive_model,
-    simulate_run,
-)
-from core.shifts.best import (
-    ScalarDiff,
-    ShiftChoice,
-    ShiftReason,
-    VectorEfforts,
-    best_shifts,
-)
-from core.shifts.plan import (
-    Notice,
-    ShiftPlan,
-    ShiftPoint,
-    resolve_rev_limit,
-    shift_plan,
-)
-from core.shifts.search import (
-    SEARCH_WON,
-    search_shift_rpm,
-)
-from core.shifts.window import (
-    ShiftWindow,
-    ShiftWindows,
-    shift_windows,
-)
+from __future__ import annotations
 
-__all__ = [
-    "MAX_GRADE_ANGLE_DEG",
-    "SEARCH_WON",
-    "AccelerationUnit",
-    "AirState",
-    "AxleGeometry",
-    "AxleLoads",
-    "BatchRuns",
-    "BatchTimedDistance",
-    "BatchTimedSpeed",
-    "BatchTopSpeed",
-    "ChassisConversion",
-    "CoastDownFit",
-    "CoastDownRun",
-    "CoastDownRunFit",
-    "ConverterDrive",
-    "ConverterInput",
-    "ConverterOperatingPoints",
-    "Correction",
-    "CorrectionError",
-    "CorrectionStandard",
-    "Coupling",
-    "CrossoverFit",
-    "CruiseTarget",
-    "CurveError",
-    "CurveSource",
-    "DistanceReadings",
-    "DriveLayout",
-    "DriveModel",
-    "DrivenGearChange",
-    "Drivetrain",
-    "DrivetrainError",
-    "DynoFileError",
-    "DynoRun",
-    "EngineTorqueFn",
-    "FinalDriveSweep",
-    "FitError",
-    "GearSegment",
-    "GearSet",
-    "GearSource",
-    "GearTable",
-    "GearworkError",
-    "GradeLimit",
-    "Gradeability",
-    "Interpolation",
-    "LandingAnalysis",
-    "LandingBand",
-    "Launch",
-    "LogDataError",
-    "LogText",
-    "LoggedShift",
-    "MeasuredAt",
-    "Notice",
-    "OptimalShifts",
-    "PassAnalysis",
-    "PassLog",
-    "PressureBasis",
-    "ReferenceConditions",
-    "ReferenceCorrection",
-    "Rejection",
-    "RoadLoad",
-    "RoadLoadForm",
-    "RotatingInertia",
-    "RunReport",
-    "RunResult",
-    "RunShift",
-    "SampledTrace",
-    "ScalarDiff",
-    "Setup",
-    "SetupFigures",
-    "ShiftChoice",
-    "ShiftCriterion",
-    "ShiftLandings",
-    "ShiftPlan",
-    "ShiftPoint",
-    "ShiftReason",
-    "ShiftSignals",
-    "ShiftVerdict",
-    "ShiftWindow",
-    "ShiftWindows",
-    "SimulationError",
-    "SlipPrediction",
-    "Spacing",
-    "SpeedReadings",
-    "SpeedUnit",
-    "SpeedometerCorrection",
-    "SpeedometerDrive",
-    "SpeedometerSetup",
-    "SweepConstraints",
-    "SweepObjective",
-    "SweepOptimum",
-    "TimeUnit",
-    "TimedDistance",
-    "TimedSpeed",
-    "Tire",
-    "TireSizeError",
-    "TopSpeed",
-    "TorqueConverter",
-    "TorqueCurve",
-    "TraceProbes",
-    "TravelDirection",
-    "UniformSamples",
-    "VectorEfforts",
-    "Vehicle",
-    "VehicleError",
-    "VerdictBasis",
-    "Weather",
-    "WeatherAir",
-    "acceleration_fit",
-    "acceleration_shift_points",
-    "acceleration_shifts",
-    "air_density_kg_m3",
-    "air_state",
-    "analyse_pass",
-    "apply_correction",
-    "axle_loads",
-    "batch_acceleration",
-    "batch_drive",
-    "batch_runs",
-    "batch_top_speed",
-    "best_shifts",
-    "candidate_masses",
-    "chassis_conversion",
-    "checked_final_drives",
-    "checked_sweep",
-    "checked_sweep_shift_rpm",
-    "coast_down_speed",
-    "continuous_optimum",
-    "converter_input",
-    "converter_operating_points",
-    "correction_factor",
-    "correction_factors",
-    "crossover",
-    "cruise_rpm",
-    "density_altitude_m",
-    "drive_model",
-    "driven_gear_change",
-    "efficiency_from_loss",
-    "engine_from_wheel",
-    "engine_rpm_at",
-    "engine_rpm_at_speed",
-    "equivalent_mass_kg",
-    "final_drive_range",
-    "fit_coast_down",
-    "gear_tables",
-    "geometric_gear_set",
-    "gradeability",
-    "gradeability_by_gear",
-    "gradeability_percent",
-    "grip_limit_n",
-    "landing_analysis",
-    "make_drivetrain",
-    "mass_factor",
-    "max_progression_factor",
-    "measure_shift",
-    "model_converter",
-    "objective_at",
-    "odometer_readings",
-    "optimal_shift_rpm",
-    "overall_ratios",
-    "pass_log",
-    "pchip_coefficients",
-    "planned_shift_rpm",
-    "predict_slip",
-    "probe_distances",
-    "probe_speeds",
-    "progressive_gear_set",
-    "read_dyno_text",
-    "read_log_text",
-    "reference_conditions",
-    "resolve_rev_limit",
-    "road_speed_m_s",
-    "rotating_mass_kg",
-    "rpm_grid",
-    "run_report",
-    "sample_trace",
-    "saturation_vapour_pressure_pa",
-    "search_shift_rpm",
-    "setup_figures",
-    "shift_landings",
-    "shift_plan",
-    "shift_windows",
-    "simulate_run",
-    "speed_at_distance",
-    "speed_readings",
-    "speedometer_correction",
-    "speedometer_setup",
-    "stall_speed_rpm",
-    "standard_pressure_pa",
-    "station_pressure_from_altimeter_pa",
-    "steepest_grade_rad",
-    "sweep_final_drives",
-    "take_rows",
-    "time_at_distance",
-    "time_at_speed",
-    "timed_distance",
-    "timed_distances",
-    "timed_speed",
-    "timed_speeds",
-    "tire_from_diameter",
-    "tire_from_revs_per_km",
-    "tire_from_revs_per_mile",
-    "tire_from_size",
-    "top_gear_rpm",
-    "top_speed",
-    "torque_curve_from_power",
-    "torque_curve_from_torque",
-    "traction_limit_n",
-    "uniform_samples",
-    "verdict",
-    "weather_air",
-    "wheel_from_engine",
-]
+from core import checks as _checks
+from core import errors as _errors
+from core import notices as _notices
+from core import units as _units
+from core.air import altimeter as _air_altimeter
+from core.air import atmosphere as _air_atmosphere
+from core.air import weather as _air_weather
+from core.air.altimeter import *  # noqa: F403
+from core.air.atmosphere import *  # noqa: F403
+from core.air.weather import *  # noqa: F403
+from core.car import coast_down as _car_coast_down
+from core.car import coast_down_reference as _car_coast_down_reference
+from core.car import gradeability as _car_gradeability
+from core.car import inertia as _car_inertia
+from core.car import road_load as _car_road_load
+from core.car import traction as _car_traction
+from core.car import vehicle as _car_vehicle
+from core.car.coast_down import *  # noqa: F403
+from core.car.coast_down_reference import *  # noqa: F403
+from core.car.gradeability import *  # noqa: F403
+from core.car.inertia import *  # noqa: F403
+from core.car.road_load import *  # noqa: F403
+from core.car.traction import *  # noqa: F403
+from core.car.vehicle import *  # noqa: F403
+from core.checks import *  # noqa: F403
+from core.choice import batch_drive as _choice_batch_drive
+from core.choice import setups as _choice_setups
+from core.choice import sweep as _choice_sweep
+from core.choice import sweep_optimum as _choice_sweep_optimum
+from core.choice import sweep_spec as _choice_sweep_spec
+from core.choice.batch_drive import *  # noqa: F403
+from core.choice.setups import *  # noqa: F403
+from core.choice.sweep import *  # noqa: F403
+from core.choice.sweep_optimum import *  # noqa: F403
+from core.choice.sweep_spec import *  # noqa: F403
+from core.converter import drive as _converter_drive
+from core.converter import matching as _converter_matching
+from core.converter import operating_map as _converter_operating_map
+from core.converter import tables as _converter_tables
+from core.converter.drive import *  # noqa: F403
+from core.converter.matching import *  # noqa: F403
+from core.converter.operating_map import *  # noqa: F403
+from core.converter.tables import *  # noqa: F403
+from core.driveline import chassis as _driveline_chassis
+from core.driveline import drivetrain as _driveline_drivetrain
+from core.driveline import gearing as _driveline_gearing
+from core.driveline import landing as _driveline_landing
+from core.driveline import spacing as _driveline_spacing
+from core.driveline import speedometer as _driveline_speedometer
+from core.driveline import tires as _driveline_tires
+from core.driveline.chassis import *  # noqa: F403
+from core.driveline.drivetrain import *  # noqa: F403
+from core.driveline.gearing import *  # noqa: F403
+from core.driveline.landing import *  # noqa: F403
+from core.driveline.spacing import *  # noqa: F403
+from core.driveline.speedometer import *  # noqa: F403
+from core.driveline.tires import *  # noqa: F403
+from core.dyno import columns as _dyno_columns
+from core.dyno import file as _dyno_file
+from core.dyno import numbers as _dyno_numbers
+from core.dyno import parse as _dyno_parse
+from core.dyno import road as _dyno_road
+from core.dyno import rows as _dyno_rows
+from core.dyno import values as _dyno_values
+from core.dyno.columns import *  # noqa: F403
+from core.dyno.file import *  # noqa: F403
+from core.dyno.numbers import *  # noqa: F403
+from core.dyno.parse import *  # noqa: F403
+from core.dyno.road import *  # noqa: F403
+from core.dyno.rows import *  # noqa: F403
+from core.dyno.values import *  # noqa: F403
+from core.engine import correction as _engine_correction
+from core.engine import curves as _engine_curves
+from core.engine import pchip as _engine_pchip
+from core.engine import reference_air as _engine_reference_air
+from core.engine.correction import *  # noqa: F403
+from core.engine.curves import *  # noqa: F403
+from core.engine.pchip import *  # noqa: F403
+from core.engine.reference_air import *  # noqa: F403
+from core.errors import *  # noqa: F403
+from core.logs import check as _logs_check
+from core.logs import crossover as _logs_crossover
+from core.logs import header as _logs_header
+from core.logs import pass_data as _logs_pass_data
+from core.logs import shift as _logs_shift
+from core.logs import signal as _logs_signal
+from core.logs import spin as _logs_spin
+from core.logs import text as _logs_text
+from core.logs.check import *  # noqa: F403
+from core.logs.crossover import *  # noqa: F403
+from core.logs.header import *  # noqa: F403
+from core.logs.pass_data import *  # noqa: F403
+from core.logs.shift import *  # noqa: F403
+from core.logs.signal import *  # noqa: F403
+from core.logs.spin import *  # noqa: F403
+from core.logs.text import *  # noqa: F403
+from core.notices import *  # noqa: F403
+from core.readers import delimited as _readers_delimited
+from core.readers import encoding as _readers_encoding
+from core.readers.delimited import *  # noqa: F403
+from core.readers.encoding import *  # noqa: F403
+from core.runs import batch as _runs_batch
+from core.runs import batch_timing as _runs_batch_timing
+from core.runs import drive_model as _runs_drive_model
+from core.runs import integrator as _runs_integrator
+from core.runs import milestones as _runs_milestones
+from core.runs import performance as _runs_performance
+from core.runs import report as _runs_report
+from core.runs import run_blocks as _runs_run_blocks
+from core.runs import simulate as _runs_simulate
+from core.runs.batch import *  # noqa: F403
+from core.runs.batch_timing import *  # noqa: F403
+from core.runs.drive_model import *  # noqa: F403
+from core.runs.integrator import *  # noqa: F403
+from core.runs.milestones import *  # noqa: F403
+from core.runs.performance import *  # noqa: F403
+from core.runs.report import *  # noqa: F403
+from core.runs.run_blocks import *  # noqa: F403
+from core.runs.simulate import *  # noqa: F403
+from core.shifts import best as _shifts_best
+from core.shifts import pattern as _shifts_pattern
+from core.shifts import plan as _shifts_plan
+from core.shifts import search as _shifts_search
+from core.shifts import shift_rpm as _shifts_shift_rpm
+from core.shifts import window as _shifts_window
+from core.shifts.best import *  # noqa: F403
+from core.shifts.pattern import *  # noqa: F403
+from core.shifts.plan import *  # noqa: F403
+from core.shifts.search import *  # noqa: F403
+from core.shifts.shift_rpm import *  # noqa: F403
+from core.shifts.window import *  # noqa: F403
+from core.units import *  # noqa: F403
+
+__all__ = []
+__all__ += _air_altimeter.__all__
+__all__ += _air_atmosphere.__all__
+__all__ += _air_weather.__all__
+__all__ += _car_coast_down.__all__
+__all__ += _car_coast_down_reference.__all__
+__all__ += _car_gradeability.__all__
+__all__ += _car_inertia.__all__
+__all__ += _car_road_load.__all__
+__all__ += _car_traction.__all__
+__all__ += _car_vehicle.__all__
+__all__ += _checks.__all__
+__all__ += _choice_batch_drive.__all__
+__all__ += _choice_setups.__all__
+__all__ += _choice_sweep.__all__
+__all__ += _choice_sweep_optimum.__all__
+__all__ += _choice_sweep_spec.__all__
+__all__ += _converter_drive.__all__
+__all__ += _converter_matching.__all__
+__all__ += _converter_operating_map.__all__
+__all__ += _converter_tables.__all__
+__all__ += _driveline_chassis.__all__
+__all__ += _driveline_drivetrain.__all__
+__all__ += _driveline_gearing.__all__
+__all__ += _driveline_landing.__all__
+__all__ += _driveline_spacing.__all__
+__all__ += _driveline_speedometer.__all__
+__all__ += _driveline_tires.__all__
+__all__ += _dyno_columns.__all__
+__all__ += _dyno_file.__all__
+__all__ += _dyno_numbers.__all__
+__all__ += _dyno_parse.__all__
+__all__ += _dyno_road.__all__
+__all__ += _dyno_rows.__all__
+__all__ += _dyno_values.__all__
+__all__ += _engine_correction.__all__
+__all__ += _engine_curves.__all__
+__all__ += _engine_pchip.__all__
+__all__ += _engine_reference_air.__all__
+__all__ += _errors.__all__
+__all__ += _logs_check.__all__
+__all__ += _logs_crossover.__all__
+__all__ += _logs_header.__all__
+__all__ += _logs_pass_data.__all__
+__all__ += _logs_shift.__all__
+__all__ += _logs_signal.__all__
+__all__ += _logs_spin.__all__
+__all__ += _logs_text.__all__
+__all__ += _notices.__all__
+__all__ += _readers_delimited.__all__
+__all__ += _readers_encoding.__all__
+__all__ += _runs_batch.__all__
+__all__ += _runs_batch_timing.__all__
+__all__ += _runs_drive_model.__all__
+__all__ += _runs_integrator.__all__
+__all__ += _runs_milestones.__all__
+__all__ += _runs_performance.__all__
+__all__ += _runs_report.__all__
+__all__ += _runs_run_blocks.__all__
+__all__ += _runs_simulate.__all__
+__all__ += _shifts_best.__all__
+__all__ += _shifts_pattern.__all__
+__all__ += _shifts_plan.__all__
+__all__ += _shifts_search.__all__
+__all__ += _shifts_shift_rpm.__all__
+__all__ += _shifts_window.__all__
+__all__ += _units.__all__
+__all__ = sorted(set(__all__))

@@ -15,7 +15,9 @@ applies, e.g. ``"gear_ratios[2]"``), which the service maps onto the caller's fi
           ├── SimulationError     a run that cannot proceed (car cannot move, no finish)
           ├── CorrectionError     dyno correction: ambient conditions, correction factor
           ├── FitError            a fit to measured data that cannot be made (too few points)
-          └── DynoFileError       a dyno export that cannot be read (``line``, ``column``)
+          ├── DynoFileError       a dyno export that cannot be read (``line``, ``column``)
+          └── LogDataError        a logged pass: bad channels, or a log text that cannot be
+                                  read (``line``, ``column``)
 """
 
 from __future__ import annotations
@@ -27,6 +29,7 @@ __all__ = [
     "DynoFileError",
     "FitError",
     "GearworkError",
+    "LogDataError",
     "SimulationError",
     "TireSizeError",
     "VehicleError",
@@ -106,3 +109,29 @@ class DynoFileError(GearworkError):
 
 class FitError(GearworkError):
     """Measured data cannot be fitted: too few points, times not increasing, no motion."""
+
+
+class LogDataError(GearworkError):
+    """A logged pass cannot be used: bad channels, or a log text that cannot be read.
+
+    Parameters
+    ----------
+    message : str
+        What is wrong, naming the channel (and the sample index or line).
+    parameter : str or None
+        The channel at fault, with an index where one applies (``"time[12]"``).
+    line, column : int or None
+        For a log text: the 1-based line and column (cell) at fault, when one is.
+    """
+
+    def __init__(
+        self,
+        message: str,
+        *,
+        parameter: str | None = None,
+        line: int | None = None,
+        column: int | None = None,
+    ) -> None:
+        super().__init__(message, parameter=parameter)
+        self.line = line
+        self.column = column

@@ -22,6 +22,7 @@ from collections.abc import Callable, Iterator
 from dataclasses import dataclass
 from typing import Any
 
+import numpy as np
 from pydantic import BaseModel, GetJsonSchemaHandler
 from pydantic.json_schema import JsonSchemaValue
 from pydantic_core import CoreSchema
@@ -201,8 +202,23 @@ class BoundsError(ProblemError):
         super().__init__(422, detail, field=first["field"], errors=errors)
 
 
+_MEMBERS: dict[Any, list[tuple[Any, tuple[Any, ...]]]] = {}
+
+
 def _members(annotation: Any) -> list[tuple[Any, tuple[Any, ...]]]:
-    """Union members of an annotation, each stripped of ``Annotated`` with its metadata."""
+    """Union members of an annotation, each stripped of ``Annotated`` with its metadata
+    (kept per annotation: a request's fields share a few dozen)."""
+    try:
+        return _MEMBERS[annotation]
+    except KeyError:
+        pass
+    except TypeError:  # an annotation that cannot be a key: work it out each time
+        return _unpack(annotation)
+    found = _MEMBERS[annotation] = _unpack(annotation)
+    return found
+
+
+def _unpack(annotation: Any) -> list[tuple[Any, tuple[Any, ...]]]:
     origin = typing.get_origin(annotation)
     if origin is typing.Union or origin is types.UnionType:
         return [m for arg in typing.get_args(annotation) for m in _members(arg)]
@@ -242,6 +258,9 @@ def _scan(
         yield from _walk(value, path, units)
     elif isinstance(value, list | tuple):
         args = typing.get_args(ann)
+        if typing.get_origin(ann) is list and args and _all_numbers(value):
+            yield from _scan_numbers(value, args[0], path, model, units)
+            return
         for i, item in enumerate(value):
             item_ann = args[0] if typing.get_origin(ann) is list or len(args) <= i else args[i]
             yield from _scan(item, item_ann, (), f"{path}[{i}]", model, units)
@@ -253,13 +272,86 @@ def _scan(
                     yield {"field": path, "message": f"`{path}` {wrong}"}
 
 
+def _all_numbers(values: list[Any] | tuple[Any, ...]) -> bool:
+    """Whether every item is an int or a float (never a bool): a list of plain numbers."""
+    kinds = {type(v) for v in values}
+    return bool(kinds) and kinds <= {float, int}
+
+
+def _scan_numbers(
+    values: list[Any] | tuple[Any, ...],
+    annotation: Any,
+    path: str,
+    model: BaseModel,
+    units: UnitSystem,
+) -> Iterator[dict[str, str]]:
+    """:func:`_scan` of a list of plain numbers, every item at once: the items are
+    converted to SI as one array (the same multiply and add as one at a time, so the same
+    numbers) and only an item found outside a limit is looked at on its own, for its
+    message."""
+    _, meta = _pick(0.0, annotation)
+    limits = [m for m in meta if isinstance(m, SiLimits)]
+    if not limits:
+        return
+    raw = np.asarray(values, dtype=np.float64)
+    flagged = np.zeros(raw.shape, dtype=bool)
+    for lim in limits:
+        unit = lim._unit(model, units)
+        with np.errstate(over="ignore"):  # a huge value becomes inf, as a float does
+            si = lim._to_si(raw, unit, units)  # type: ignore[arg-type]
+        for limit, bad in (
+            (lim.gt, np.less_equal),
+            (lim.ge, np.less),
+            (lim.lt, np.greater_equal),
+            (lim.le, np.greater),
+        ):
+            if limit is not None:
+                flagged |= bad(si, limit)
+    for i in np.flatnonzero(flagged).tolist():
+        yield from _scan(values[i], annotation, (), f"{path}[{i}]", model, units)
+
+
+def _mentions_limits(annotation: Any) -> bool:
+    """Whether a type can hold a value with SI limits: an ``SiLimits`` or a model anywhere
+    in it (a forward reference counts, to be safe)."""
+    if isinstance(annotation, SiLimits | typing.ForwardRef | str):
+        return True
+    if isinstance(annotation, type) and issubclass(annotation, BaseModel):
+        return True
+    origin = typing.get_origin(annotation)
+    if origin is typing.Literal:
+        return False
+    if origin is typing.Annotated:
+        return any(isinstance(m, SiLimits) for m in annotation.__metadata__) or (
+            _mentions_limits(typing.get_args(annotation)[0])
+        )
+    return any(_mentions_limits(arg) for arg in typing.get_args(annotation))
+
+
+_LIMITED: dict[type[BaseModel], tuple[tuple[str, Any, tuple[Any, ...]], ...]] = {}
+
+
+def _limited(model_type: type[BaseModel]) -> tuple[tuple[str, Any, tuple[Any, ...]], ...]:
+    """(name, annotation, metadata) of the fields of a model class that can hold a value
+    with SI limits (worked out once per class): the only ones :func:`_walk` looks at."""
+    fields = _LIMITED.get(model_type)
+    if fields is None:
+        fields = _LIMITED[model_type] = tuple(
+            (name, info.annotation, tuple(info.metadata))
+            for name, info in model_type.model_fields.items()
+            if any(isinstance(m, SiLimits) for m in info.metadata)
+            or _mentions_limits(info.annotation)
+        )
+    return fields
+
+
 def _walk(model: BaseModel, path: str, units: UnitSystem) -> Iterator[dict[str, str]]:
-    for name, info in type(model).model_fields.items():
+    for name, annotation, metadata in _limited(type(model)):
         value = getattr(model, name, None)
         if value is None:
             continue
         here = f"{path}.{name}" if path else name
-        yield from _scan(value, info.annotation, tuple(info.metadata), here, model, units)
+        yield from _scan(value, annotation, metadata, here, model, units)
 
 
 def bound_violations(model: BaseModel, units: UnitSystem, path: str = "") -> list[dict[str, str]]:

@@ -5,8 +5,8 @@ rpm/sqrt(N*m) (converter K-factor), N/(km/h) and N/(km/h)^2 (coast-down terms), 
 ``us``: lbf*ft, hp (550 ft*lbf/s), mph, lbf, in, lb, ft (distance), ft^2, inHg, degF,
 lb*ft^2, rpm/sqrt(lbf*ft), lbf/mph and lbf/mph^2, mi (odometer).
 Engine speed is rpm in both. Log channels may name their own unit (`NAMED_UNITS`).
-Factors are exact by definition (scipy.constants agrees); temperature converts with its
-offset (to kelvin).
+Factors are exact by definition, each defined once in :mod:`core.units` (from
+scipy.constants); temperature converts with its offset (to kelvin).
 """
 
 from __future__ import annotations
@@ -17,6 +17,21 @@ from typing import overload
 
 import numpy as np
 from numpy.typing import NDArray
+
+from core.units import (
+    FOOT_M,
+    HORSEPOWER_W,
+    INCH_M,
+    INCH_OF_MERCURY_PA,
+    KM_H_M_S,
+    MILE_M,
+    MPH_M_S,
+    POUND_FORCE_FOOT_NM,
+    POUND_FORCE_N,
+    POUND_KG,
+    STANDARD_GRAVITY_M_S2,
+    ZERO_CELSIUS_K,
+)
 
 __all__ = [
     "NAMED_UNITS",
@@ -67,13 +82,11 @@ class _Unit:
     si_per_unit: float
 
 
-_LBF_N = 4.4482216152605
-_FOOT_M = 0.3048
 _TABLE: dict[UnitSystem, dict[Quantity, _Unit]] = {
     UnitSystem.METRIC: {
         Quantity.TORQUE: _Unit("N*m", 1.0),
         Quantity.POWER: _Unit("kW", 1000.0),
-        Quantity.SPEED: _Unit("km/h", 1000.0 / 3600.0),
+        Quantity.SPEED: _Unit("km/h", KM_H_M_S),
         Quantity.FORCE: _Unit("N", 1.0),
         Quantity.LENGTH: _Unit("mm", 0.001),
         Quantity.MASS: _Unit("kg", 1.0),
@@ -88,23 +101,22 @@ _TABLE: dict[UnitSystem, dict[Quantity, _Unit]] = {
         Quantity.ODOMETER: _Unit("km", 1000.0),
     },
     UnitSystem.US: {
-        Quantity.TORQUE: _Unit("lbf*ft", _LBF_N * _FOOT_M),
-        Quantity.POWER: _Unit("hp", 550.0 * _LBF_N * _FOOT_M),
-        Quantity.SPEED: _Unit("mph", 0.44704),
-        Quantity.FORCE: _Unit("lbf", _LBF_N),
-        Quantity.LENGTH: _Unit("in", 0.0254),
-        Quantity.MASS: _Unit("lb", 0.45359237),
-        Quantity.DISTANCE: _Unit("ft", _FOOT_M),
-        Quantity.AREA: _Unit("ft^2", _FOOT_M**2),
-        # inch of mercury at 32 degF (NIST SP 811): 3386.389 Pa
-        Quantity.PRESSURE: _Unit("inHg", 3386.389),
+        Quantity.TORQUE: _Unit("lbf*ft", POUND_FORCE_FOOT_NM),
+        Quantity.POWER: _Unit("hp", HORSEPOWER_W),
+        Quantity.SPEED: _Unit("mph", MPH_M_S),
+        Quantity.FORCE: _Unit("lbf", POUND_FORCE_N),
+        Quantity.LENGTH: _Unit("in", INCH_M),
+        Quantity.MASS: _Unit("lb", POUND_KG),
+        Quantity.DISTANCE: _Unit("ft", FOOT_M),
+        Quantity.AREA: _Unit("ft^2", FOOT_M**2),
+        Quantity.PRESSURE: _Unit("inHg", INCH_OF_MERCURY_PA),
         Quantity.TEMPERATURE: _Unit("degF", 5.0 / 9.0),
-        Quantity.INERTIA: _Unit("lb*ft^2", 0.45359237 * _FOOT_M**2),
+        Quantity.INERTIA: _Unit("lb*ft^2", POUND_KG * FOOT_M**2),
         # K = rpm / sqrt(torque): a K in rpm/sqrt(lbf*ft) is K / sqrt(1.3558...) in SI
-        Quantity.K_FACTOR: _Unit("rpm/sqrt(lbf*ft)", (_LBF_N * _FOOT_M) ** -0.5),
-        Quantity.FORCE_PER_SPEED: _Unit("lbf/mph", _LBF_N / 0.44704),
-        Quantity.FORCE_PER_SPEED_SQUARED: _Unit("lbf/mph^2", _LBF_N / 0.44704**2),
-        Quantity.ODOMETER: _Unit("mi", 1609.344),
+        Quantity.K_FACTOR: _Unit("rpm/sqrt(lbf*ft)", POUND_FORCE_FOOT_NM**-0.5),
+        Quantity.FORCE_PER_SPEED: _Unit("lbf/mph", POUND_FORCE_N / MPH_M_S),
+        Quantity.FORCE_PER_SPEED_SQUARED: _Unit("lbf/mph^2", POUND_FORCE_N / MPH_M_S**2),
+        Quantity.ODOMETER: _Unit("mi", MILE_M),
     },
 }
 _SI_LABELS: dict[Quantity, str] = {
@@ -126,13 +138,18 @@ _SI_LABELS: dict[Quantity, str] = {
 }
 
 NAMED_UNITS: dict[str, float] = {
-    "km/h": 1000.0 / 3600.0,
-    "mph": 0.44704,
+    "km/h": KM_H_M_S,
+    "mph": MPH_M_S,
     "m/s": 1.0,
-    "g": 9.80665,  # standard gravity (ISO 80000-3)
+    "g": STANDARD_GRAVITY_M_S2,
     "m/s^2": 1.0,
 }
 """SI per unit of the units a logged channel may name for itself (speed, acceleration)."""
+
+
+def _zero_offset_k(system: UnitSystem) -> float:
+    """Kelvin at the zero of the system's temperature scale (0 degC or 0 degF)."""
+    return ZERO_CELSIUS_K if system is UnitSystem.METRIC else ZERO_CELSIUS_K - 32.0 * 5.0 / 9.0
 
 
 @overload
@@ -143,7 +160,7 @@ def to_si(value: float | FloatArray, quantity: Quantity, system: UnitSystem) -> 
     """Convert a caller's value to SI (N*m, W, m/s, N, m, kg, m^2, Pa, K)."""
     si = value * _TABLE[system][quantity].si_per_unit
     if quantity is Quantity.TEMPERATURE:
-        return si + (273.15 if system is UnitSystem.METRIC else 273.15 - 32.0 * 5.0 / 9.0)
+        return si + _zero_offset_k(system)
     return si
 
 
@@ -156,7 +173,7 @@ def from_si(
 ) -> float | FloatArray:
     """Convert an SI value to the caller's unit."""
     if quantity is Quantity.TEMPERATURE:
-        value = value - (273.15 if system is UnitSystem.METRIC else 273.15 - 32.0 * 5.0 / 9.0)
+        value = value - _zero_offset_k(system)
     return value / _TABLE[system][quantity].si_per_unit
 
 

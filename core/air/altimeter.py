@@ -8,23 +8,28 @@ that is ``H(p) - H(A) = h``, so
     ``p = p0 * ((A/p0)**n - L*h/T0) ** (1/n)``,  ``n = R*L/g0``,
 
 with the ISO 2533 constants ``p0 = 101325 Pa``, ``T0 = 288.15 K``, ``L = 0.0065 K/m``,
-``R = 287.05287 J/(kg K)``, ``g0 = 9.80665 m/s^2`` (the values :mod:`core.air.atmosphere` uses).
+``R = 287.05287 J/(kg K)``, ``g0 = 9.80665 m/s^2`` (from :mod:`core.units`, as in
+:mod:`core.air.atmosphere`).
 This is the altimeter equation of the Smithsonian Meteorological Tables without its
 0.3 hPa barometer-height offset. With ``A = p0`` it gives the standard pressure at ``h``.
 """
 
 from __future__ import annotations
 
-import math
-
+from core.checks import require_range
 from core.errors import CorrectionError
+from core.units import (
+    ISO_AIR_GAS_CONSTANT_J_KG_K,
+    ISO_LAPSE_RATE_K_PER_M,
+    ISO_SEA_LEVEL_PRESSURE_PA,
+    ISO_SEA_LEVEL_TEMPERATURE_K,
+    STANDARD_GRAVITY_M_S2,
+)
 
 __all__ = ["ALTIMETER_RANGE_PA", "ELEVATION_RANGE_M", "station_pressure_from_altimeter_pa"]
 
-_ISO_P0_PA = 101325.0
-_ISO_T0_K = 288.15
-_ISO_LAPSE_K_PER_M = 0.0065
-_ISO_EXPONENT = 287.05287 * _ISO_LAPSE_K_PER_M / 9.80665  # n = R*L/g0
+_ISO_EXPONENT = ISO_AIR_GAS_CONSTANT_J_KG_K * ISO_LAPSE_RATE_K_PER_M / STANDARD_GRAVITY_M_S2
+"""``n = R*L/g0`` of the altimeter equation [-]."""
 
 ALTIMETER_RANGE_PA = (85_000.0, 110_000.0)
 """Altimeter setting accepted [Pa]."""
@@ -32,16 +37,6 @@ ELEVATION_RANGE_M = (-500.0, 6000.0)
 """Station elevation accepted [m]."""
 _ALTIMETER_RANGE_PA = ALTIMETER_RANGE_PA
 _ELEVATION_RANGE_M = ELEVATION_RANGE_M
-
-
-def _check_between(value: float, name: str, low: float, high: float) -> None:
-    """Raise CorrectionError unless ``low <= value <= high`` (and finite)."""
-    if not math.isfinite(value):
-        raise CorrectionError(f"`{name}` must be finite, got {value}", parameter=name)
-    if not low <= value <= high:
-        raise CorrectionError(
-            f"`{name}` must lie in [{low:g}, {high:g}], got {value:g}", parameter=name
-        )
 
 
 def station_pressure_from_altimeter_pa(altimeter_setting_pa: float, elevation_m: float) -> float:
@@ -74,8 +69,11 @@ def station_pressure_from_altimeter_pa(altimeter_setting_pa: float, elevation_m:
     >>> round(station_pressure_from_altimeter_pa(101325.0, 1000.0), 1)
     89874.6
     """
-    _check_between(altimeter_setting_pa, "altimeter_setting_pa", *_ALTIMETER_RANGE_PA)
-    _check_between(elevation_m, "elevation_m", *_ELEVATION_RANGE_M)
+    require_range(
+        altimeter_setting_pa, "altimeter_setting_pa", *_ALTIMETER_RANGE_PA, CorrectionError
+    )
+    require_range(elevation_m, "elevation_m", *_ELEVATION_RANGE_M, CorrectionError)
     n = _ISO_EXPONENT
-    base = (altimeter_setting_pa / _ISO_P0_PA) ** n - _ISO_LAPSE_K_PER_M * elevation_m / _ISO_T0_K
-    return float(_ISO_P0_PA * base ** (1.0 / n))
+    p0, t0 = ISO_SEA_LEVEL_PRESSURE_PA, ISO_SEA_LEVEL_TEMPERATURE_K
+    base = (altimeter_setting_pa / p0) ** n - ISO_LAPSE_RATE_K_PER_M * elevation_m / t0
+    return float(p0 * base ** (1.0 / n))

@@ -22,6 +22,14 @@ import numpy as np
 from numpy.typing import NDArray
 
 from core.errors import VehicleError
+from core.units import (
+    ISO_AIR_GAS_CONSTANT_J_KG_K,
+    ISO_LAPSE_RATE_K_PER_M,
+    ISO_SEA_LEVEL_PRESSURE_PA,
+    ISO_SEA_LEVEL_TEMPERATURE_K,
+    STANDARD_GRAVITY_M_S2,
+    ZERO_CELSIUS_K,
+)
 
 __all__ = [
     "AIR_PRESSURE_RANGE_PA",
@@ -34,16 +42,8 @@ __all__ = [
     "standard_pressure_pa",
 ]
 
-_CELSIUS_OFFSET_K = 273.15
 _DRY_AIR_GAS_CONSTANT = 287.058  # [J/(kg K)]
 _WATER_VAPOUR_GAS_CONSTANT = 461.495  # [J/(kg K)]
-
-# ISO 2533 sea-level values and tropospheric lapse rate.
-_ISO_SEA_LEVEL_PRESSURE_PA = 101325.0
-_ISO_SEA_LEVEL_TEMPERATURE_K = 288.15
-_ISO_LAPSE_RATE_K_PER_M = 0.0065
-_ISO_GAS_CONSTANT = 287.05287  # [J/(kg K)]
-_STANDARD_GRAVITY = 9.80665  # [m/s^2]
 
 AIR_TEMPERATURE_RANGE_K = (200.0, 350.0)
 """Air temperature accepted [K]."""
@@ -127,7 +127,7 @@ def saturation_vapour_pressure_pa(
     """
     kelvin = np.asarray(temperature_k, dtype=np.float64)
     _check_range(kelvin, "temperature_k", *_TEMPERATURE_RANGE_K)
-    celsius = kelvin - _CELSIUS_OFFSET_K
+    celsius = kelvin - ZERO_CELSIUS_K
     pressure = 611.21 * np.exp((18.678 - celsius / 234.5) * celsius / (257.14 + celsius))
     if isinstance(temperature_k, np.ndarray):
         return pressure
@@ -165,9 +165,9 @@ def standard_pressure_pa(altitude_m: float | NDArray[np.float64]) -> float | NDA
     """
     altitude = np.asarray(altitude_m, dtype=np.float64)
     _check_range(altitude, "altitude_m", *_ALTITUDE_RANGE_M)
-    exponent = _STANDARD_GRAVITY / (_ISO_GAS_CONSTANT * _ISO_LAPSE_RATE_K_PER_M)
-    temperature_ratio = 1.0 - _ISO_LAPSE_RATE_K_PER_M * altitude / _ISO_SEA_LEVEL_TEMPERATURE_K
-    pressure = _ISO_SEA_LEVEL_PRESSURE_PA * temperature_ratio**exponent
+    exponent = STANDARD_GRAVITY_M_S2 / (ISO_AIR_GAS_CONSTANT_J_KG_K * ISO_LAPSE_RATE_K_PER_M)
+    temperature_ratio = 1.0 - ISO_LAPSE_RATE_K_PER_M * altitude / ISO_SEA_LEVEL_TEMPERATURE_K
+    pressure = ISO_SEA_LEVEL_PRESSURE_PA * temperature_ratio**exponent
     if isinstance(altitude_m, np.ndarray):
         return pressure
     return float(pressure)

@@ -23,13 +23,16 @@ from dataclasses import dataclass
 import numpy as np
 
 from core.air.atmosphere import air_density_kg_m3
-from core.engine.correction import CorrectionStandard, correction_factor
+from core.engine.correction import correction_factor
 from core.engine.curves import TorqueCurve
+from core.engine.reference_air import CorrectionStandard
 from core.errors import CorrectionError
+from core.notices import Notice
+from core.runs.drive_model import DriveModel, drive_model
+from core.runs.milestones import STANDARD_ROLLOUT_M
 from core.runs.performance import ShiftCriterion, planned_shift_rpm
 from core.runs.report import run_report
-from core.runs.simulate import DriveModel, drive_model
-from core.shifts.plan import Notice
+from core.units import ISO_LAPSE_RATE_K_PER_M, ISO_SEA_LEVEL_TEMPERATURE_K, STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "ISO_SEA_LEVEL_DENSITY_KG_M3",
@@ -43,13 +46,11 @@ __all__ = [
 
 ISO_SEA_LEVEL_DENSITY_KG_M3 = 1.225
 """ISO 2533 sea-level density [kg/m^3]."""
-_T0_K = 288.15
-_LAPSE_K_M = 0.0065
-_G = 9.80665
 _M_AIR = 0.0289644
 _R = 8.31447
 _EARTH_RADIUS_M = 6356766.0  # ISO 2533 / US Standard Atmosphere 1976
-_EXPONENT = _G * _M_AIR / (_R * _LAPSE_K_M) - 1.0  # 4.2559 (ISO 2533 troposphere)
+_EXPONENT = STANDARD_GRAVITY_M_S2 * _M_AIR / (_R * ISO_LAPSE_RATE_K_PER_M) - 1.0
+"""``g*M/(R*L) - 1`` = 4.2559 of the ISO 2533 troposphere [-]."""
 
 
 @dataclass(frozen=True)
@@ -136,7 +137,8 @@ def density_altitude_m(density_kg_m3: float) -> float:
             parameter="density_kg_m3",
         )
     ratio = density_kg_m3 / ISO_SEA_LEVEL_DENSITY_KG_M3
-    geopotential = _T0_K / _LAPSE_K_M * (1.0 - ratio ** (1.0 / _EXPONENT))
+    scale_m = ISO_SEA_LEVEL_TEMPERATURE_K / ISO_LAPSE_RATE_K_PER_M
+    geopotential = scale_m * (1.0 - ratio ** (1.0 / _EXPONENT))
     return float(_EARTH_RADIUS_M * geopotential / (_EARTH_RADIUS_M - geopotential))
 
 
@@ -189,7 +191,7 @@ def predict_slip(
     standard: CorrectionStandard,
     *,
     finish_distance_m: float,
-    rollout_m: float = 0.3048,
+    rollout_m: float = STANDARD_ROLLOUT_M,
     measured_et_s: float | None = None,
     measured_trap_m_s: float | None = None,
 ) -> SlipPrediction:

@@ -35,19 +35,19 @@ from scipy import stats
 from scipy.integrate import solve_ivp
 from scipy.optimize import least_squares
 
-from core.air.atmosphere import air_density_kg_m3
+from core.car.coast_down_reference import (
+    ReferenceCorrection,
+    reference_correction,
+)
 from core.errors import FitError
-from core.shifts.plan import Notice
+from core.notices import Notice
+from core.units import KM_H_M_S, STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "EQUIVALENT_MASS_FACTOR",
-    "REFERENCE_PRESSURE_PA",
-    "REFERENCE_TEMPERATURE_K",
-    "ROLLING_TEMPERATURE_COEFFICIENT_PER_K",
     "CoastDownFit",
     "CoastDownRun",
     "CoastDownRunFit",
-    "ReferenceCorrection",
     "TravelDirection",
     "coast_down_speed",
     "fit_coast_down",
@@ -57,20 +57,13 @@ FloatArray = NDArray[np.float64]
 
 EQUIVALENT_MASS_FACTOR = 1.03
 """Default equivalent mass over test mass in neutral [-] (common practice)."""
-REFERENCE_TEMPERATURE_K = 293.15
-"""Reference temperature of SAE J1263, 20 degC [K] (from memory)."""
-REFERENCE_PRESSURE_PA = 98210.0
-"""Reference pressure of SAE J1263, 98.21 kPa [Pa] (from memory)."""
-ROLLING_TEMPERATURE_COEFFICIENT_PER_K = 0.00864
-"""Rolling-resistance temperature coefficient ``K0`` of SAE J1263 [1/K] (from memory)."""
 CONFIDENCE = 0.95
 MIN_SAMPLES = 10
 MIN_MASS_KG = 10.0  # lighter than any vehicle that coasts on a road
 MAX_RUNS = 10
-SHORT_SPAN_M_S = 40.0 / 3.6  # a run spanning less than 40 km/h separates the terms poorly
-NOISY_RMS_M_S = 1.0 / 3.6  # residual above 1 km/h RMS: a noisy or disturbed run
+SHORT_SPAN_M_S = 40.0 * KM_H_M_S  # a run spanning less than 40 km/h separates the terms poorly
+NOISY_RMS_M_S = KM_H_M_S  # residual above 1 km/h RMS: a noisy or disturbed run
 WIDE_INTERVAL_SHARE = 0.10
-_G = 9.80665
 
 
 class TravelDirection(enum.Enum):
@@ -122,29 +115,6 @@ class CoastDownRunFit:
     end_speed_m_s: float
     coefficients: FloatArray
     residual_rms_m_s: float
-
-
-@dataclass(frozen=True)
-class ReferenceCorrection:
-    """Coefficients corrected to the reference conditions of SAE J1263 (in outline).
-
-    Attributes
-    ----------
-    applied : bool
-        False when no test conditions were given (coefficients as measured).
-    test_density_kg_m3, reference_density_kg_m3 : float
-        Air density during the test and at reference [kg/m^3].
-    rolling_factor : float
-        ``1 + K0*(T - T_ref)``, applied to ``F0`` and ``F1`` [-].
-    coefficients : ndarray, shape (3,)
-        ``F0`` [N], ``F1`` [N*s/m], ``F2`` [N*s^2/m^2] at reference.
-    """
-
-    applied: bool
-    test_density_kg_m3: float
-    reference_density_kg_m3: float
-    rolling_factor: float
-    coefficients: FloatArray
 
 
 @dataclass(frozen=True)
@@ -242,7 +212,7 @@ def _start_guess(runs: Sequence[CoastDownRun], mass_kg: float, me: float) -> Flo
     drop = sum(float(r.speed_m_s[0] - r.speed_m_s[-1]) for r in runs)
     span = sum(float(r.time_s[-1] - r.time_s[0]) for r in runs)
     mean_force = me * drop / span
-    f0 = min(0.012 * mass_kg * _G, 0.5 * mean_force)
+    f0 = min(0.012 * mass_kg * STANDARD_GRAVITY_M_S2, 0.5 * mean_force)
     v2 = float(np.mean(np.concatenate([r.speed_m_s**2 for r in runs])))
     return np.array([f0, 0.0, max((mean_force - f0) / v2, 1e-3)])
 
@@ -282,24 +252,6 @@ def _direction_average(
     value = np.mean(means, axis=0)
     cov = sum(mean_covs) / len(means) ** 2
     return np.asarray(value, np.float64), np.asarray(cov, np.float64)
-
-
-def _reference(
-    coefficients: FloatArray,
-    temperature_k: float | None,
-    pressure_pa: float | None,
-    relative_humidity: float,
-) -> ReferenceCorrection:
-    rho_ref = air_density_kg_m3(REFERENCE_PRESSURE_PA, REFERENCE_TEMPERATURE_K, 0.0)
-    if temperature_k is None or pressure_pa is None:
-        return ReferenceCorrection(False, rho_ref, rho_ref, 1.0, coefficients.copy())
-    rho = air_density_kg_m3(pressure_pa, temperature_k, relative_humidity)
-    factor = 1.0 + ROLLING_TEMPERATURE_COEFFICIENT_PER_K * (
-        temperature_k - REFERENCE_TEMPERATURE_K
-    )
-    f0, f1, f2 = coefficients
-    corrected = np.array([f0 * factor, f1 * factor, f2 * rho_ref / rho])
-    return ReferenceCorrection(True, rho, rho_ref, factor, corrected)
 
 
 def _run_fit(run: CoastDownRun, x: FloatArray, resid: FloatArray) -> CoastDownRunFit:
@@ -417,7 +369,7 @@ def fit_coast_down(
     half = stats.t.ppf(0.5 + CONFIDENCE / 2.0, dof) * np.sqrt(np.maximum(np.diag(cov), 0.0))
     run_fits = tuple(_run_fit(r, s[0], s[2]) for r, s in zip(runs, solved, strict=True))
     resid = np.concatenate([s[2] for s in solved])
-    ref = _reference(value, temperature_k, pressure_pa, relative_humidity)
+    ref = reference_correction(value, temperature_k, pressure_pa, relative_humidity)
     return CoastDownFit(
         coefficients=value,
         low=np.maximum(value - half, 0.0),
@@ -428,6 +380,6 @@ def fit_coast_down(
         runs=run_fits,
         reference=ref,
         drag_area_m2=2.0 * float(ref.coefficients[2]) / ref.reference_density_kg_m3,
-        rolling_coefficient=float(ref.coefficients[0]) / (mass_kg * _G),
+        rolling_coefficient=float(ref.coefficients[0]) / (mass_kg * STANDARD_GRAVITY_M_S2),
         notices=tuple(_notices(run_fits, value, half)),
     )

@@ -34,7 +34,8 @@ from scipy.optimize import minimize_scalar
 
 from core.car.road_load import RoadLoadForm
 from core.car.traction import DriveLayout
-from core.runs.simulate import DriveModel
+from core.runs.drive_model import DriveModel
+from core.units import STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "MAX_GRADE_ANGLE_DEG",
@@ -49,7 +50,6 @@ FloatArray = NDArray[np.float64]
 MAX_GRADE_ANGLE_DEG = 85.0
 """The steepest slope reported [deg] (1143 %): a guard so every answer is a finite number."""
 _GRID = 257
-_STANDARD_GRAVITY = 9.80665  # [m/s^2]
 
 
 class GradeLimit(enum.Enum):
@@ -110,7 +110,7 @@ def steepest_grade_rad(
     """
     vehicle = model.vehicle
     load = vehicle.road_load
-    weight = vehicle.mass_kg * _STANDARD_GRAVITY
+    weight = vehicle.mass_kg * STANDARD_GRAVITY_M_S2
     rho = load.constant_n + load.linear_n_s_m * speed_m_s
     drag = load.quadratic_n_s2_m2 * speed_m_s**2
     scaled = load.form is not RoadLoadForm.COAST_DOWN  # rolling follows cos(theta)

@@ -14,11 +14,10 @@ ratio and ``r`` the tire rolling radius. Without inertia data, the mass factor
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.checks import require_non_negative, require_positive
 from core.errors import VehicleError
 
 __all__ = [
@@ -28,16 +27,6 @@ __all__ = [
 ]
 
 FloatArray = NDArray[np.float64]
-
-
-def _require_positive(value: float, name: str) -> None:
-    if not math.isfinite(value) or value <= 0.0:
-        raise VehicleError(f"`{name}` must be finite and > 0, got {value}", parameter=name)
-
-
-def _require_non_negative(value: float, name: str) -> None:
-    if not math.isfinite(value) or value < 0.0:
-        raise VehicleError(f"`{name}` must be finite and >= 0, got {value}", parameter=name)
 
 
 def _overall_ratios(overall_ratios: ArrayLike) -> FloatArray:
@@ -100,11 +89,11 @@ def rotating_mass_kg(
     array([373.3333,  88.8889])
     """
     ratios = _overall_ratios(overall_ratios)
-    _require_positive(final_drive_ratio, "final_drive_ratio")
-    _require_positive(rolling_radius_m, "rolling_radius_m")
-    _require_non_negative(engine_inertia_kg_m2, "engine_inertia_kg_m2")
-    _require_non_negative(driveshaft_inertia_kg_m2, "driveshaft_inertia_kg_m2")
-    _require_non_negative(wheel_inertia_kg_m2, "wheel_inertia_kg_m2")
+    require_positive(final_drive_ratio, "final_drive_ratio", VehicleError)
+    require_positive(rolling_radius_m, "rolling_radius_m", VehicleError)
+    require_non_negative(engine_inertia_kg_m2, "engine_inertia_kg_m2", VehicleError)
+    require_non_negative(driveshaft_inertia_kg_m2, "driveshaft_inertia_kg_m2", VehicleError)
+    require_non_negative(wheel_inertia_kg_m2, "wheel_inertia_kg_m2", VehicleError)
     inertia_at_wheels = (
         engine_inertia_kg_m2 * ratios**2
         + driveshaft_inertia_kg_m2 * final_drive_ratio**2
@@ -152,6 +141,6 @@ def equivalent_mass_kg(mass_kg: float, overall_ratios: ArrayLike) -> FloatArray:
     ndarray, shape (n,)
         Equivalent mass to accelerate [kg].
     """
-    _require_positive(mass_kg, "mass_kg")
+    require_positive(mass_kg, "mass_kg", VehicleError)
     result: FloatArray = mass_kg * mass_factor(overall_ratios)
     return result

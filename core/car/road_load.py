@@ -23,7 +23,9 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.checks import require_finite, require_non_negative, require_positive
 from core.errors import VehicleError
+from core.units import MPH_M_S, STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "RADIAL_ROLLING_COEFFICIENT",
@@ -35,11 +37,9 @@ __all__ = [
 
 FloatArray = NDArray[np.float64]
 
-_STANDARD_GRAVITY = 9.80665  # [m/s^2]
-_MPH_TO_M_S = 0.44704
 RADIAL_ROLLING_COEFFICIENT = 0.0041
 """Speed-independent rolling coefficient of radial tires, ``f0`` [-] (Gillespie ch. 4)."""
-RADIAL_ROLLING_SPEED_COEFFICIENT_S_M = 0.000041 / _MPH_TO_M_S
+RADIAL_ROLLING_SPEED_COEFFICIENT_S_M = 0.000041 / MPH_M_S
 """Speed coefficient of radial tires, ``f1`` [s/m]: 0.000041 per mph (Gillespie ch. 4)."""
 
 
@@ -49,23 +49,6 @@ class RoadLoadForm(enum.Enum):
     CONSTANT_ROLLING = "constant_rolling"
     SPEED_DEPENDENT_ROLLING = "speed_dependent_rolling"
     COAST_DOWN = "coast_down"
-
-
-def _require_finite(value: float, name: str) -> None:
-    if not math.isfinite(value):
-        raise VehicleError(f"`{name}` must be finite, got {value}", parameter=name)
-
-
-def _require_positive(value: float, name: str) -> None:
-    _require_finite(value, name)
-    if value <= 0.0:
-        raise VehicleError(f"`{name}` must be > 0, got {value:g}", parameter=name)
-
-
-def _require_non_negative(value: float, name: str) -> None:
-    _require_finite(value, name)
-    if value < 0.0:
-        raise VehicleError(f"`{name}` must be >= 0, got {value:g}", parameter=name)
 
 
 @dataclass(frozen=True)
@@ -100,11 +83,11 @@ class RoadLoad:
     grade_percent: float = 0.0
 
     def __post_init__(self) -> None:
-        _require_positive(self.mass_kg, "mass_kg")
-        _require_non_negative(self.constant_n, "constant_n")
-        _require_non_negative(self.linear_n_s_m, "linear_n_s_m")
-        _require_non_negative(self.quadratic_n_s2_m2, "quadratic_n_s2_m2")
-        _require_finite(self.grade_percent, "grade_percent")
+        require_positive(self.mass_kg, "mass_kg", VehicleError)
+        require_non_negative(self.constant_n, "constant_n", VehicleError)
+        require_non_negative(self.linear_n_s_m, "linear_n_s_m", VehicleError)
+        require_non_negative(self.quadratic_n_s2_m2, "quadratic_n_s2_m2", VehicleError)
+        require_finite(self.grade_percent, "grade_percent", VehicleError)
 
     @classmethod
     def from_constant_rolling(
@@ -140,14 +123,14 @@ class RoadLoad:
         >>> load.force_n([0.0, 10.0]).round(5).tolist()
         [98.0665, 134.0665]
         """
-        _require_positive(mass_kg, "mass_kg")
-        _require_non_negative(drag_area_m2, "drag_area_m2")
-        _require_positive(air_density_kg_m3, "air_density_kg_m3")
-        _require_non_negative(rolling_coefficient, "rolling_coefficient")
+        require_positive(mass_kg, "mass_kg", VehicleError)
+        require_non_negative(drag_area_m2, "drag_area_m2", VehicleError)
+        require_positive(air_density_kg_m3, "air_density_kg_m3", VehicleError)
+        require_non_negative(rolling_coefficient, "rolling_coefficient", VehicleError)
         return cls(
             form=RoadLoadForm.CONSTANT_ROLLING,
             mass_kg=mass_kg,
-            constant_n=rolling_coefficient * mass_kg * _STANDARD_GRAVITY,
+            constant_n=rolling_coefficient * mass_kg * STANDARD_GRAVITY_M_S2,
             linear_n_s_m=0.0,
             quadratic_n_s2_m2=0.5 * air_density_kg_m3 * drag_area_m2,
             grade_percent=grade_percent,
@@ -184,12 +167,14 @@ class RoadLoad:
         -------
         RoadLoad
         """
-        _require_positive(mass_kg, "mass_kg")
-        _require_non_negative(drag_area_m2, "drag_area_m2")
-        _require_positive(air_density_kg_m3, "air_density_kg_m3")
-        _require_non_negative(rolling_coefficient, "rolling_coefficient")
-        _require_non_negative(rolling_speed_coefficient_s_m, "rolling_speed_coefficient_s_m")
-        weight_n = mass_kg * _STANDARD_GRAVITY
+        require_positive(mass_kg, "mass_kg", VehicleError)
+        require_non_negative(drag_area_m2, "drag_area_m2", VehicleError)
+        require_positive(air_density_kg_m3, "air_density_kg_m3", VehicleError)
+        require_non_negative(rolling_coefficient, "rolling_coefficient", VehicleError)
+        require_non_negative(
+            rolling_speed_coefficient_s_m, "rolling_speed_coefficient_s_m", VehicleError
+        )
+        weight_n = mass_kg * STANDARD_GRAVITY_M_S2
         return cls(
             form=RoadLoadForm.SPEED_DEPENDENT_ROLLING,
             mass_kg=mass_kg,
@@ -227,10 +212,10 @@ class RoadLoad:
         -------
         RoadLoad
         """
-        _require_positive(mass_kg, "mass_kg")
-        _require_non_negative(f0_n, "f0_n")
-        _require_non_negative(f1_n_s_m, "f1_n_s_m")
-        _require_non_negative(f2_n_s2_m2, "f2_n_s2_m2")
+        require_positive(mass_kg, "mass_kg", VehicleError)
+        require_non_negative(f0_n, "f0_n", VehicleError)
+        require_non_negative(f1_n_s_m, "f1_n_s_m", VehicleError)
+        require_non_negative(f2_n_s2_m2, "f2_n_s2_m2", VehicleError)
         return cls(
             form=RoadLoadForm.COAST_DOWN,
             mass_kg=mass_kg,
@@ -248,7 +233,7 @@ class RoadLoad:
     @property
     def grade_force_n(self) -> float:
         """Grade force ``m*g*sin(theta)`` [N]; negative downhill."""
-        return self.mass_kg * _STANDARD_GRAVITY * math.sin(self.grade_angle_rad)
+        return self.mass_kg * STANDARD_GRAVITY_M_S2 * math.sin(self.grade_angle_rad)
 
     @property
     def rolling_normal_factor(self) -> float:
@@ -335,8 +320,8 @@ def gradeability_percent(
     >>> gradeability_percent([0.0, 9.80665 * 1000 / 2**0.5], 1000.0).round(6).tolist()
     [0.0, 100.0]
     """
-    _require_positive(mass_kg, "mass_kg")
-    _require_non_negative(rolling_coefficient, "rolling_coefficient")
+    require_positive(mass_kg, "mass_kg", VehicleError)
+    require_non_negative(rolling_coefficient, "rolling_coefficient", VehicleError)
     force = np.asarray(net_force_n, dtype=np.float64)
     flat = force.reshape(-1)
     bad = np.flatnonzero(np.isnan(flat))
@@ -344,7 +329,7 @@ def gradeability_percent(
         index = int(bad[0])
         where = "net_force_n" if force.ndim == 0 else f"net_force_n[{index}]"
         raise VehicleError(f"`{where}` must not be NaN", parameter=where)
-    weight_n = mass_kg * _STANDARD_GRAVITY
+    weight_n = mass_kg * STANDARD_GRAVITY_M_S2
     phi = math.atan(rolling_coefficient)
     ratio = force / (weight_n * math.hypot(1.0, rolling_coefficient))
     theta = np.arcsin(np.clip(ratio, -1.0, 1.0)) - phi

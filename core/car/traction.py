@@ -27,7 +27,9 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.checks import require_positive, require_range
 from core.errors import VehicleError
+from core.units import STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "AxleGeometry",
@@ -40,8 +42,6 @@ __all__ = [
 
 FloatArray = NDArray[np.float64]
 
-_STANDARD_GRAVITY = 9.80665  # [m/s^2]
-
 
 class DriveLayout(enum.Enum):
     """Which axles are driven. ``ALL`` takes a front torque share in ``traction_limit_n``."""
@@ -49,18 +49,6 @@ class DriveLayout(enum.Enum):
     REAR = "rear"
     FRONT = "front"
     ALL = "all"
-
-
-def _require_positive(value: float, name: str) -> None:
-    if not math.isfinite(value):
-        raise VehicleError(f"`{name}` must be finite, got {value}", parameter=name)
-    if value <= 0.0:
-        raise VehicleError(f"`{name}` must be > 0, got {value:g}", parameter=name)
-
-
-def _require_share(value: float, name: str) -> None:
-    if not 0.0 <= value <= 1.0:  # also rejects NaN
-        raise VehicleError(f"`{name}` must lie in [0, 1], got {value:g}", parameter=name)
 
 
 @dataclass(frozen=True)
@@ -82,8 +70,8 @@ class AxleGeometry:
     cg_to_front_axle_m: float
 
     def __post_init__(self) -> None:
-        _require_positive(self.wheelbase_m, "wheelbase_m")
-        _require_positive(self.cg_height_m, "cg_height_m")
+        require_positive(self.wheelbase_m, "wheelbase_m", VehicleError)
+        require_positive(self.cg_height_m, "cg_height_m", VehicleError)
         if not 0.0 <= self.cg_to_front_axle_m <= self.wheelbase_m:
             raise VehicleError(
                 f"`cg_to_front_axle_m` must lie in [0, wheelbase_m = {self.wheelbase_m:g}], "
@@ -117,8 +105,8 @@ class AxleGeometry:
         >>> AxleGeometry.from_front_weight_share(2.5, 0.5, 0.6).cg_to_front_axle_m
         1.0
         """
-        _require_positive(wheelbase_m, "wheelbase_m")
-        _require_share(front_weight_share, "front_weight_share")
+        require_positive(wheelbase_m, "wheelbase_m", VehicleError)
+        require_range(front_weight_share, "front_weight_share", 0.0, 1.0, VehicleError)
         return cls(wheelbase_m, cg_height_m, (1.0 - front_weight_share) * wheelbase_m)
 
     @classmethod
@@ -140,8 +128,8 @@ class AxleGeometry:
         -------
         AxleGeometry
         """
-        _require_positive(front_axle_kg, "front_axle_kg")
-        _require_positive(rear_axle_kg, "rear_axle_kg")
+        require_positive(front_axle_kg, "front_axle_kg", VehicleError)
+        require_positive(rear_axle_kg, "rear_axle_kg", VehicleError)
         share = front_axle_kg / (front_axle_kg + rear_axle_kg)
         return cls.from_front_weight_share(wheelbase_m, cg_height_m, share)
 
@@ -199,7 +187,7 @@ def axle_loads(mass_kg: float, geometry: AxleGeometry, acceleration_m_s2: ArrayL
     >>> loads.front_n.round(4).tolist(), loads.rear_n.round(4).tolist()
     ([4903.325, 2451.6625], [4903.325, 7354.9875])
     """
-    _require_positive(mass_kg, "mass_kg")
+    require_positive(mass_kg, "mass_kg", VehicleError)
     acceleration = np.asarray(acceleration_m_s2, dtype=np.float64)
     flat = acceleration.reshape(-1)
     bad = np.flatnonzero(~np.isfinite(flat))
@@ -207,9 +195,9 @@ def axle_loads(mass_kg: float, geometry: AxleGeometry, acceleration_m_s2: ArrayL
         index = int(bad[0])
         where = "acceleration_m_s2" if acceleration.ndim == 0 else f"acceleration_m_s2[{index}]"
         raise VehicleError(f"`{where}` must be finite, got {flat[index]}", parameter=where)
-    weight_n = mass_kg * _STANDARD_GRAVITY
+    weight_n = mass_kg * STANDARD_GRAVITY_M_S2
     length = geometry.wheelbase_m
-    transfer = weight_n * (acceleration / _STANDARD_GRAVITY) * geometry.cg_height_m / length
+    transfer = weight_n * (acceleration / STANDARD_GRAVITY_M_S2) * geometry.cg_height_m / length
     front: FloatArray = weight_n * geometry.cg_to_rear_axle_m / length - transfer
     rear: FloatArray = weight_n * geometry.cg_to_front_axle_m / length + transfer
     return AxleLoads(front_n=front, rear_n=rear)
@@ -284,15 +272,15 @@ def traction_limit_n(
     >>> round(traction_limit_n(1000.0, g, 1.0, DriveLayout.ALL, front_torque_share=0.3), 3)
     9806.65
     """
-    _require_positive(mass_kg, "mass_kg")
-    _require_positive(friction_coefficient, "friction_coefficient")
+    require_positive(mass_kg, "mass_kg", VehicleError)
+    require_positive(friction_coefficient, "friction_coefficient", VehicleError)
     if layout is DriveLayout.ALL:
         if front_torque_share is None:
             raise VehicleError(
                 "`front_torque_share` must be given for all-wheel drive, got None",
                 parameter="front_torque_share",
             )
-        _require_share(front_torque_share, "front_torque_share")
+        require_range(front_torque_share, "front_torque_share", 0.0, 1.0, VehicleError)
         share = front_torque_share
     elif front_torque_share is not None:
         raise VehicleError(
@@ -311,7 +299,7 @@ def traction_limit_n(
         raise VehicleError(
             f"`grade_percent` must be finite, got {grade_percent}", parameter="grade_percent"
         )
-    normal_n = mass_kg * _STANDARD_GRAVITY * math.cos(math.atan(grade_percent / 100.0))
+    normal_n = mass_kg * STANDARD_GRAVITY_M_S2 * math.cos(math.atan(grade_percent / 100.0))
     limit = grip_limit_n(
         np.array([normal_n]),
         np.array([rolling_resistance_n]),

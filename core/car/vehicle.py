@@ -4,7 +4,6 @@ and how the drive is taken up at launch (clutch or torque converter)."""
 from __future__ import annotations
 
 import enum
-import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -13,6 +12,7 @@ from numpy.typing import NDArray
 from core.car.inertia import mass_factor, rotating_mass_kg
 from core.car.road_load import RoadLoad
 from core.car.traction import AxleGeometry, DriveLayout, traction_limit_n
+from core.checks import require_range
 from core.converter.tables import TorqueConverter
 from core.driveline.drivetrain import Drivetrain
 from core.driveline.tires import Tire
@@ -24,13 +24,6 @@ FloatArray = NDArray[np.float64]
 MIN_FRICTION_COEFFICIENT = 0.05
 """Least tire-road friction coefficient accepted [-]: glare ice is about 0.05-0.1 (common
 practice); below it no car accelerates or climbs."""
-
-
-def _check(value: float, name: str, low: float, high: float, *, open_low: bool = False) -> None:
-    ok = math.isfinite(value) and (value > low if open_low else value >= low) and value <= high
-    if not ok:
-        bound = f"({low:g}, {high:g}]" if open_low else f"[{low:g}, {high:g}]"
-        raise VehicleError(f"`{name}` must lie in {bound}, got {value}", parameter=name)
 
 
 @dataclass(frozen=True)
@@ -53,9 +46,9 @@ class RotatingInertia:
     wheels_kg_m2: float
 
     def __post_init__(self) -> None:
-        _check(self.engine_kg_m2, "engine_kg_m2", 0.0, 10.0)
-        _check(self.driveshaft_kg_m2, "driveshaft_kg_m2", 0.0, 10.0)
-        _check(self.wheels_kg_m2, "wheels_kg_m2", 0.0, 200.0)
+        require_range(self.engine_kg_m2, "engine_kg_m2", 0.0, 10.0, VehicleError)
+        require_range(self.driveshaft_kg_m2, "driveshaft_kg_m2", 0.0, 10.0, VehicleError)
+        require_range(self.wheels_kg_m2, "wheels_kg_m2", 0.0, 200.0, VehicleError)
 
 
 @dataclass(frozen=True)
@@ -89,8 +82,14 @@ class Vehicle:
     inertia: RotatingInertia | None = None
 
     def __post_init__(self) -> None:
-        _check(self.mass_kg, "mass_kg", 50.0, 50_000.0)
-        _check(self.friction_coefficient, "friction_coefficient", MIN_FRICTION_COEFFICIENT, 5.0)
+        require_range(self.mass_kg, "mass_kg", 50.0, 50_000.0, VehicleError)
+        require_range(
+            self.friction_coefficient,
+            "friction_coefficient",
+            MIN_FRICTION_COEFFICIENT,
+            5.0,
+            VehicleError,
+        )
 
     def traction_limit_n(self) -> float:
         """Largest tractive force the driven tires put down, with weight transfer [N].
@@ -174,8 +173,8 @@ class Launch:
     shift_time_s: float = 0.25
 
     def __post_init__(self) -> None:
-        _check(self.launch_rpm, "launch_rpm", 300.0, 30_000.0)
-        _check(self.shift_time_s, "shift_time_s", 0.0, 5.0)
+        require_range(self.launch_rpm, "launch_rpm", 300.0, 30_000.0, VehicleError)
+        require_range(self.shift_time_s, "shift_time_s", 0.0, 5.0, VehicleError)
         if self.coupling is Coupling.CONVERTER and self.converter is None:
             raise VehicleError(
                 "`converter` must be given with a converter coupling", parameter="converter"

@@ -4,7 +4,7 @@ With final drive ``f_c`` the overall ratio in gear g is ``gear_g * f_c * extra``
 candidate ratio c puts the same engine, converter, tires and road load behind a different
 gearing, so a gear's force and acceleration for every candidate are arrays of shape (c, n)
 evaluated in one numpy call; engine and converter come from
-:meth:`core.runs.simulate.DriveModel.gearbox_input`, the same code the one-car model uses:
+:meth:`core.runs.drive_model.DriveModel.gearbox_input`, the same code the one-car model uses:
 a clutch slipping at the launch rpm in the launch gear, a converter solved by
 :func:`core.converter.matching.converter_operating_points` on the flattened grid (locked 1:1
 in lock-up gears above the curve's first rpm), the traction cap, the rotating mass of the
@@ -29,7 +29,7 @@ from core.engine.curves import RPM_TO_RAD_S
 from core.errors import DrivetrainError
 
 if TYPE_CHECKING:
-    from core.runs.simulate import DriveModel
+    from core.runs.drive_model import DriveModel
 
 __all__ = [
     "BatchTopSpeed",
@@ -44,7 +44,9 @@ __all__ = [
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
+BoolArray = NDArray[np.bool_]
 _TOP_SPEED_GRID = 257  # as core.runs.performance.top_speed
+_TOP_SPEED_BLOCK = 128  # candidates scanned together: (128, 257) doubles stay in cache
 _SHARED_RTOL = 1e-12
 
 
@@ -239,6 +241,32 @@ class BatchTopSpeed:
     by_gear_m_s: FloatArray
 
 
+def _gear_top_speeds(
+    model: DriveModel, gear: int, ratio: FloatArray, torque: FloatArray
+) -> tuple[FloatArray, BoolArray]:
+    """Top speed in one gear of each candidate [m/s] (NaN where it holds no speed) and
+    whether drag sets it, from the gear's torque over the shared engine-speed row."""
+    r = model.tire.rolling_radius_m
+    lo = model.curve.rpm_min * RPM_TO_RAD_S * r / ratio
+    hi = model.rev_limit_rpm * RPM_TO_RAD_S * r / ratio
+    v = np.linspace(lo, hi, _TOP_SPEED_GRID, axis=-1)
+    force = torque[None, :] * (ratio * float(model.efficiency[gear]) / r)[:, None]
+    spare = np.minimum(force, model.traction_limit_n) - model.vehicle.road_load.force_n(v)
+    spare[:, -1] = np.minimum(spare[:, -1], spare[:, -2])  # the limiter cuts drive
+    strong = spare > 0.0
+    holds = strong.any(axis=1)
+    first = np.argmax(strong, axis=1)  # the car reaches the gear's range above here
+    neg = (spare <= 0.0) & (np.arange(_TOP_SPEED_GRID)[None, :] >= first[:, None])
+    k = np.argmax(neg, axis=1)
+    crosses = holds & neg.any(axis=1)
+    km = np.maximum(k - 1, 0)
+    s0, s1 = take_rows(spare, km), take_rows(spare, k)
+    v0, v1 = take_rows(v, km), take_rows(v, k)
+    frac = np.where(crosses, s0 / np.where(crosses, s0 - s1, 1.0), 0.0)
+    speed = np.where(crosses, v0 + frac * (v1 - v0), np.where(holds, hi, np.nan))
+    return speed, crosses
+
+
 def batch_top_speed(model: DriveModel, final_drive_ratio: ArrayLike) -> BatchTopSpeed:
     """Top speed with each final drive ratio, as :func:`core.runs.performance.top_speed`.
 
@@ -258,31 +286,20 @@ def batch_top_speed(model: DriveModel, final_drive_ratio: ArrayLike) -> BatchTop
     r = model.tire.rolling_radius_m
     by_gear = np.full(overall.shape, np.nan)
     drag = np.zeros(overall.shape, dtype=np.bool_)
-    cols = np.arange(_TOP_SPEED_GRID)[None, :]
     for g in range(overall.shape[1]):
-        ratio = overall[:, g]
-        lo = model.curve.rpm_min * RPM_TO_RAD_S * r / ratio
-        hi = model.rev_limit_rpm * RPM_TO_RAD_S * r / ratio
-        v = np.linspace(lo, hi, _TOP_SPEED_GRID, axis=-1)
         # every scan runs over the same engine speeds, curve start to rev limit: one row of
         # torque serves all candidates (never above the limit, so never cut)
-        row = v[0] * ratio[0] / (r * RPM_TO_RAD_S)
-        torque = model.gearbox_input(g, row)[0]
-        force = torque[None, :] * (ratio * float(model.efficiency[g]) / r)[:, None]
-        spare = np.minimum(force, model.traction_limit_n) - model.vehicle.road_load.force_n(v)
-        spare[:, -1] = np.minimum(spare[:, -1], spare[:, -2])  # the limiter cuts drive
-        strong = spare > 0.0
-        holds = strong.any(axis=1)
-        first = np.argmax(strong, axis=1)  # the car reaches the gear's range above here
-        neg = (spare <= 0.0) & (cols >= first[:, None])
-        k = np.argmax(neg, axis=1)
-        crosses = holds & neg.any(axis=1)
-        km = np.maximum(k - 1, 0)
-        s0, s1 = take_rows(spare, km), take_rows(spare, k)
-        v0, v1 = take_rows(v, km), take_rows(v, k)
-        frac = np.where(crosses, s0 / np.where(crosses, s0 - s1, 1.0), 0.0)
-        by_gear[:, g] = np.where(crosses, v0 + frac * (v1 - v0), np.where(holds, hi, np.nan))
-        drag[:, g] = crosses
+        first = overall[0, g]
+        lo = model.curve.rpm_min * RPM_TO_RAD_S * r / first
+        row = np.linspace(lo, model.rev_limit_rpm * RPM_TO_RAD_S * r / first, _TOP_SPEED_GRID)
+        torque = model.gearbox_input(g, row * first / (r * RPM_TO_RAD_S))[0]
+        # candidates a block at a time: the scans of a block stay in the processor's cache,
+        # so the cost grows linearly with the candidates (each row is computed alone)
+        for start in range(0, f.size, _TOP_SPEED_BLOCK):
+            block = slice(start, start + _TOP_SPEED_BLOCK)
+            by_gear[block, g], drag[block, g] = _gear_top_speeds(
+                model, g, overall[block, g], torque
+            )
     filled = np.where(np.isnan(by_gear), -np.inf, by_gear)
     best = np.argmax(filled, axis=1)
     none = np.all(np.isnan(by_gear), axis=1)

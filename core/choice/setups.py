@@ -20,10 +20,11 @@ from core.driveline.drivetrain import Drivetrain
 from core.driveline.gearing import engine_rpm_at_speed
 from core.driveline.tires import Tire
 from core.engine.curves import TorqueCurve
+from core.notices import Notice
+from core.runs.drive_model import drive_model
 from core.runs.performance import ShiftCriterion, acceleration_shift_points
 from core.runs.report import RunReport, run_report
-from core.runs.simulate import drive_model
-from core.shifts.plan import Notice, ShiftPlan, ShiftPoint, shift_plan
+from core.shifts.plan import ShiftPlan, ShiftPoint, shift_plan
 
 __all__ = ["Setup", "SetupFigures", "setup_figures"]
 

@@ -29,16 +29,17 @@ from core.choice.sweep_spec import (
     SweepConstraints,
     SweepObjective,
     checked_sweep,
-    checked_sweep_shift_rpm,
 )
 from core.driveline.drivetrain import Drivetrain
 from core.driveline.tires import Tire
 from core.engine.curves import RPM_TO_RAD_S, TorqueCurve
 from core.errors import SimulationError
+from core.notices import Notice
 from core.runs.batch import BatchRuns, batch_runs
-from core.runs.milestones import FOOT_M
-from core.runs.simulate import drive_model
-from core.shifts.plan import Notice, resolve_rev_limit, shift_plan
+from core.runs.drive_model import drive_model
+from core.runs.milestones import STANDARD_ROLLOUT_M
+from core.shifts.plan import resolve_rev_limit, shift_plan
+from core.shifts.shift_rpm import checked_shift_rpm
 
 __all__ = ["FinalDriveSweep", "sweep_final_drives"]
 
@@ -129,7 +130,7 @@ def sweep_final_drives(
     shift_rpm: ArrayLike | None = None,
     constraints: SweepConstraints | None = None,
     cruise_target: CruiseTarget | None = None,
-    rollout_m: float = FOOT_M,
+    rollout_m: float = STANDARD_ROLLOUT_M,
 ) -> FinalDriveSweep:
     """Rank candidate final drive ratios for one car.
 
@@ -185,7 +186,7 @@ def sweep_final_drives(
         shifts = np.array([s.shift_rpm for s in plan.shifts], dtype=np.float64)
         notes = list(plan.notices)
     else:
-        shifts = checked_sweep_shift_rpm(curve, limit, gears, shift_rpm)
+        shifts = checked_shift_rpm(curve, limit, gears, shift_rpm)
         notes = list(notices)
     landing = shifts * drivetrain.gear_ratios[1:] / drivetrain.gear_ratios[:-1]
     model = None

@@ -24,9 +24,10 @@ from core.driveline.drivetrain import Drivetrain
 from core.driveline.tires import Tire
 from core.engine.curves import RPM_TO_RAD_S
 from core.errors import SimulationError
+from core.runs.drive_model import DriveModel
 from core.runs.milestones import timed_distance, timed_speed
 from core.runs.performance import top_speed
-from core.runs.simulate import DriveModel, simulate_run
+from core.runs.simulate import simulate_run
 
 __all__ = ["SweepOptimum", "continuous_optimum", "objective_at", "top_gear_rpm"]
 

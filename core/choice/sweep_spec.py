@@ -10,12 +10,13 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.typing import ArrayLike, NDArray
+from numpy.typing import NDArray
 
+from core.checks import require_positive
 from core.choice.batch_drive import checked_final_drives
-from core.engine.curves import TorqueCurve
 from core.errors import DrivetrainError, SimulationError
-from core.runs.milestones import KMH, MPH, STANDARD_DISTANCES
+from core.runs.milestones import STANDARD_DISTANCES
+from core.units import KM_H_M_S, MPH_M_S
 
 __all__ = [
     "MAX_CANDIDATES",
@@ -27,7 +28,6 @@ __all__ = [
     "SweepConstraints",
     "SweepObjective",
     "checked_sweep",
-    "checked_sweep_shift_rpm",
     "final_drive_range",
 ]
 
@@ -39,7 +39,7 @@ MAX_CANDIDATES = 200
 MAX_CANDIDATE_GEARS = 1200
 """Candidates times forward gears per sweep: bounds the work of one sweep."""
 SWEEP_DISTANCES = tuple(d for d in STANDARD_DISTANCES if d[0] in ("60 ft", "1/8 mile", "1/4 mile"))
-SWEEP_SPEEDS = (("0-60 mph", 0.0, 60.0 * MPH), ("0-100 km/h", 0.0, 100.0 * KMH))
+SWEEP_SPEEDS = (("0-60 mph", 0.0, 60.0 * MPH_M_S), ("0-100 km/h", 0.0, 100.0 * KM_H_M_S))
 
 
 class SweepObjective(enum.Enum):
@@ -215,47 +215,5 @@ def checked_sweep(
     if cruise_target is not None:
         values += [("speed_m_s", cruise_target.speed_m_s), ("rpm", cruise_target.rpm)]
     for name, value in values:
-        if value is not None and (not math.isfinite(value) or value <= 0.0):
-            raise SimulationError(f"`{name}` must be finite and > 0, got {value}", parameter=name)
-
-
-def checked_sweep_shift_rpm(
-    curve: TorqueCurve, limit: float, gears: int, shift_rpm: ArrayLike
-) -> FloatArray:
-    """The caller's shift rpms, checked as :func:`core.runs.simulate.simulate_run` checks them.
-
-    Parameters
-    ----------
-    curve : TorqueCurve
-        The torque curve.
-    limit : float
-        Rev limit in use [rpm].
-    gears : int
-        Forward gears.
-    shift_rpm : array_like, shape (g - 1,)
-        Shift rpm per gear change [rpm].
-
-    Returns
-    -------
-    ndarray, shape (g - 1,)
-
-    Raises
-    ------
-    SimulationError
-        On the wrong count, or an rpm not above the curve's first point and at most the
-        rev limit.
-    """
-    shifts = np.asarray(shift_rpm, dtype=np.float64)
-    if shifts.shape != (gears - 1,):
-        raise SimulationError(
-            f"`shift_rpm` must give one rpm per gear change ({gears - 1}), got {shifts.size}",
-            parameter="shift_rpm",
-        )
-    for i, n in enumerate(shifts.tolist()):
-        if not math.isfinite(n) or not curve.rpm_min < n <= limit + 1e-9:
-            raise SimulationError(
-                f"`shift_rpm[{i}]` must lie above the curve's first point ({curve.rpm_min:g}) "
-                f"and at most the rev limit ({limit:g}), got {n:g}",
-                parameter=f"shift_rpm[{i}]",
-            )
-    return shifts
+        if value is not None:
+            require_positive(value, name, SimulationError)

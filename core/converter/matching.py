@@ -8,7 +8,6 @@ stall speed.
 
 from __future__ import annotations
 
-import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
@@ -16,6 +15,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 from scipy.optimize import brentq
 
+from core.checks import require_positive
 from core.converter.tables import TorqueConverter
 from core.errors import CurveError, VehicleError
 
@@ -35,11 +35,6 @@ _BISECTION_STEPS = 28  # brackets narrow to (rpm_max - rpm_min) / 2**28, below 1
 
 def _fail(name: str, condition: str) -> VehicleError:
     return VehicleError(f"`{name}` {condition}", parameter=name)
-
-
-def _require_positive(value: float, name: str) -> None:
-    if not math.isfinite(value) or value <= 0.0:
-        raise _fail(name, f"must be finite and > 0, got {value}")
 
 
 @dataclass(frozen=True, eq=False)
@@ -74,8 +69,8 @@ class ConverterOperatingPoints:
 
 
 def _check_rpm_bounds(rpm_min: float, rpm_max: float) -> None:
-    _require_positive(rpm_min, "rpm_min")
-    _require_positive(rpm_max, "rpm_max")
+    require_positive(rpm_min, "rpm_min", VehicleError)
+    require_positive(rpm_max, "rpm_max", VehicleError)
     if rpm_max <= rpm_min:
         raise _fail("rpm_max", f"must be > `rpm_min` {rpm_min:g}, got {rpm_max:g}")
 

@@ -7,7 +7,7 @@ capacity the converter must have, ``K = n/sqrt(T(n))``, and so its speed ratio,
 ``SR = K^-1(n/sqrt(T(n)))``, and the turbine speed ``SR*n`` it belongs to: no equation to
 solve, one interpolation per engine speed. Evaluated once per car on a dense row of engine
 speeds, it gives engine speed and output torque as functions of turbine speed, which a run
-reads by linear interpolation (:meth:`core.runs.simulate.DriveModel.gearbox_input`).
+reads by linear interpolation (:meth:`core.runs.drive_model.DriveModel.gearbox_input`).
 
 Where no balance lies between the curve's first rpm and the rev limit the engine is held
 at the end it is pushed against, as :func:`core.converter.matching.converter_operating_points`

@@ -19,6 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.checks import require_positive
 from core.errors import VehicleError
 
 __all__ = ["TorqueConverter"]
@@ -32,11 +33,6 @@ _UNITY_K_MULTIPLIER = 10.0
 
 def _fail(name: str, condition: str) -> VehicleError:
     return VehicleError(f"`{name}` {condition}", parameter=name)
-
-
-def _require_positive(value: float, name: str) -> None:
-    if not math.isfinite(value) or value <= 0.0:
-        raise _fail(name, f"must be finite and > 0, got {value}")
 
 
 def _table(values: ArrayLike, name: str, size: int | None = None) -> FloatArray:
@@ -165,15 +161,15 @@ class TorqueConverter:
                     "stall_k_factor",
                     "or `stall_speed_rpm` with `stall_engine_torque_nm` must be given",
                 )
-            _require_positive(stall_speed_rpm, "stall_speed_rpm")
-            _require_positive(stall_engine_torque_nm, "stall_engine_torque_nm")
+            require_positive(stall_speed_rpm, "stall_speed_rpm", VehicleError)
+            require_positive(stall_engine_torque_nm, "stall_engine_torque_nm", VehicleError)
             stall_k_factor = stall_speed_rpm / math.sqrt(stall_engine_torque_nm)
         elif stall_speed_rpm is not None or stall_engine_torque_nm is not None:
             raise _fail(
                 "stall_k_factor",
                 "cannot be combined with `stall_speed_rpm` or `stall_engine_torque_nm`",
             )
-        _require_positive(stall_k_factor, "stall_k_factor")
+        require_positive(stall_k_factor, "stall_k_factor", VehicleError)
         if not (math.isfinite(stall_torque_ratio) and stall_torque_ratio >= 1.0):
             raise _fail("stall_torque_ratio", f"must be finite and >= 1, got {stall_torque_ratio}")
         if not 0.0 < coupling_speed_ratio < 1.0:

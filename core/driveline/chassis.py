@@ -31,10 +31,11 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.checks import require_range
 from core.driveline.drivetrain import MAX_GEARS
 from core.engine.curves import RPM_TO_RAD_S
 from core.errors import CurveError, DrivetrainError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = [
     "MAX_LOSS_PERCENT",
@@ -87,14 +88,6 @@ def efficiency_from_loss(loss_percent: float) -> float:
     return round(1.0 - loss_percent / 100.0, 12)
 
 
-def _checked_efficiency(eta: float, name: str) -> float:
-    if not (math.isfinite(eta) and MIN_EFFICIENCY <= eta <= 1.0):
-        raise DrivetrainError(
-            f"`{name}` must lie in [{MIN_EFFICIENCY:g}, 1], got {eta}", parameter=name
-        )
-    return float(eta)
-
-
 def engine_from_wheel(wheel: ArrayLike, efficiency: float) -> FloatArray:
     """Engine figure estimated from a wheel figure (power, or torque referred to the engine).
 
@@ -103,7 +96,7 @@ def engine_from_wheel(wheel: ArrayLike, efficiency: float) -> FloatArray:
     >>> engine_from_wheel([170.0], 0.85).round(9).tolist()
     [200.0]
     """
-    eta = _checked_efficiency(efficiency, "efficiency")
+    eta = require_range(efficiency, "efficiency", MIN_EFFICIENCY, 1.0, DrivetrainError)
     return np.asarray(wheel, dtype=np.float64) / eta
 
 
@@ -115,7 +108,7 @@ def wheel_from_engine(engine: ArrayLike, efficiency: float) -> FloatArray:
     >>> wheel_from_engine([200.0], 0.85).round(9).tolist()
     [170.0]
     """
-    eta = _checked_efficiency(efficiency, "efficiency")
+    eta = require_range(efficiency, "efficiency", MIN_EFFICIENCY, 1.0, DrivetrainError)
     return np.asarray(engine, dtype=np.float64) * eta
 
 
@@ -195,6 +188,50 @@ def _curve(
     return n, power
 
 
+def _checked_efficiencies(
+    efficiency: float | Sequence[float], measured_gear: int | None, fixed_loss_w: float
+) -> tuple[float, FloatArray | None]:
+    """The efficiency of the measured gear [-] and, given per gear, every gear's; with the
+    fixed loss [W] checked against them."""
+    if not (math.isfinite(fixed_loss_w) and 0.0 <= fixed_loss_w <= 500e3):
+        raise DrivetrainError(
+            f"`fixed_loss_w` must lie in [0, 500000], got {fixed_loss_w:g}",
+            parameter="fixed_loss_w",
+        )
+    if fixed_loss_w > 0.0 and not isinstance(efficiency, (int, float)):
+        raise DrivetrainError(
+            "`fixed_loss_w` goes with a single efficiency, not per-gear ones",
+            parameter="fixed_loss_w",
+        )
+    per_gear = None
+    if isinstance(efficiency, (int, float)):
+        if measured_gear is not None:
+            raise DrivetrainError(
+                "`measured_gear` goes with, and only with, per-gear efficiencies",
+                parameter="measured_gear",
+            )
+        eta = require_range(float(efficiency), "efficiency", MIN_EFFICIENCY, 1.0, DrivetrainError)
+    else:
+        per_gear = np.array(
+            [
+                require_range(float(e), f"efficiency[{i}]", MIN_EFFICIENCY, 1.0, DrivetrainError)
+                for i, e in enumerate(efficiency)
+            ]
+        )
+        if not 1 <= per_gear.size <= MAX_GEARS:
+            raise DrivetrainError(
+                f"`efficiency` must give 1 to {MAX_GEARS} gears, got {per_gear.size}",
+                parameter="efficiency",
+            )
+        if measured_gear is None or not 1 <= measured_gear <= per_gear.size:
+            raise DrivetrainError(
+                f"`measured_gear` must name a gear 1 to {per_gear.size}, got {measured_gear}",
+                parameter="measured_gear",
+            )
+        eta = float(per_gear[measured_gear - 1])
+    return eta, per_gear
+
+
 def chassis_conversion(
     rpm: ArrayLike,
     *,
@@ -247,40 +284,8 @@ def chassis_conversion(
     200000
     """
     n, power = _curve(rpm, torque_nm, power_w)
-    if not (math.isfinite(fixed_loss_w) and 0.0 <= fixed_loss_w <= 500e3):
-        raise DrivetrainError(
-            f"`fixed_loss_w` must lie in [0, 500000], got {fixed_loss_w:g}",
-            parameter="fixed_loss_w",
-        )
-    if fixed_loss_w > 0.0 and not isinstance(efficiency, (int, float)):
-        raise DrivetrainError(
-            "`fixed_loss_w` goes with a single efficiency, not per-gear ones",
-            parameter="fixed_loss_w",
-        )
+    eta, per_gear = _checked_efficiencies(efficiency, measured_gear, fixed_loss_w)
     notes: list[Notice] = []
-    per_gear = None
-    if isinstance(efficiency, (int, float)):
-        if measured_gear is not None:
-            raise DrivetrainError(
-                "`measured_gear` goes with, and only with, per-gear efficiencies",
-                parameter="measured_gear",
-            )
-        eta = _checked_efficiency(float(efficiency), "efficiency")
-    else:
-        per_gear = np.array(
-            [_checked_efficiency(float(e), f"efficiency[{i}]") for i, e in enumerate(efficiency)]
-        )
-        if not 1 <= per_gear.size <= MAX_GEARS:
-            raise DrivetrainError(
-                f"`efficiency` must give 1 to {MAX_GEARS} gears, got {per_gear.size}",
-                parameter="efficiency",
-            )
-        if measured_gear is None or not 1 <= measured_gear <= per_gear.size:
-            raise DrivetrainError(
-                f"`measured_gear` must name a gear 1 to {per_gear.size}, got {measured_gear}",
-                parameter="measured_gear",
-            )
-        eta = float(per_gear[measured_gear - 1])
     if measured_at is MeasuredAt.WHEELS:
         wheel, engine = power, engine_from_wheel(power + fixed_loss_w, eta)
     else:

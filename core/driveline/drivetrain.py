@@ -9,6 +9,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
+from core.checks import require_positive
 from core.errors import DrivetrainError
 
 __all__ = ["MAX_GEARS", "MAX_RATIO", "Drivetrain", "make_drivetrain"]
@@ -49,14 +50,6 @@ class Drivetrain:
     def overall_ratios(self) -> FloatArray:
         """Engine revolutions per wheel revolution in each gear, shape (g,)."""
         return self.gear_ratios * self.final_drive_ratio * self.extra_reduction
-
-
-def _positive_ratio(value: float, name: str) -> float:
-    if not math.isfinite(value) or value <= 0.0:
-        raise DrivetrainError(f"`{name}` must be finite and > 0, got {value}", parameter=name)
-    if value > MAX_RATIO:
-        raise DrivetrainError(f"`{name}` must be <= {MAX_RATIO:g}, got {value}", parameter=name)
-    return float(value)
 
 
 def make_drivetrain(
@@ -102,7 +95,7 @@ def make_drivetrain(
             parameter="gear_ratios",
         )
     for i, r in enumerate(ratios.tolist()):
-        _positive_ratio(r, f"gear_ratios[{i}]")
+        require_positive(r, f"gear_ratios[{i}]", DrivetrainError, at_most=MAX_RATIO)
     for i in range(1, ratios.size):
         if ratios[i] >= ratios[i - 1]:
             raise DrivetrainError(
@@ -110,8 +103,12 @@ def make_drivetrain(
                 f"not below gear {i} ({ratios[i - 1]:g})",
                 parameter=f"gear_ratios[{i}]",
             )
-    final = _positive_ratio(final_drive_ratio, "final_drive_ratio")
-    extra = _positive_ratio(extra_reduction, "extra_reduction")
+    final = require_positive(
+        final_drive_ratio, "final_drive_ratio", DrivetrainError, at_most=MAX_RATIO
+    )
+    extra = require_positive(
+        extra_reduction, "extra_reduction", DrivetrainError, at_most=MAX_RATIO
+    )
     eff = np.asarray(efficiency, dtype=np.float64)
     if eff.ndim == 0:
         eff = np.full(ratios.size, float(eff))

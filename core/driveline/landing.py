@@ -20,7 +20,7 @@ from numpy.typing import ArrayLike, NDArray
 from core.driveline.spacing import ShiftLandings, shift_landings
 from core.engine.curves import TorqueCurve
 from core.errors import CurveError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = ["LandingAnalysis", "LandingBand", "landing_analysis"]
 

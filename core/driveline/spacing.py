@@ -35,6 +35,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.checks import require_positive
 from core.driveline.drivetrain import MAX_GEARS, MAX_RATIO, make_drivetrain
 from core.errors import CurveError, DrivetrainError
 
@@ -124,14 +125,6 @@ class ShiftLandings:
     drop_percent: FloatArray
 
 
-def _checked_ratio(value: float, name: str) -> float:
-    if not math.isfinite(value) or value <= 0.0:
-        raise DrivetrainError(f"`{name}` must be finite and > 0, got {value}", parameter=name)
-    if value > MAX_RATIO:
-        raise DrivetrainError(f"`{name}` must be <= {MAX_RATIO:g}, got {value}", parameter=name)
-    return float(value)
-
-
 def _checked_ends(
     first_ratio: float, top_ratio: float, gear_count: int
 ) -> tuple[float, float, int]:
@@ -146,8 +139,8 @@ def _checked_ends(
             f"`gear_count` must be between {MIN_GEARS} and {MAX_GEARS}, got {n}",
             parameter="gear_count",
         )
-    first = _checked_ratio(first_ratio, "first_ratio")
-    top = _checked_ratio(top_ratio, "top_ratio")
+    first = require_positive(first_ratio, "first_ratio", DrivetrainError, at_most=MAX_RATIO)
+    top = require_positive(top_ratio, "top_ratio", DrivetrainError, at_most=MAX_RATIO)
     if top >= first:
         raise DrivetrainError(
             f"`top_ratio` must be < `first_ratio` ({first:g}), got {top:g}",

@@ -21,9 +21,9 @@ import re
 from dataclasses import dataclass
 
 from core.errors import TireSizeError
+from core.units import INCH_M, MILE_M
 
 __all__ = [
-    "METRES_PER_MILE",
     "OMITTED_ASPECT_RATIO",
     "Tire",
     "tire_from_diameter",
@@ -32,8 +32,6 @@ __all__ = [
     "tire_from_size",
 ]
 
-INCH_M = 0.0254
-METRES_PER_MILE = 1609.344
 OMITTED_ASPECT_RATIO = 82.0
 MIN_DIAMETER_M = 0.2
 MAX_DIAMETER_M = 3.0
@@ -81,7 +79,7 @@ class Tire:
     @property
     def revs_per_mile(self) -> float:
         """Wheel revolutions per mile [1/mi]."""
-        return METRES_PER_MILE / self.circumference_m
+        return MILE_M / self.circumference_m
 
 
 def _checked_factor(rolling_factor: float) -> float:
@@ -237,6 +235,6 @@ def tire_from_revs_per_mile(revs_per_mile: float) -> Tire:
             f"`revs_per_mile` must be finite and > 0, got {revs_per_mile}",
             parameter="revs_per_mile",
         )
-    circumference = METRES_PER_MILE / revs_per_mile
+    circumference = MILE_M / revs_per_mile
     _checked_diameter(circumference / math.pi, "revs_per_mile")
     return Tire(circumference / (2.0 * math.pi), None, None)

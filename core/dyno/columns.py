@@ -52,6 +52,16 @@ import enum
 import re
 from dataclasses import dataclass
 
+from core.units import (
+    HORSEPOWER_W,
+    KILOGRAM_FORCE_N,
+    KM_H_M_S,
+    METRIC_HORSEPOWER_W,
+    MPH_M_S,
+    POUND_FORCE_FOOT_NM,
+    POUND_FORCE_N,
+)
+
 __all__ = [
     "ColumnQuantity",
     "ColumnUnit",
@@ -125,20 +135,20 @@ _QUANTITY_OF_UNIT = {
 _SI_FACTOR = {
     ColumnUnit.RPM: 1.0,
     ColumnUnit.NEWTON_METRE: 1.0,
-    ColumnUnit.POUND_FORCE_FOOT: 1.3558179483314004,  # 1 lbf * 1 ft
-    ColumnUnit.KILOGRAM_FORCE_METRE: 9.80665,  # 1 kgf * 1 m
+    ColumnUnit.POUND_FORCE_FOOT: POUND_FORCE_FOOT_NM,
+    ColumnUnit.KILOGRAM_FORCE_METRE: KILOGRAM_FORCE_N,  # 1 kgf * 1 m
     ColumnUnit.WATT: 1.0,
     ColumnUnit.KILOWATT: 1000.0,
-    ColumnUnit.HORSEPOWER: 745.69987158227022,  # 550 ft*lbf/s
-    ColumnUnit.METRIC_HORSEPOWER: 735.49875,  # 75 kgf*m/s
-    ColumnUnit.KILOMETRE_PER_HOUR: 1.0 / 3.6,
-    ColumnUnit.MILE_PER_HOUR: 0.44704,  # 1609.344 m / 3600 s
+    ColumnUnit.HORSEPOWER: HORSEPOWER_W,
+    ColumnUnit.METRIC_HORSEPOWER: METRIC_HORSEPOWER_W,
+    ColumnUnit.KILOMETRE_PER_HOUR: KM_H_M_S,
+    ColumnUnit.MILE_PER_HOUR: MPH_M_S,
     ColumnUnit.METRE_PER_SECOND: 1.0,
     ColumnUnit.NEWTON: 1.0,
     ColumnUnit.KILONEWTON: 1000.0,
     ColumnUnit.DECANEWTON: 10.0,
-    ColumnUnit.POUND_FORCE: 4.4482216152605,  # 0.45359237 kg * 9.80665 m/s^2
-    ColumnUnit.KILOGRAM_FORCE: 9.80665,
+    ColumnUnit.POUND_FORCE: POUND_FORCE_N,
+    ColumnUnit.KILOGRAM_FORCE: KILOGRAM_FORCE_N,
 }
 _UNIT_SPELLINGS = {
     ColumnUnit.RPM: ("rpm", "r/min", "rev/min", "revs/min", "1/min", "min1", "u/min"),

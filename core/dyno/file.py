@@ -53,7 +53,7 @@ from scipy.signal import savgol_filter
 
 from core.dyno.columns import DynoColumn
 from core.dyno.numbers import NumberFormat
-from core.dyno.parse import MAX_COLUMNS, MAX_LINES, MAX_TEXT_CHARS, Delimiter, read_table
+from core.dyno.parse import MAX_COLUMNS, MAX_LINES, MAX_TEXT_CHARS, read_table
 from core.dyno.road import RoadSpeedConversion, road_speed_conversion
 from core.dyno.values import MAX_RPM, MISMATCH_LIMIT, run_values
 from core.engine.curves import (
@@ -65,7 +65,8 @@ from core.engine.curves import (
     torque_curve_from_torque,
 )
 from core.errors import DynoFileError
-from core.shifts.plan import Notice
+from core.notices import Notice
+from core.readers.delimited import Delimiter
 
 __all__ = [
     "MAX_COLUMNS",

@@ -7,8 +7,6 @@ is a :class:`~core.errors.DynoFileError` carrying the 1-based line and column.
 
 from __future__ import annotations
 
-import csv
-import enum
 import re
 from dataclasses import dataclass
 
@@ -19,35 +17,33 @@ from core.dyno.columns import (
     read_header_cell,
     unit_from_text,
 )
-from core.dyno.rows import column_texts, significant_lines, split_rows
+from core.dyno.rows import column_texts
 from core.errors import DynoFileError
-from core.shifts.plan import Notice
+from core.notices import Notice
+from core.readers.delimited import (
+    MAX_TEXT_CHARS,
+    Delimiter,
+    best_delimiter,
+    cells_or_none,
+    forbidden_character,
+    normalised_text,
+    significant_lines,
+    split_rows,
+)
 
 __all__ = [
     "MAX_COLUMNS",
     "MAX_LINES",
     "MAX_TEXT_CHARS",
     "Cell",
-    "Delimiter",
     "Table",
     "read_table",
 ]
 
-MAX_TEXT_CHARS = 1_000_000
 MAX_LINES = 20_000
 MAX_COLUMNS = 64
 _DELIMITER_PROBE_LINES = 20
 _HEADER_SEARCH_LINES = 100
-
-_FORBIDDEN = re.compile("[\x00-\x08\x0b-\x0c\x0e-\x1f\x7f-\x9f\ufffd\ufffe\uffff\ud800-\udfff]")
-
-
-class Delimiter(enum.Enum):
-    """The cell separator of an export."""
-
-    TAB = "\t"
-    SEMICOLON = ";"
-    COMMA = ","
 
 
 @dataclass(frozen=True)
@@ -106,12 +102,6 @@ class Table:
         return self.columns[0].quantity is ColumnQuantity.ROAD_SPEED
 
 
-def _position(text: str, index: int) -> tuple[int, int]:
-    """1-based (line, character) of ``text[index]``."""
-    line_start = text.rfind("\n", 0, index) + 1
-    return text.count("\n", 0, index) + 1, index - line_start + 1
-
-
 def _check_text(text: object) -> str:
     """Validate size and content; return the text with uniform line breaks."""
     if not isinstance(text, str):
@@ -120,11 +110,10 @@ def _check_text(text: object) -> str:
         )
     if len(text) > MAX_TEXT_CHARS:
         raise DynoFileError(f"`text` must be at most {MAX_TEXT_CHARS} characters, got {len(text)}")
-    text = text.removeprefix("\ufeff").replace("\r\n", "\n").replace("\r", "\n")
-    bad = _FORBIDDEN.search(text)
+    text = normalised_text(text)
+    bad = forbidden_character(text)
     if bad is not None:
-        line, column = _position(text, bad.start())
-        char = bad.group()
+        line, column, char = bad
         if char == "\x00":
             what = "a NUL character: this looks like binary data, not a text export"
         elif char == "\ufffd" or "\ud800" <= char <= "\udfff":
@@ -162,14 +151,6 @@ class _Header:
     units_row: int | None
 
 
-def _cells_or_none(line: str, delimiter: Delimiter) -> list[str] | None:
-    """The stripped cells of a line, or None when it does not split cleanly."""
-    try:
-        return [c.strip() for c in next(csv.reader([line], delimiter=delimiter.value))]
-    except csv.Error:
-        return None
-
-
 def _header_candidates(
     line: str, below: str | None
 ) -> list[tuple[Delimiter, list[str], list[HeaderCell], bool]]:
@@ -179,10 +160,10 @@ def _header_candidates(
     """
     found = []
     for delimiter in Delimiter:
-        cells = _cells_or_none(line, delimiter) if delimiter.value in line else None
+        cells = cells_or_none(line, delimiter) if delimiter.value in line else None
         if cells is None:
             continue
-        under = _cells_or_none(below, delimiter) if below is not None else None
+        under = cells_or_none(below, delimiter) if below is not None else None
         is_units = (
             under is not None
             and any(unit_from_text(u) is not None for u in under)
@@ -220,11 +201,9 @@ def _find_header(significant: list[tuple[int, str]]) -> _Header:
         if not candidates:
             continue
         probe = significant[index + 1 : index + 1 + _DELIMITER_PROBE_LINES]
-        scores = [
-            sum(len(_cells_or_none(t, delimiter) or ()) == len(cells) for _, t in probe)
-            for delimiter, cells, _, _ in candidates
-        ]
-        delimiter, cells, read, is_units = candidates[scores.index(max(scores))]
+        counts = [len(cells) for _, cells, _, _ in candidates]
+        best = best_delimiter(counts, [c[0] for c in candidates], probe)
+        delimiter, cells, read, is_units = candidates[best]
         if len(cells) > MAX_COLUMNS:
             raise DynoFileError(
                 f"`text` line {number} must have at most {MAX_COLUMNS} cells, got {len(cells)}",
@@ -345,7 +324,7 @@ def read_table(text: str) -> Table:
                 "text",
             )
         )
-    rows = split_rows(data, header.delimiter.value, MAX_COLUMNS)
+    rows = split_rows(data, header.delimiter, DynoFileError, MAX_COLUMNS)
     lines, texts, skipped = column_texts(data, rows, columns, len(header.cells))
     notices.extend(skipped)
     return Table(

@@ -20,7 +20,6 @@ joined text for summary labels, one list per column):
 
 from __future__ import annotations
 
-import csv
 import re
 from collections.abc import Sequence
 
@@ -28,9 +27,9 @@ import numpy as np
 
 from core.dyno.columns import DynoColumn
 from core.errors import DynoFileError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
-__all__ = ["column_texts", "significant_lines", "split_rows"]
+__all__ = ["column_texts"]
 
 _SUMMARY_LABEL = re.compile(
     r"(?:^|[\t;,])[ \t\"]*(max|maximum|min|minimum|peak|average|avg|mean|median|total|sum"
@@ -42,80 +41,6 @@ _NUMBER_LIKE = re.compile(r"[+-]?[\d.,]*\d[\d.,]*(?:[eE][+-]?\d+)?")
 _SHOWN_LINES = 5
 
 Lines = Sequence[tuple[int, str]]
-
-
-# a line break before a blank or comment line (searched in "\n" + text: a literal prefix)
-_SKIPPED_LINE = re.compile(r"\n(?=[^\S\n]*(?:#|//|\n|\Z))")
-
-
-def significant_lines(text: str) -> list[tuple[int, str]]:
-    """(line number, line) for every line that is neither blank nor a comment.
-
-    A comment line's first non-blank characters are ``#`` or ``//``; ``text`` has ``\\n``
-    line breaks only.
-
-    Examples
-    --------
-    >>> significant_lines("# made-up run\\nrpm;Nm\\n\\n2000;150\\n")
-    [(2, 'rpm;Nm'), (4, '2000;150')]
-    """
-    lines = text.split("\n")
-    hits = [m.start() for m in _SKIPPED_LINE.finditer("\n" + text)]
-    if not hits:
-        return list(enumerate(lines, start=1))
-    starts = np.cumsum([0] + [len(line) + 1 for line in lines[:-1]])
-    skipped = set(np.searchsorted(starts, hits, side="right").tolist())
-    return [(k, line) for k, line in enumerate(lines, start=1) if k not in skipped]
-
-
-def _split_line(line: str, number: int, delimiter: str, max_columns: int) -> list[str]:
-    """The cells of one line, strictly quoted."""
-    try:
-        cells = next(csv.reader([line], delimiter=delimiter, strict=True))
-    except csv.Error as exc:
-        raise DynoFileError(
-            f"`text` line {number} cannot be split into cells: {exc}", line=number
-        ) from exc
-    if len(cells) > max_columns:
-        raise DynoFileError(
-            f"`text` line {number} must have at most {max_columns} cells, got {len(cells)}",
-            line=number,
-            column=max_columns + 1,
-        )
-    return cells
-
-
-def split_rows(data: Lines, delimiter: str, max_columns: int) -> list[list[str]]:
-    """The cells of every data line (unstripped).
-
-    Without quotes a line is split at each delimiter (what a CSV reader does then); with
-    one, each line goes through a strict CSV reader of its own, so a quote cannot join
-    lines and each row keeps its own line number.
-
-    Parameters
-    ----------
-    data : sequence of (int, str)
-        1-based line number and text of each data line.
-    delimiter : str
-        The cell separator.
-    max_columns : int
-        Most cells a line may have.
-
-    Returns
-    -------
-    list of list of str
-
-    Raises
-    ------
-    DynoFileError
-        For a line that cannot be split or has too many cells.
-    """
-    lines = [line for _, line in data]
-    if '"' not in "\n".join(lines):
-        rows = [line.split(delimiter) for line in lines]
-        if max(map(len, rows), default=0) <= max_columns:
-            return rows
-    return [_split_line(line, number, delimiter, max_columns) for number, line in data]
 
 
 def _check_widths(

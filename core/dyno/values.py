@@ -20,7 +20,7 @@ from core.dyno.parse import Table
 from core.dyno.road import RoadSpeedConversion, names_the_engine
 from core.engine.curves import MAX_TORQUE_NM, RPM_TO_RAD_S, CurveSource
 from core.errors import DynoFileError
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = ["MAX_RPM", "MISMATCH_LIMIT", "RunValues", "run_values"]
 

@@ -32,34 +32,28 @@ elevation (converted by :func:`core.air.altimeter.station_pressure_from_altimete
 
 from __future__ import annotations
 
-import enum
 import math
 from dataclasses import dataclass
 
 from core.air.altimeter import station_pressure_from_altimeter_pa
 from core.air.atmosphere import air_state
+from core.checks import require_range
 from core.engine.curves import TorqueCurve
+from core.engine.reference_air import CorrectionStandard
 from core.errors import CorrectionError
-from core.shifts.plan import Notice
+from core.notices import Notice
+from core.units import HECTOPASCAL_PA, INCH_OF_MERCURY_PA, KILOPASCAL_PA, ZERO_CELSIUS_K
 
 __all__ = [
     "CELL_TEMPERATURE_RANGE_K",
     "STATION_PRESSURE_RANGE_PA",
     "Correction",
-    "CorrectionStandard",
-    "PressureBasis",
-    "ReferenceConditions",
     "apply_correction",
     "correction_factor",
     "correction_factors",
-    "reference_conditions",
 ]
 
-_PA_PER_KPA = 1000.0
-_PA_PER_MBAR = 100.0
 # Conventional inch of mercury: 25.4 mm x 13595.1 kg/m^3 x 9.80665 m/s^2 (NIST SP 811).
-_PA_PER_INHG = 3386.388640341
-_KELVIN_AT_0_C = 273.15
 
 CELL_TEMPERATURE_RANGE_K = (233.15, 333.15)
 """Intake-air temperature accepted [K]: -40 degC (-40 degF) to 60 degC (140 degF)."""
@@ -69,42 +63,6 @@ _TEMPERATURE_RANGE_K = CELL_TEMPERATURE_RANGE_K
 _STATION_PRESSURE_RANGE_PA = STATION_PRESSURE_RANGE_PA
 _FACTOR_RANGE = (0.0, 3.0)
 _ISO_1585_VALID_BAND = (0.93, 1.07)  # memory
-
-
-class CorrectionStandard(enum.Enum):
-    """A rating standard whose correction factor refers power to its reference air."""
-
-    SAE_J1349_1990 = "sae_j1349_1990"
-    SAE_J1349_2004 = "sae_j1349_2004"
-    SAE_J607 = "sae_j607"
-    DIN_70020 = "din_70020"
-    ISO_1585 = "iso_1585"
-
-
-class PressureBasis(enum.Enum):
-    """Which pressure a standard's formula takes: dry-air (``DRY``) or total (``TOTAL``)."""
-
-    DRY = "dry"
-    TOTAL = "total"
-
-
-@dataclass(frozen=True)
-class ReferenceConditions:
-    """The air in which a standard's correction factor is exactly 1.
-
-    Attributes
-    ----------
-    temperature_k : float
-        Reference air temperature [K], as the formula's constants give it.
-    pressure_pa : float
-        Reference pressure [Pa], dry-air or total according to ``pressure_basis``.
-    pressure_basis : PressureBasis
-        Whether the formula takes the dry-air or the total pressure.
-    """
-
-    temperature_k: float
-    pressure_pa: float
-    pressure_basis: PressureBasis
 
 
 @dataclass(frozen=True)
@@ -141,49 +99,6 @@ class Correction:
     notices: tuple[Notice, ...]
 
 
-_REFERENCES = {
-    CorrectionStandard.SAE_J1349_1990: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
-    CorrectionStandard.SAE_J1349_2004: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
-    CorrectionStandard.SAE_J607: ReferenceConditions(
-        (60.0 - 32.0) / 1.8 + _KELVIN_AT_0_C, 29.92 * _PA_PER_INHG, PressureBasis.DRY
-    ),
-    CorrectionStandard.DIN_70020: ReferenceConditions(293.0, 101_300.0, PressureBasis.TOTAL),
-    CorrectionStandard.ISO_1585: ReferenceConditions(298.0, 99_000.0, PressureBasis.DRY),
-}
-
-
-def _check_between(value: float, name: str, low: float, high: float) -> None:
-    """Raise CorrectionError unless ``low <= value <= high`` (and finite)."""
-    if not math.isfinite(value):
-        raise CorrectionError(f"`{name}` must be finite, got {value}", parameter=name)
-    if not low <= value <= high:
-        raise CorrectionError(
-            f"`{name}` must lie in [{low:g}, {high:g}], got {value:g}", parameter=name
-        )
-
-
-def reference_conditions(standard: CorrectionStandard) -> ReferenceConditions:
-    """The reference air of a standard, where its factor is exactly 1.
-
-    Parameters
-    ----------
-    standard : CorrectionStandard
-        The rating standard.
-
-    Returns
-    -------
-    ReferenceConditions
-        Temperature [K] and pressure [Pa], with the pressure's basis (dry or total).
-
-    Examples
-    --------
-    >>> ref = reference_conditions(CorrectionStandard.DIN_70020)
-    >>> ref.temperature_k, ref.pressure_pa, ref.pressure_basis.value
-    (293.0, 101300.0, 'total')
-    """
-    return _REFERENCES[standard]
-
-
 def _station_pressure(
     station_pressure_pa: float | None,
     altimeter_setting_pa: float | None,
@@ -202,7 +117,12 @@ def _station_pressure(
                 "`elevation_m` must be given only with `altimeter_setting_pa`",
                 parameter="elevation_m",
             )
-        _check_between(station_pressure_pa, "station_pressure_pa", *_STATION_PRESSURE_RANGE_PA)
+        require_range(
+            station_pressure_pa,
+            "station_pressure_pa",
+            *_STATION_PRESSURE_RANGE_PA,
+            CorrectionError,
+        )
         return float(station_pressure_pa)
     if altimeter_setting_pa is None:
         raise CorrectionError(
@@ -214,7 +134,7 @@ def _station_pressure(
             "`elevation_m` must be given with `altimeter_setting_pa`", parameter="elevation_m"
         )
     pressure = station_pressure_from_altimeter_pa(altimeter_setting_pa, elevation_m)
-    _check_between(pressure, "station_pressure_pa", *_STATION_PRESSURE_RANGE_PA)
+    require_range(pressure, "station_pressure_pa", *_STATION_PRESSURE_RANGE_PA, CorrectionError)
     return pressure
 
 
@@ -222,16 +142,16 @@ def _formula(standard: CorrectionStandard, t_k: float, p_pa: float, p_dry_pa: fl
     """The bare correction formula of a standard."""
     match standard:
         case CorrectionStandard.SAE_J1349_1990:
-            return 1.18 * (99.0 / (p_dry_pa / _PA_PER_KPA)) * math.sqrt(t_k / 298.0) - 0.18
+            return 1.18 * (99.0 / (p_dry_pa / KILOPASCAL_PA)) * math.sqrt(t_k / 298.0) - 0.18
         case CorrectionStandard.SAE_J1349_2004:
-            return 1.176 * (99.0 / (p_dry_pa / _PA_PER_KPA)) * math.sqrt(t_k / 298.0) - 0.176
+            return 1.176 * (99.0 / (p_dry_pa / KILOPASCAL_PA)) * math.sqrt(t_k / 298.0) - 0.176
         case CorrectionStandard.SAE_J607:
-            t_f = (t_k - _KELVIN_AT_0_C) * 1.8 + 32.0
-            return 29.92 / (p_dry_pa / _PA_PER_INHG) * math.sqrt((t_f + 459.7) / 519.7)
+            t_f = (t_k - ZERO_CELSIUS_K) * 1.8 + 32.0
+            return 29.92 / (p_dry_pa / INCH_OF_MERCURY_PA) * math.sqrt((t_f + 459.7) / 519.7)
         case CorrectionStandard.DIN_70020:
-            return (1013.0 / (p_pa / _PA_PER_MBAR)) * math.sqrt(t_k / 293.0)
+            return (1013.0 / (p_pa / HECTOPASCAL_PA)) * math.sqrt(t_k / 293.0)
         case CorrectionStandard.ISO_1585:
-            return float((99.0 / (p_dry_pa / _PA_PER_KPA)) ** 1.2 * (t_k / 298.0) ** 0.6)
+            return float((99.0 / (p_dry_pa / KILOPASCAL_PA)) ** 1.2 * (t_k / 298.0) ** 0.6)
     raise CorrectionError(  # pragma: no cover - every member is matched above
         f"`standard` must be a CorrectionStandard, got {standard!r}", parameter="standard"
     )
@@ -303,8 +223,8 @@ def correction_factor(
         raise CorrectionError(
             f"`standard` must be a CorrectionStandard, got {standard!r}", parameter="standard"
         )
-    _check_between(temperature_k, "temperature_k", *_TEMPERATURE_RANGE_K)
-    _check_between(relative_humidity, "relative_humidity", 0.0, 1.0)
+    require_range(temperature_k, "temperature_k", *_TEMPERATURE_RANGE_K, CorrectionError)
+    require_range(relative_humidity, "relative_humidity", 0.0, 1.0, CorrectionError)
     pressure = _station_pressure(station_pressure_pa, altimeter_setting_pa, elevation_m)
     air = air_state(float(temperature_k), float(relative_humidity), pressure_pa=pressure)
     factor = _formula(standard, air.temperature_k, air.pressure_pa, air.dry_pressure_pa)

@@ -17,6 +17,7 @@ from typing import Any
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.engine.pchip import pchip_coefficients
 from core.errors import CurveError
 
 __all__ = [
@@ -29,7 +30,6 @@ __all__ = [
     "CurveSource",
     "Interpolation",
     "TorqueCurve",
-    "pchip_coefficients",
     "torque_curve_from_power",
     "torque_curve_from_torque",
 ]
@@ -221,54 +221,6 @@ class TorqueCurve:
             return float(grid[k])
         step = float(grid[1] - grid[0])
         return float(grid[k]) + 0.5 * step * (left - right) / curvature
-
-
-def _pchip_edge_slope(h0: float, h1: float, m0: float, m1: float) -> float:
-    d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1)
-    if np.sign(d) != np.sign(m0):
-        return 0.0
-    if np.sign(m0) != np.sign(m1) and abs(d) > 3.0 * abs(m0):
-        return 3.0 * m0
-    return float(d)
-
-
-def pchip_coefficients(x: FloatArray, y: FloatArray) -> FloatArray:
-    """Piecewise-cubic coefficients of the monotone PCHIP fill through (x, y).
-
-    The Fritsch-Carlson slopes with the one-sided three-point end condition, exactly as
-    ``scipy.interpolate.PchipInterpolator`` computes them (a test holds the two to 1e-12),
-    without its per-call overhead: a request builds one curve, and building it through
-    scipy cost more than the whole shift search (``bench/shift_plan.py`` measures both).
-
-    Parameters
-    ----------
-    x : ndarray, shape (n,)
-        Strictly increasing abscissae, n >= 3.
-    y : ndarray, shape (n,)
-        Ordinates.
-
-    Returns
-    -------
-    ndarray, shape (4, n - 1)
-        Rows c0..c3 of ``((c0*dx + c1)*dx + c2)*dx + c3`` on each interval, dx = t - x[i].
-    """
-    h = np.diff(x)
-    m = np.diff(y) / h
-    d = np.zeros_like(y)
-    w1 = 2.0 * h[1:] + h[:-1]
-    w2 = h[1:] + 2.0 * h[:-1]
-    flat = (np.sign(m[1:]) != np.sign(m[:-1])) | (m[1:] == 0.0) | (m[:-1] == 0.0)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        whmean = (w1 / m[:-1] + w2 / m[1:]) / (w1 + w2)
-        d[1:-1] = np.where(flat, 0.0, 1.0 / whmean)
-    d[0] = _pchip_edge_slope(h[0], h[1], m[0], m[1])
-    d[-1] = _pchip_edge_slope(h[-1], h[-2], m[-1], m[-2])
-    coef = np.empty((4, x.size - 1))
-    coef[0] = (d[:-1] + d[1:] - 2.0 * m) / h**2
-    coef[1] = (3.0 * m - 2.0 * d[:-1] - d[1:]) / h
-    coef[2] = d[:-1]
-    coef[3] = y[:-1]
-    return coef
 
 
 def _validated_rpm(rpm: ArrayLike) -> FloatArray:

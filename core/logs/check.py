@@ -19,6 +19,7 @@ from __future__ import annotations
 import enum
 import itertools
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -27,8 +28,9 @@ from numpy.typing import NDArray
 from core.driveline.drivetrain import Drivetrain
 from core.driveline.tires import Tire
 from core.engine.curves import RPM_TO_RAD_S
+from core.errors import LogDataError
 from core.logs.crossover import SETTLE_S, VerdictBasis
-from core.logs.pass_data import LogDataError, PassLog, uniform_samples
+from core.logs.pass_data import PassLog, uniform_samples
 from core.logs.shift import AVERAGE_WINDOW_S, LoggedShift, ShiftSignals, measure_shift
 from core.logs.signal import (
     MOVING_SPEED_M_S,
@@ -40,7 +42,7 @@ from core.logs.signal import (
     window_points,
 )
 from core.logs.spin import match_notices
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = [
     "DEFAULT_SMOOTHING_WINDOW_S",
@@ -206,6 +208,101 @@ def _segments_from_dips(
     return segs, [(d.first, d.last, d.start_s, d.end_s) for d in dips]
 
 
+def _sampling_notices(dt: float, tail_s: float, end_s: float) -> list[Notice]:
+    """Notices of a coarse sample rate and of a log going on past full throttle."""
+    notes = []
+    if 1.0 / dt < LOW_RATE_HZ:
+        notes.append(
+            Notice(
+                "low_sample_rate",
+                f"The log is sampled at {1.0 / dt:.3g} Hz; below {LOW_RATE_HZ:g} Hz shift "
+                "times and accelerations are coarse.",
+                "time",
+            )
+        )
+    if tail_s > _TAIL_NOTICE_S:
+        notes.append(
+            Notice(
+                "analysed_until",
+                f"Full throttle ends at t = {end_s:.2f} s (peak speed, less any lift); the "
+                "rest of the log is not analysed.",
+            )
+        )
+    return notes
+
+
+def _shift_notices(shifts: tuple[LoggedShift, ...]) -> list[Notice]:
+    """Notices of a pass without gear changes, and of shifts without a verdict."""
+    notes = []
+    if not shifts:
+        notes.append(Notice("no_shifts", "No gear change was found in the pass."))
+    for s in shifts:
+        if s.basis is VerdictBasis.INSUFFICIENT_DATA:
+            notes.append(
+                Notice(
+                    "too_few_samples",
+                    f"Shift {s.from_gear}-{s.to_gear}: too few samples in a gear to fit its "
+                    "acceleration; no verdict.",
+                )
+            )
+    return notes
+
+
+def _gear_segments(
+    segs: Sequence[SampleSegment], t: FloatArray, speed: FloatArray
+) -> tuple[GearSegment, ...]:
+    """The stretches of the pass in one gear, with their times and speeds."""
+    return tuple(
+        GearSegment(
+            s.gear,
+            float(t[s.first]),
+            float(t[s.last]),
+            float(speed[s.first]),
+            float(speed[s.last]),
+            s.last - s.first + 1,
+        )
+        for s in segs
+    )
+
+
+def _gears_of_pass(
+    sig: ShiftSignals,
+    rpm: FloatArray | None,
+    drivetrain: Drivetrain,
+    tire: Tire,
+    span: tuple[int, int],
+    dt: float,
+    start_gear: int,
+    notes: list[Notice],
+) -> tuple[GearSource, list[SampleSegment], list[tuple[int, int, float, float]], float | None]:
+    """Where the pass is in each gear: from engine speed when logged (with the speed
+    calibration it implies), else from the acceleration dips of the shifts. Appends its
+    notices to ``notes``."""
+    first, stop = span
+    if stop - first + 1 < _MIN_PASS_SAMPLES:
+        notes.append(
+            Notice(
+                "no_pass",
+                f"The log holds no full-throttle pass of {_MIN_PASS_SAMPLES} samples or more "
+                "above 2 m/s (the speed peaks too soon, or never rises).",
+                "speed",
+            )
+        )
+        return GearSource.ACCELERATION, [], [], None
+    if rpm is not None:
+        t = sig.time
+        match = match_gears(sig.speed, rpm, drivetrain.overall_ratios, tire.rolling_radius_m, dt)
+        segs = gear_segments(match.gear, dt)
+        notes += match_notices(match, segs, t, sig.speed, drivetrain.overall_ratios, dt)
+        bounds = [
+            (x.last, y.first, float(t[x.last]), float(t[y.first]))
+            for x, y in itertools.pairwise(segs)
+        ]
+        return GearSource.RPM, segs, bounds, match.calibration
+    segs, bounds = _segments_from_dips(sig, dt, first, start_gear, drivetrain.gear_count, notes)
+    return GearSource.ACCELERATION, segs, bounds, None
+
+
 def analyse_pass(
     log: PassLog,
     drivetrain: Drivetrain,
@@ -266,53 +363,14 @@ def analyse_pass(
         math.ceil(SETTLE_S / dt),
         round(AVERAGE_WINDOW_S / dt),
     )
-    if 1.0 / dt < LOW_RATE_HZ:
-        notes.append(
-            Notice(
-                "low_sample_rate",
-                f"The log is sampled at {1.0 / dt:.3g} Hz; below {LOW_RATE_HZ:g} Hz shift "
-                "times and accelerations are coarse.",
-                "time",
-            )
-        )
-    if u.time_s[-1] - u.time_s[stop] > _TAIL_NOTICE_S:
-        notes.append(
-            Notice(
-                "analysed_until",
-                f"Full throttle ends at t = {t[-1]:.2f} s (peak speed, less any lift); the "
-                "rest of the log is not analysed.",
-            )
-        )
+    notes += _sampling_notices(dt, float(u.time_s[-1] - u.time_s[stop]), float(t[-1]))
+    rpm = None if u.rpm is None else u.rpm[: stop + 1]
+    source, segs, bounds, calibration = _gears_of_pass(
+        sig, rpm, drivetrain, tire, (first, stop), dt, start_gear, notes
+    )
     ratio_per_speed = drivetrain.overall_ratios / (tire.rolling_radius_m * RPM_TO_RAD_S)
-    calibration: float | None = None
-    if stop - first + 1 < _MIN_PASS_SAMPLES:
-        source, segs, bounds = GearSource.ACCELERATION, [], []
-        notes.append(
-            Notice(
-                "no_pass",
-                f"The log holds no full-throttle pass of {_MIN_PASS_SAMPLES} samples or more "
-                "above 2 m/s (the speed peaks too soon, or never rises).",
-                "speed",
-            )
-        )
-    elif u.rpm is not None:
-        source = GearSource.RPM
-        match = match_gears(
-            sig.speed, u.rpm[: stop + 1], drivetrain.overall_ratios, tire.rolling_radius_m, dt
-        )
-        calibration = match.calibration
+    if calibration is not None:
         ratio_per_speed = ratio_per_speed * calibration
-        segs = gear_segments(match.gear, dt)
-        notes += match_notices(match, segs, t, sig.speed, drivetrain.overall_ratios, dt)
-        bounds = [
-            (x.last, y.first, float(t[x.last]), float(t[y.first]))
-            for x, y in itertools.pairwise(segs)
-        ]
-    else:
-        source = GearSource.ACCELERATION
-        segs, bounds = _segments_from_dips(
-            sig, dt, first, start_gear, drivetrain.gear_count, notes
-        )
     if len(bounds) > MAX_SHIFTS:
         notes.append(
             Notice(
@@ -326,28 +384,8 @@ def analyse_pass(
         measure_shift(segs[k], segs[k + 1], b, sig, ratio_per_speed, limit, tolerance)
         for k, b in enumerate(bounds)
     )
-    if not shifts:
-        notes.append(Notice("no_shifts", "No gear change was found in the pass."))
-    for s in shifts:
-        if s.basis is VerdictBasis.INSUFFICIENT_DATA:
-            notes.append(
-                Notice(
-                    "too_few_samples",
-                    f"Shift {s.from_gear}-{s.to_gear}: too few samples in a gear to fit its "
-                    "acceleration; no verdict.",
-                )
-            )
-    segments = tuple(
-        GearSegment(
-            s.gear,
-            float(t[s.first]),
-            float(t[s.last]),
-            float(sig.speed[s.first]),
-            float(sig.speed[s.last]),
-            s.last - s.first + 1,
-        )
-        for s in segs
-    )
+    notes += _shift_notices(shifts)
+    segments = _gear_segments(segs, t, sig.speed)
     return PassAnalysis(
         gears_from=source,
         interval_s=dt,

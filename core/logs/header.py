@@ -6,7 +6,7 @@ import enum
 import re
 from dataclasses import dataclass
 
-from core.logs.pass_data import LogDataError
+from core.errors import LogDataError
 
 __all__ = ["LogColumn", "LogQuantity", "read_header", "unit_of"]
 

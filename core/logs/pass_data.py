@@ -17,14 +17,14 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from core.errors import GearworkError
-from core.shifts.plan import Notice
+from core.errors import LogDataError
+from core.notices import Notice
+from core.units import KM_H_M_S, MPH_M_S, STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "MAX_SAMPLES",
     "MIN_SAMPLES",
     "AccelerationUnit",
-    "LogDataError",
     "PassLog",
     "SpeedUnit",
     "TimeUnit",
@@ -42,36 +42,9 @@ MAX_INTERVAL_S = 0.5  # [s] ... and at least 2 Hz
 MAX_DURATION_S = 3600.0
 MAX_SPEED_M_S = 150.0
 MAX_RPM = 30_000.0
-MAX_ACCELERATION_M_S2 = 5.0 * 9.80665
+MAX_ACCELERATION_M_S2 = 5.0 * STANDARD_GRAVITY_M_S2
 GAP_FACTOR = 5.0  # a step over 5 median intervals (and over 0.25 s) is reported as a gap
 _MAX_GRID = 2 * MAX_SAMPLES
-_STANDARD_GRAVITY = 9.80665  # [m/s^2]
-
-
-class LogDataError(GearworkError):
-    """A logged pass cannot be used: bad channels, or a log text that cannot be read.
-
-    Parameters
-    ----------
-    message : str
-        What is wrong, naming the channel (and the sample index or line).
-    parameter : str or None
-        The channel at fault, with an index where one applies (``"time[12]"``).
-    line, column : int or None
-        For a log text: the 1-based line and column (cell) at fault, when one is.
-    """
-
-    def __init__(
-        self,
-        message: str,
-        *,
-        parameter: str | None = None,
-        line: int | None = None,
-        column: int | None = None,
-    ) -> None:
-        super().__init__(message, parameter=parameter)
-        self.line = line
-        self.column = column
 
 
 class TimeUnit(enum.Enum):
@@ -96,7 +69,7 @@ class SpeedUnit(enum.Enum):
     @property
     def si_factor(self) -> float:
         """Multiplier to metres per second [m/s] (1 mph = 0.44704 m/s exactly)."""
-        return {SpeedUnit.KM_H: 1.0 / 3.6, SpeedUnit.MPH: 0.44704, SpeedUnit.M_S: 1.0}[self]
+        return {SpeedUnit.KM_H: KM_H_M_S, SpeedUnit.MPH: MPH_M_S, SpeedUnit.M_S: 1.0}[self]
 
 
 class AccelerationUnit(enum.Enum):
@@ -108,7 +81,7 @@ class AccelerationUnit(enum.Enum):
     @property
     def si_factor(self) -> float:
         """Multiplier to m/s^2 (standard gravity 9.80665 m/s^2 for ``g``)."""
-        return _STANDARD_GRAVITY if self is AccelerationUnit.G else 1.0
+        return STANDARD_GRAVITY_M_S2 if self is AccelerationUnit.G else 1.0
 
 
 @dataclass(frozen=True)

@@ -19,7 +19,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from core.logs.signal import GearMatch, SampleSegment
-from core.shifts.plan import Notice
+from core.notices import Notice
 
 __all__ = ["CALIBRATION_NOTICE", "LONG_UNMATCHED_S", "SPIN_MIN_S", "match_notices"]
 

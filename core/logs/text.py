@@ -34,33 +34,37 @@ The rules:
 
 from __future__ import annotations
 
-import csv
 import re
 from dataclasses import dataclass
 
 from core.dyno.numbers import number_format_of_texts, parse_column
-from core.dyno.parse import Delimiter
-from core.dyno.rows import significant_lines
-from core.errors import DynoFileError
+from core.errors import DynoFileError, LogDataError
 from core.logs.header import LogColumn, LogQuantity, read_header
 from core.logs.pass_data import (
     MAX_SAMPLES,
     AccelerationUnit,
-    LogDataError,
     PassLog,
     SpeedUnit,
     TimeUnit,
     pass_log,
 )
-from core.shifts.plan import Notice
+from core.notices import Notice
+from core.readers.delimited import (
+    MAX_TEXT_CHARS,
+    Delimiter,
+    best_delimiter,
+    cells_or_none,
+    forbidden_character,
+    normalised_text,
+    significant_lines,
+    split_rows,
+)
 
 __all__ = ["MAX_TEXT_CHARS", "LogText", "read_log_text"]
 
-MAX_TEXT_CHARS = 1_000_000
 _HEADER_SEARCH_LINES = 50
 _PROBE_LINES = 20
 _COMMENTS = ("#", "//")
-_FORBIDDEN = re.compile("[\x00-\x08\x0b-\x0c\x0e-\x1f\x7f-\x9f\ufffd\ufffe\uffff\ud800-\udfff]")
 _INDEXED = re.compile(r"^(?P<name>[a-z_]+)\[(?P<index>\d+)\]$")
 
 
@@ -96,11 +100,11 @@ def _checked(text: str) -> list[tuple[int, str]]:
             f"`text` must be at most {MAX_TEXT_CHARS} characters, got {len(text)}",
             parameter="text",
         )
-    text = text.removeprefix("\ufeff").replace("\r\n", "\n").replace("\r", "\n")
-    bad = _FORBIDDEN.search(text)
+    text = normalised_text(text)
+    bad = forbidden_character(text)
     if bad is not None:
-        at = text.count("\n", 0, bad.start()) + 1
-        what = "a NUL character" if bad.group() == "\x00" else f"U+{ord(bad.group()):04X}"
+        at, _, char = bad
+        what = "a NUL character" if char == "\x00" else f"U+{ord(char):04X}"
         raise LogDataError(
             f"`text` line {at} holds {what}: this looks like binary data, not a text export",
             parameter="text",
@@ -114,32 +118,6 @@ def _checked(text: str) -> list[tuple[int, str]]:
     return out
 
 
-def _split_rows(data: list[tuple[int, str]], delimiter: Delimiter) -> list[list[str]]:
-    """The cells of every data line: split at the delimiter, or line by line through a
-    strict CSV reader when a quote could join lines (so each row keeps its own line)."""
-    lines = [line for _, line in data]
-    if '"' not in "\n".join(lines):
-        return [line.split(delimiter.value) for line in lines]
-    rows = []
-    for number, line in data:
-        try:
-            rows.append(next(csv.reader([line], delimiter=delimiter.value, strict=True)))
-        except csv.Error as exc:
-            raise LogDataError(
-                f"`text` line {number} cannot be split into cells: {exc}",
-                parameter="text",
-                line=number,
-            ) from exc
-    return rows
-
-
-def _cells_or_none(line: str, delimiter: Delimiter) -> list[str] | None:
-    try:
-        return [c.strip() for c in next(csv.reader([line], delimiter=delimiter.value))]
-    except csv.Error:
-        return None
-
-
 def _find_header(
     lines: list[tuple[int, str]],
 ) -> tuple[int, Delimiter, tuple[LogColumn, ...], bool]:
@@ -150,18 +128,17 @@ def _find_header(
         for delimiter in Delimiter:
             if delimiter.value not in line:
                 continue
-            cells = _cells_or_none(line, delimiter)
-            under = None if below is None else _cells_or_none(below, delimiter)
+            cells = cells_or_none(line, delimiter)
+            under = None if below is None else cells_or_none(below, delimiter)
             if cells is None:
                 continue
             header = read_header(cells, under, number)
-            if header is None:
-                continue
-            probe = lines[index + 1 : index + 1 + _PROBE_LINES]
-            score = sum(len(_cells_or_none(t, delimiter) or ()) == len(cells) for _, t in probe)
-            found.append((score, delimiter, header))
+            if header is not None:
+                found.append((len(cells), delimiter, header))
         if found:
-            _, delimiter, (columns, units_row) = max(found, key=lambda f: f[0])
+            probe = lines[index + 1 : index + 1 + _PROBE_LINES]
+            best = best_delimiter([f[0] for f in found], [f[1] for f in found], probe)
+            _, delimiter, (columns, units_row) = found[best]
             return index, delimiter, columns, units_row
     raise LogDataError(
         f"`text` has no header row (searched {_HEADER_SEARCH_LINES} lines) naming a time "
@@ -205,7 +182,7 @@ def read_log_text(text: str) -> LogText:
             f"`text` must hold at most {MAX_SAMPLES} data rows, got {len(data)}", parameter="text"
         )
     need = max(c.column for c in columns)
-    rows = _split_rows(data, delimiter)
+    rows = split_rows(data, delimiter, LogDataError)
     lengths = list(map(len, rows))
     short = (
         None

@@ -32,9 +32,12 @@ from core.runs.batch_timing import (
     timed_distances,
     timed_speeds,
 )
-from core.runs.integrator import MAX_SPEED_M_S, GearBlock, RunStart, ShiftBlock, integrate_runs
-from core.runs.milestones import FOOT_M
-from core.runs.simulate import DriveModel, checked_shift_rpm, default_start_gear
+from core.runs.drive_model import DriveModel
+from core.runs.integrator import MAX_SPEED_M_S, integrate_runs
+from core.runs.milestones import STANDARD_ROLLOUT_M
+from core.runs.run_blocks import GearBlock, RunStart, ShiftBlock
+from core.runs.simulate import default_start_gear
+from core.shifts.shift_rpm import checked_shift_rpm
 
 __all__ = ["BatchRuns", "batch_finish_times", "batch_runs"]
 
@@ -137,7 +140,7 @@ def batch_runs(
     *,
     distances: Sequence[tuple[str, float, bool]],
     speeds: Sequence[tuple[str, float, float]] = (),
-    rollout_m: float = FOOT_M,
+    rollout_m: float = STANDARD_ROLLOUT_M,
 ) -> BatchRuns:
     """Standing-start runs with each final drive ratio, integrated together and timed.
 
@@ -175,7 +178,8 @@ def batch_runs(
         is negative or not finite.
     """
     f = checked_final_drives(final_drive_ratio)
-    shifts = checked_shift_rpm(model, shift_rpm)
+    gears = model.drivetrain.gear_count
+    shifts = checked_shift_rpm(model.curve, model.rev_limit_rpm, gears, shift_rpm)
     lengths = [rollout_m] + [d for _, d, _ in distances]
     rates = [v for _, a, b in speeds for v in (a, b)]
     for name, values in (("distances", lengths), ("speeds", rates)):
@@ -243,7 +247,9 @@ def batch_finish_times(
         from the start of the run); NaN where the run does not get there or cannot move.
     """
     rows = np.atleast_2d(np.asarray(shift_rpm, dtype=np.float64))
-    shifts = np.array([checked_shift_rpm(model, r) for r in rows]).reshape(rows.shape)
+    gears = model.drivetrain.gear_count
+    checked = [checked_shift_rpm(model.curve, model.rev_limit_rpm, gears, r) for r in rows]
+    shifts = np.array(checked).reshape(rows.shape)
     k = rows.shape[0]
     rollout = rollout_m if start_speed_m_s == 0.0 else 0.0
     distances = [] if finish_distance_m is None else [("finish", finish_distance_m, False)]
@@ -255,7 +261,6 @@ def batch_finish_times(
         probes = TraceProbes(idx.size, probe_distances(rollout, distances), probe_speeds(speeds))
         cover = (finish_distance_m or 0.0) + rollout
         start = RunStart(start_speed_m_s, gear - 1, cover, finish_speed_m_s or 0.0)
-        gears = model.drivetrain.gear_count
         ratio = np.tile(model.drivetrain.overall_ratios, (idx.size, 1))
         masses = (
             np.tile(model.effective_mass_kg, (idx.size, 1)),
@@ -266,6 +271,6 @@ def batch_finish_times(
         if finish_distance_m is not None:
             timed = timed_distances(probes, distances, ends.moved)[0].elapsed_s
         else:
-            timed = np.where(ends.moved, probes.reaching(1), np.nan)
+            timed = np.where(ends.moved, probes.reaching()[:, 1], np.nan)
         out[idx] = timed
     return out

@@ -4,11 +4,11 @@
 trace points, non-decreasing in time, distance and speed within the block. Rather than keep
 the traces, :class:`TraceProbes` reads each block as it comes: for each distance to time,
 the last point at or before it and the first point past it, between which
-:func:`core.runs.milestones.time_at_distance` takes the acceleration as constant; for each speed,
-the first point at or above it and the point before, between which
-:func:`core.runs.milestones.time_at_speed` interpolates linearly. :func:`timed_distances` and
-:func:`timed_speeds` then time them as :func:`core.runs.milestones.timed_distance` and
-:func:`core.runs.milestones.timed_speed` do.
+the acceleration is taken as constant; for each speed, the first point at or above it and
+the point before, between which ``1/a`` is taken linear in speed as the integrator takes it.
+:func:`timed_distances` and :func:`timed_speeds` then time distances and speed intervals the
+way a strip does. This is the one strip timer: :mod:`core.runs.milestones` reads a single
+run through it as a batch of one.
 """
 
 from __future__ import annotations
@@ -19,9 +19,10 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from core.runs.milestones import TRAP_WINDOW_M
+from core.units import FOOT_M
 
 __all__ = [
+    "TRAP_WINDOW_M",
     "BatchTimedDistance",
     "BatchTimedSpeed",
     "TraceProbes",
@@ -35,6 +36,9 @@ FloatArray = NDArray[np.float64]
 BoolArray = NDArray[np.bool_]
 IntArray = NDArray[np.int64]
 _DIRECT_COUNT = 100_000  # pairs times points up to which counting beats bisection
+
+TRAP_WINDOW_M = 66.0 * FOOT_M
+"""A trap speed is the average over the last 66 ft before the line [m] (common practice)."""
 
 
 @dataclass(frozen=True)
@@ -125,8 +129,8 @@ class TraceProbes:
     past it; for each probe speed, the first point at or above it and the point before.
     Every block handed to :meth:`add` must be non-decreasing in distance and in speed along
     its rows, and follow the row's earlier blocks in time (the gear segments, shift points
-    and final hold of :func:`core.runs.batch.batch_runs` are). Every trace starts at rest at
-    the origin.
+    and final hold of :func:`core.runs.batch.batch_runs` are). Every trace starts at the
+    origin.
 
     Parameters
     ----------
@@ -151,6 +155,8 @@ class TraceProbes:
         self.last = [np.zeros(count) for _ in range(3)]  # t, v, x
         self.last_a = np.zeros(count)
         self.started = np.zeros(count, dtype=np.bool_)
+        self.first_t = np.full(count, np.nan)  # time and speed of each trace's first point
+        self.first_v = np.full(count, np.nan)
 
     def add(
         self, rows: IntArray, t: FloatArray, v: FloatArray, x: FloatArray, a: FloatArray
@@ -166,6 +172,9 @@ class TraceProbes:
             points.
         """
         cols = (t, v, x)
+        new = ~self.started[rows]
+        self.first_t[rows[new]] = t[new, 0]
+        self.first_v[rows[new]] = v[new, 0]
         if self.d.size:
             before = x[:, -1:] <= self.d[None, :]  # the whole block at or before d
             past = x[:, :1] > self.d[None, :]  # the whole block past d
@@ -201,15 +210,15 @@ class TraceProbes:
         self.last_a[rows] = a[:, -1]
         self.started[rows] = True
 
-    def passing(self, j: int) -> tuple[FloatArray, FloatArray]:
-        """Time [s] and speed [m/s] of each trace passing probe distance ``j``, shape (c,),
-        NaN where a trace does not get there; as :func:`core.runs.milestones.time_at_distance`,
-        with the acceleration constant between the points either side."""
-        d = float(self.d[j])
-        t0, v0, x0 = (le[:, j] for le in self.le)
-        found = self.gt_found[:, j]
-        t1 = np.where(found, self.gt[0][:, j], t0)
-        v1 = np.where(found, self.gt[1][:, j], v0)
+    def passing(self) -> tuple[FloatArray, FloatArray]:
+        """Time [s] and speed [m/s] of each trace passing each probe distance, shape (c, d),
+        NaN where a trace does not get there, with the acceleration constant between the
+        points either side."""
+        d = self.d[None, :]
+        t0, v0, x0 = self.le
+        found = self.gt_found
+        t1 = np.where(found, self.gt[0], t0)
+        v1 = np.where(found, self.gt[1], v0)
         dx = d - x0
         flat = (t1 <= t0) | (dx <= 0.0) | ~found
         a = (v1 - v0) / np.where(flat, 1.0, t1 - t0)
@@ -217,17 +226,17 @@ class TraceProbes:
         moving = ~flat & (v0 + root > 0.0)
         tau = np.where(moving, 2.0 * dx / np.where(moving, v0 + root, 1.0), 0.0)
         tau = np.minimum(tau, np.where(flat, 0.0, t1 - t0))
-        reach = found | (d <= self.last[2] * (1 + 1e-12))
+        reach = found | (d <= self.last[2][:, None] * (1 + 1e-12))
         return np.where(reach, t0 + tau, np.nan), np.where(reach, v0 + a * tau, np.nan)
 
-    def reaching(self, j: int) -> FloatArray:
-        """Time [s] at which each trace first reaches probe speed ``j``, shape (c,), NaN
-        where it does not; as :func:`core.runs.milestones.time_at_speed`."""
-        s = float(self.s[j])
-        t1, v1, a1 = (h[:, j] for h in self.hit)
-        t0, v0, a0 = (p[:, j] for p in self.pre)
-        first = self.found[:, j] & np.isnan(t0)
-        later = self.found[:, j] & ~first
+    def reaching(self) -> FloatArray:
+        """Time [s] at which each trace first reaches each probe speed, shape (c, s), NaN
+        where it does not."""
+        s = self.s[None, :]
+        t1, v1, a1 = self.hit
+        t0, v0, a0 = self.pre
+        first = self.found & np.isnan(t0)
+        later = self.found & ~first
         dv = np.where(later, v1 - v0, 1.0)
         ds = s - v0
         frac = np.where(later, ds / dv, 0.0)
@@ -238,7 +247,7 @@ class TraceProbes:
         shape = (ds * i0 + (i1 - i0) * ds * ds / (2.0 * dv)) / (0.5 * dv * (i0 + i1))
         frac = np.where(curved, shape, frac)
         time = np.where(later, t0 + frac * (t1 - t0), t1)
-        return np.where(self.found[:, j], time, np.nan)
+        return np.where(self.found, time, np.nan)
 
 
 def _trapped(distance_m: float, trap: bool) -> bool:
@@ -248,7 +257,7 @@ def _trapped(distance_m: float, trap: bool) -> bool:
 def timed_distances(
     probes: TraceProbes, distances: Sequence[tuple[str, float, bool]], moved: BoolArray
 ) -> tuple[BatchTimedDistance, ...]:
-    """Time distances as :func:`core.runs.milestones.timed_distance` does, for every trace.
+    """Time distances the way a strip does, for every trace.
 
     Parameters
     ----------
@@ -264,14 +273,15 @@ def timed_distances(
     tuple of BatchTimedDistance
     """
     nan = np.full(moved.shape, np.nan)
-    start, _ = probes.passing(0)
+    passing_t, passing_v = probes.passing()
+    start = passing_t[:, 0]
     out, entry_j = [], 1 + len(distances)
     for j, (name, d, trap) in enumerate(distances, start=1):
-        end, speed = probes.passing(j)
+        end, speed = passing_t[:, j], passing_v[:, j]
         elapsed = np.where(moved, end - start, np.nan)
         trap_speed = nan
         if _trapped(d, trap):
-            entry, _ = probes.passing(entry_j)
+            entry = passing_t[:, entry_j]
             entry_j += 1
             timed = moved & np.isfinite(entry) & np.isfinite(end) & (end > entry)
             gap = np.where(timed, end - entry, 1.0)
@@ -284,8 +294,12 @@ def timed_distances(
 def timed_speeds(
     probes: TraceProbes, speeds: Sequence[tuple[str, float, float]], moved: BoolArray
 ) -> tuple[BatchTimedSpeed, ...]:
-    """Time speed intervals as :func:`core.runs.milestones.timed_speed` does on standing
-    starts, for every trace.
+    """Time speed intervals, first reach of each speed, for every trace.
+
+    An interval is timed from the first reach of its start speed (from the first point
+    for a start speed of 0), and not at all on a trace whose first point is already above
+    its start speed; on traces from rest, an interval from 0 is also given less the time to
+    roll out.
 
     Parameters
     ----------
@@ -300,13 +314,16 @@ def timed_speeds(
     -------
     tuple of BatchTimedSpeed
     """
-    rolled, _ = probes.passing(0)
+    rolled = probes.passing()[0][:, 0]
+    reaching = probes.reaching()
     out = []
     for j, (name, a, b) in enumerate(speeds):
-        start = np.zeros(moved.shape) if a <= 0.0 else probes.reaching(2 * j)
-        end = probes.reaching(2 * j + 1)
-        elapsed = np.where(moved, end - start, np.nan)
-        less = np.where(moved, end - rolled, np.nan) if a == 0.0 else np.full(moved.shape, np.nan)
+        begun = moved & (probes.first_v <= a + 1e-9)
+        start = probes.first_t if a <= 0.0 else reaching[:, 2 * j]
+        end = reaching[:, 2 * j + 1]
+        elapsed = np.where(begun, end - start, np.nan)
+        from_rest = begun & (probes.first_v == 0.0) & (a == 0.0)
+        less = np.where(from_rest, end - rolled, np.nan)
         out.append(BatchTimedSpeed(name, a, b, elapsed, less))
     return tuple(out)
 

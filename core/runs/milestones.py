@@ -6,34 +6,45 @@ From a standstill the clock starts once the car has rolled ``rollout_m`` (about 
 tire-dependent), so a distance D is timed from x = rollout to x = rollout + D. Speed
 milestones (0-60 mph, ...) are timed from the first motion, and also given with the
 rollout time subtracted, as published road-test figures often are.
+
+A single run is timed as a batch of one by the strip timer of :mod:`core.runs.batch_timing`,
+so a run and a sweep of many runs read their times the same way.
 """
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
+from numpy.typing import ArrayLike, NDArray
 
+from core.runs.batch_timing import (
+    TraceProbes,
+    probe_distances,
+    probe_speeds,
+    timed_distances,
+    timed_speeds,
+)
 from core.runs.simulate import RunResult
+from core.units import FOOT_M, KM_H_M_S, MPH_M_S
 
 __all__ = [
-    "FOOT_M",
     "STANDARD_DISTANCES",
+    "STANDARD_ROLLOUT_M",
     "STANDARD_SPEEDS",
-    "TRAP_WINDOW_M",
     "TimedDistance",
     "TimedSpeed",
     "speed_at_distance",
+    "strip_times",
     "time_at_distance",
     "time_at_speed",
     "timed_distance",
     "timed_speed",
 ]
 
-FOOT_M = 0.3048
-MPH = 0.44704
-KMH = 1.0 / 3.6
-TRAP_WINDOW_M = 66.0 * FOOT_M
+STANDARD_ROLLOUT_M = FOOT_M
+"""Rollout of a standing start when the caller gives none [m] (one foot, common practice)."""
 STANDARD_DISTANCES: tuple[tuple[str, float, bool], ...] = (
     ("60 ft", 60.0 * FOOT_M, False),
     ("330 ft", 330.0 * FOOT_M, False),
@@ -46,66 +57,11 @@ STANDARD_DISTANCES: tuple[tuple[str, float, bool], ...] = (
 """Name, distance [m] and whether a trap speed is timed there."""
 
 STANDARD_SPEEDS: tuple[tuple[str, float, float], ...] = (
-    ("0-60 mph", 0.0, 60.0 * MPH),
-    ("0-100 km/h", 0.0, 100.0 * KMH),
-    ("0-100 mph", 0.0, 100.0 * MPH),
+    ("0-60 mph", 0.0, 60.0 * MPH_M_S),
+    ("0-100 km/h", 0.0, 100.0 * KM_H_M_S),
+    ("0-100 mph", 0.0, 100.0 * MPH_M_S),
 )
 """Name, start and end speed [m/s]."""
-
-
-def _passing(run: RunResult, distance_m: float) -> tuple[float, float] | None:
-    """Time [s] and speed [m/s] as the run passes ``distance_m``, taking the acceleration
-    as constant between trace points (exact for constant acceleration)."""
-    x = run.distance_m
-    if distance_m > x[-1] * (1 + 1e-12) or distance_m < 0.0:
-        return None
-    i = int(np.clip(np.searchsorted(x, distance_m, side="right") - 1, 0, x.size - 2))
-    t0, t1 = float(run.time_s[i]), float(run.time_s[i + 1])
-    v0, v1 = float(run.speed_m_s[i]), float(run.speed_m_s[i + 1])
-    dx = distance_m - float(x[i])
-    if t1 <= t0 or dx <= 0.0:
-        return t0, v0
-    a = (v1 - v0) / (t1 - t0)
-    root = max(v0 * v0 + 2.0 * a * dx, 0.0) ** 0.5
-    tau = 2.0 * dx / (v0 + root) if v0 + root > 0.0 else 0.0
-    tau = min(tau, t1 - t0)
-    return t0 + tau, v0 + a * tau
-
-
-def time_at_distance(run: RunResult, distance_m: float) -> float | None:
-    """Time [s] from the start of motion at which the run reaches ``distance_m`` [m]."""
-    passing = _passing(run, distance_m)
-    return None if passing is None else passing[0]
-
-
-def speed_at_distance(run: RunResult, distance_m: float) -> float | None:
-    """Road speed [m/s] as the run passes ``distance_m`` [m]."""
-    passing = _passing(run, distance_m)
-    return None if passing is None else passing[1]
-
-
-def time_at_speed(run: RunResult, speed_m_s: float) -> float | None:
-    """Time [s] at which the run first reaches ``speed_m_s`` [m/s], or None.
-
-    Between two trace points that both accelerate, ``1/a`` is taken linear in speed, as
-    the integrator's trapezoid rule does, so the time at a speed between them is
-    quadratic in speed and meets both points; otherwise it is linear.
-    """
-    v = run.speed_m_s
-    reached = np.flatnonzero(v >= speed_m_s)
-    if reached.size == 0:
-        return None
-    k = int(reached[0])
-    if k == 0:
-        return float(run.time_s[0])
-    v0, v1 = float(v[k - 1]), float(v[k])
-    t0, t1 = float(run.time_s[k - 1]), float(run.time_s[k])
-    a0, a1 = float(run.acceleration_m_s2[k - 1]), float(run.acceleration_m_s2[k])
-    dv, s = v1 - v0, speed_m_s - v0
-    if a0 > 0.0 and a1 > 0.0 and t1 > t0:
-        shape = s / a0 + (1.0 / a1 - 1.0 / a0) * s * s / (2.0 * dv)
-        return t0 + (t1 - t0) * shape / (0.5 * dv * (1.0 / a0 + 1.0 / a1))
-    return t0 + s / dv * (t1 - t0)
 
 
 @dataclass(frozen=True)
@@ -157,10 +113,108 @@ class TimedSpeed:
     less_rollout_s: float | None
 
 
+_ONE_RUN = np.zeros(1, dtype=np.int64)
+_MOVED = np.ones(1, dtype=np.bool_)
+
+
+def _probes(run: RunResult, distances: ArrayLike, speeds: ArrayLike) -> TraceProbes:
+    """The strip timer's probes read over one run: the whole trace as one block (distance
+    never falls), or for speeds, in blocks along which speed does not fall (a shift's
+    coast or a slowing car starts a new block)."""
+    probe_v = np.asarray(speeds, dtype=np.float64)
+    probes = TraceProbes(1, np.asarray(distances, dtype=np.float64), probe_v)
+    v = run.speed_m_s
+    cuts = (np.flatnonzero(v[1:] < v[:-1]) + 1).tolist() if probe_v.size else []
+    for lo, hi in zip([0, *cuts], [*cuts, v.size], strict=True):
+        probes.add(
+            _ONE_RUN,
+            run.time_s[None, lo:hi],
+            v[None, lo:hi],
+            run.distance_m[None, lo:hi],
+            run.acceleration_m_s2[None, lo:hi],
+        )
+    return probes
+
+
+def _value(a: NDArray[np.float64]) -> float | None:
+    value = float(a[0])
+    return None if np.isnan(value) else value
+
+
+def time_at_distance(run: RunResult, distance_m: float) -> float | None:
+    """Time [s] from the start of motion at which the run reaches ``distance_m`` [m], taking
+    the acceleration as constant between trace points (exact for constant acceleration)."""
+    if distance_m < 0.0:
+        return None
+    return _value(_probes(run, [distance_m], []).passing()[0][:, 0])
+
+
+def speed_at_distance(run: RunResult, distance_m: float) -> float | None:
+    """Road speed [m/s] as the run passes ``distance_m`` [m]."""
+    if distance_m < 0.0:
+        return None
+    return _value(_probes(run, [distance_m], []).passing()[1][:, 0])
+
+
+def time_at_speed(run: RunResult, speed_m_s: float) -> float | None:
+    """Time [s] at which the run first reaches ``speed_m_s`` [m/s], or None.
+
+    Between two trace points that both accelerate, ``1/a`` is taken linear in speed, as
+    the integrator's trapezoid rule does, so the time at a speed between them is
+    quadratic in speed and meets both points; otherwise it is linear.
+    """
+    return _value(_probes(run, [], [speed_m_s]).reaching()[:, 0])
+
+
+def strip_times(
+    run: RunResult,
+    distances: Sequence[tuple[str, float, bool]],
+    speeds: Sequence[tuple[str, float, float]],
+    *,
+    rollout_m: float,
+) -> tuple[tuple[TimedDistance, ...], tuple[TimedSpeed, ...]]:
+    """Time distances and speed intervals of one run the way a strip does.
+
+    Parameters
+    ----------
+    run : RunResult
+        The run.
+    distances : sequence of (str, float, bool)
+        Name, distance from where the clock starts [m] and whether to time the trap speed
+        over the last 66 ft, as :data:`STANDARD_DISTANCES`.
+    speeds : sequence of (str, float, float)
+        Name, start and end speed [m/s] (start below end), as :data:`STANDARD_SPEEDS`;
+        each timed between the first reach of either speed.
+    rollout_m : float
+        Distance rolled before the clock starts [m] (0 for a rolling start).
+
+    Returns
+    -------
+    tuple of TimedDistance, tuple of TimedSpeed
+        In the order asked.
+    """
+    probes = _probes(run, probe_distances(rollout_m, distances), probe_speeds(speeds))
+    timed_d = tuple(
+        TimedDistance(
+            t.name,
+            t.distance_m,
+            _value(t.elapsed_s),
+            _value(t.speed_m_s),
+            _value(t.trap_speed_m_s),
+        )
+        for t in timed_distances(probes, distances, _MOVED)
+    )
+    timed_v = tuple(
+        TimedSpeed(t.name, t.from_m_s, t.to_m_s, _value(t.elapsed_s), _value(t.less_rollout_s))
+        for t in timed_speeds(probes, speeds, _MOVED)
+    )
+    return timed_d, timed_v
+
+
 def timed_distance(
     run: RunResult, name: str, distance_m: float, *, rollout_m: float, trap: bool
 ) -> TimedDistance:
-    """Time a distance the way a strip does.
+    """Time one distance the way a strip does (see :func:`strip_times`).
 
     Parameters
     ----------
@@ -179,24 +233,13 @@ def timed_distance(
     -------
     TimedDistance
     """
-    start = time_at_distance(run, rollout_m)
-    end = time_at_distance(run, rollout_m + distance_m)
-    if start is None or end is None:
-        return TimedDistance(name, distance_m, None, None, None)
-    trap_speed = None
-    if trap and distance_m > TRAP_WINDOW_M:
-        entry = time_at_distance(run, rollout_m + distance_m - TRAP_WINDOW_M)
-        if entry is not None and end > entry:
-            trap_speed = TRAP_WINDOW_M / (end - entry)
-    return TimedDistance(
-        name, distance_m, end - start, speed_at_distance(run, rollout_m + distance_m), trap_speed
-    )
+    return strip_times(run, [(name, distance_m, trap)], [], rollout_m=rollout_m)[0][0]
 
 
 def timed_speed(
     run: RunResult, name: str, from_m_s: float, to_m_s: float, *, rollout_m: float
 ) -> TimedSpeed:
-    """Time between two speeds, first reach of each.
+    """Time between two speeds, first reach of each (see :func:`strip_times`).
 
     Parameters
     ----------
@@ -213,14 +256,4 @@ def timed_speed(
     -------
     TimedSpeed
     """
-    if run.speed_m_s[0] > from_m_s + 1e-9:
-        return TimedSpeed(name, from_m_s, to_m_s, None, None)
-    start = time_at_speed(run, from_m_s) if from_m_s > 0.0 else float(run.time_s[0])
-    end = time_at_speed(run, to_m_s)
-    if start is None or end is None:
-        return TimedSpeed(name, from_m_s, to_m_s, None, None)
-    less = None
-    if from_m_s == 0.0 and run.speed_m_s[0] == 0.0:
-        rolled = time_at_distance(run, rollout_m)
-        less = None if rolled is None else end - rolled
-    return TimedSpeed(name, from_m_s, to_m_s, end - start, less)
+    return strip_times(run, [], [(name, from_m_s, to_m_s)], rollout_m=rollout_m)[1][0]

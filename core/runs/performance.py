@@ -13,7 +13,7 @@ from numpy.typing import NDArray
 
 from core.car.gradeability import gradeability
 from core.converter.drive import ConverterDrive
-from core.runs.simulate import DriveModel
+from core.runs.drive_model import DriveModel
 from core.shifts.best import ShiftChoice, ShiftReason, best_shifts
 from core.shifts.plan import ShiftPoint, shift_plan
 from core.shifts.search import OptimalShifts, search_shift_rpm
@@ -25,7 +25,9 @@ __all__ = [
     "acceleration_shift_points",
     "acceleration_shifts",
     "cruise_rpm",
+    "engine_rpm_at",
     "gradeability_by_gear",
+    "model_converter",
     "optimal_shift_rpm",
     "planned_shift_rpm",
     "top_speed",

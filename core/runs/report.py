@@ -16,18 +16,19 @@ import numpy as np
 from numpy.typing import NDArray
 from scipy.optimize import brentq
 
+from core.runs.drive_model import DriveModel
 from core.runs.milestones import (
     STANDARD_DISTANCES,
+    STANDARD_ROLLOUT_M,
     STANDARD_SPEEDS,
     TimedDistance,
     TimedSpeed,
+    strip_times,
     time_at_distance,
     time_at_speed,
-    timed_distance,
-    timed_speed,
 )
 from core.runs.performance import TopSpeed, top_speed
-from core.runs.simulate import DriveModel, RunResult, simulate_run
+from core.runs.simulate import RunResult, simulate_run
 
 __all__ = [
     "QUARTER_MILE_M",
@@ -157,7 +158,7 @@ def run_report(
     *,
     start_speed_m_s: float = 0.0,
     start_gear: int | None = None,
-    rollout_m: float = 0.3048,
+    rollout_m: float = STANDARD_ROLLOUT_M,
     finish_distance_m: float | None = None,
     finish_speed_m_s: float | None = None,
     extra_distances_m: Sequence[float] = (),
@@ -208,15 +209,16 @@ def run_report(
         cover_distance_m=cover_d,
         cover_speed_m_s=cover_v,
     )
-    timed_d = tuple(timed_distance(run, n, d, rollout_m=rollout, trap=t) for n, d, t in dists)
-    timed_v = tuple(timed_speed(run, n, a, b, rollout_m=rollout) for n, a, b in speeds)
+    target = float(finish_speed_m_s or 0.0)
+    finish_d = [] if finish_distance_m is None else [("finish", finish_distance_m, True)]
+    finish_v = [] if finish_d else [("finish", float(run.speed_m_s[0]), target)]
+    timed_d, timed_v = strip_times(run, dists + finish_d, speeds + finish_v, rollout_m=rollout)
     finish: TimedDistance | TimedSpeed
     if finish_distance_m is not None:
-        finish = timed_distance(run, "finish", finish_distance_m, rollout_m=rollout, trap=True)
+        finish, timed_d = timed_d[-1], timed_d[:-1]
         end = time_at_distance(run, finish_distance_m + rollout)
     else:
-        target = float(finish_speed_m_s or 0.0)
-        finish = timed_speed(run, "finish", float(run.speed_m_s[0]), target, rollout_m=rollout)
+        finish, timed_v = timed_v[-1], timed_v[:-1]
         end = time_at_speed(run, target)
     return RunReport(
         run=run,

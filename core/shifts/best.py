@@ -9,7 +9,8 @@ range when shifting at speed s is, up to a constant,
 
 so dJ/ds = 1/e_i(s) - 1/e_{i+1}(s): J is stationary where the two efforts cross, and a
 minimum where gear i's effort falls below gear i+1's. This module scans every gear pair at
-once on a fine grid, refines each such crossing by bracketed root finding on the
+once on a fine grid (stall, coincident band, sign changes and falling cells found for all
+pairs in array operations), refines each such crossing by bracketed root finding on the
 interpolated curves (an Illinois secant to 1e-7 rpm, the tolerance ``scipy.optimize.brentq``
 was given here; the tests hold the two together), adds the ends of the range as candidates,
 and keeps the candidate with the least J (a cumulative trapezoid), so curves that cross
@@ -43,6 +44,7 @@ __all__ = [
 ]
 
 FloatArray = NDArray[np.float64]
+BoolArray = NDArray[np.bool_]
 VectorEfforts = Callable[[FloatArray], tuple[FloatArray, FloatArray]]
 ScalarDiff = Callable[[int, float], float]
 
@@ -115,15 +117,6 @@ def _coincident_band(
     return lo, hi
 
 
-def _intersections(grid: FloatArray, diff: FloatArray, band: tuple[float, float] | None) -> int:
-    """Sign changes of ``diff`` on the grid, zeros and a coincident band left out."""
-    keep = diff != 0.0
-    if band is not None:
-        keep &= (grid < band[0]) | (grid > band[1])
-    signs = np.sign(diff[keep])
-    return int(np.count_nonzero(signs[1:] != signs[:-1]))
-
-
 def _crossing(f: Callable[[float], float], a: float, b: float, fa: float, fb: float) -> float:
     """The crossing of ``f`` in ``[a, b]`` [rpm], where ``fa = f(a) > 0 >= f(b) = fb``.
 
@@ -161,6 +154,101 @@ def _crossing(f: Callable[[float], float], a: float, b: float, fa: float, fb: fl
             a, fa = s2, d2
             fb, kept = (0.5 * fb if kept == 1 else fb), 1
     return min(max(a + fa / (fa - fb) * (b - a), a), b)
+
+
+@dataclass(frozen=True)
+class _Scan:
+    """Every gear change's scan, each row cut where the current gear stops accelerating.
+
+    ``grid`` and ``diff`` are (p, m); in a row whose current-gear effort falls to zero the
+    point where it does (linear in the scan cell) replaces the first point past it, and the
+    row ends there: ``last`` is the index of each row's last point (-1 for an empty range,
+    0 where the gear cannot accelerate at all), ``top`` the end of each row's range [rpm].
+    """
+
+    grid: FloatArray
+    diff: FloatArray
+    last: NDArray[np.intp]
+    top: FloatArray
+    inside: NDArray[np.bool_]
+
+    @classmethod
+    def of(
+        cls,
+        grid: FloatArray,
+        diff: FloatArray,
+        e_cur: FloatArray,
+        hi: FloatArray,
+        valid: BoolArray,
+    ) -> _Scan:
+        m = grid.shape[1]
+        stalled = e_cur <= 0.0
+        stops = stalled.any(axis=1)
+        last = np.where(stops, np.argmax(stalled, axis=1), m - 1)
+        last[~valid] = -1
+        top = hi.copy()
+        cut = np.flatnonzero(stops & valid & (last > 0))
+        if cut.size:
+            grid, diff = grid.copy(), diff.copy()
+            j = last[cut]
+            e0, e1 = e_cur[cut, j - 1], e_cur[cut, j]
+            frac = e0 / (e0 - e1)
+            g0, g1 = grid[cut, j - 1], grid[cut, j]
+            top[cut] = grid[cut, j] = g0 + frac * (g1 - g0)
+            diff[cut, j] = diff[cut, j - 1] + frac * (diff[cut, j] - diff[cut, j - 1])
+        inside = np.arange(m) <= last[:, None]
+        return cls(grid, diff, last, top, inside)
+
+
+def _bands(scan: _Scan, scale: FloatArray, span: FloatArray) -> dict[int, tuple[float, float]]:
+    """The coincident band of each gear change that has one, by row.
+
+    A band must be 2 % of its row's range wide: a row without enough close points to
+    span that many scan cells has none and is not looked at further."""
+    close = (np.abs(scan.diff) <= COINCIDENT_RTOL * scale[:, None]) & scan.inside
+    rows = np.arange(scan.last.size)
+    reach = (close.sum(axis=1) - 1) * (span / (SCAN_POINTS - 1)) * (1.0 + 1e-9)
+    wide = reach >= 0.02 * (scan.grid[rows, scan.last] - scan.grid[:, 0])
+    bands = {}
+    for k in np.flatnonzero(wide & (scan.last > 0)).tolist():
+        n = int(scan.last[k]) + 1
+        band = _coincident_band(scan.grid[k, :n], scan.diff[k, :n], float(scale[k]))
+        if band is not None:
+            bands[k] = band
+    return bands
+
+
+def _intersection_counts(scan: _Scan, bands: dict[int, tuple[float, float]]) -> NDArray[np.intp]:
+    """Sign changes of each row's ``diff``, zeros and a coincident band left out: every
+    row's kept points in one flat sequence, a change counted only within a row."""
+    keep = (scan.diff != 0.0) & scan.inside
+    for k, (b_lo, b_hi) in bands.items():
+        g = scan.grid[k]
+        keep[k] &= (g < b_lo) | (g > b_hi)
+    at = np.flatnonzero(keep)  # row-major: each row's kept points in order
+    row = at // scan.diff.shape[1]
+    rising = scan.diff.ravel()[at] > 0.0
+    change = (rising[1:] != rising[:-1]) & (row[1:] == row[:-1])
+    return np.bincount(row[1:][change], minlength=scan.diff.shape[0])
+
+
+def _falling_roots(
+    scan: _Scan, diff_scalar: ScalarDiff | None
+) -> tuple[NDArray[np.intp], FloatArray]:
+    """Each scan cell where the current gear falls behind (row-major order): its row and the
+    crossing in it [rpm], refined on ``diff_scalar`` or linear in the cell."""
+    g, d = scan.grid, scan.diff
+    falls = (d[:, :-1] > 0.0) & (d[:, 1:] <= 0.0) & scan.inside[:, 1:] & (scan.last > 0)[:, None]
+    rows, cols = np.nonzero(falls)
+    a, b = g[rows, cols], g[rows, cols + 1]
+    fa, fb = d[rows, cols], d[rows, cols + 1]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        roots = np.where(fb == 0.0, b, a + fa / (fa - fb) * (b - a))
+    if diff_scalar is not None:
+        for i in np.flatnonzero(fb != 0.0).tolist():
+            f = functools.partial(diff_scalar, int(rows[i]))
+            roots[i] = _crossing(f, float(a[i]), float(b[i]), float(fa[i]), float(fb[i]))
+    return rows, roots
 
 
 def _cost(grid: FloatArray, slowness: FloatArray) -> FloatArray:
@@ -225,52 +313,59 @@ def best_shifts(
     slowness = 1.0 / np.maximum(e_cur, floor) - 1.0 / np.maximum(e_next, floor)
     cost = _cost(grid, slowness)
 
+    scan = _Scan.of(grid, diff, e_cur, hi, valid)
+    bands = _bands(scan, scale, span)
+    crossed = _intersection_counts(scan, bands)
+    rows, roots = _falling_roots(scan, diff_scalar)
+    found: list[list[float]] = [[] for _ in range(lo.size)]
+    for k, root in zip(rows.tolist(), roots.tolist(), strict=True):
+        band = bands.get(k)
+        if band is None or not band[0] <= root <= band[1]:
+            found[k].append(root)
+
+    return _choose(grid, cost, scan, lo, hi, bands, found, crossed, (diff[:, 0] < 0.0).tolist())
+
+
+def _choose(
+    grid: FloatArray,
+    cost: FloatArray,
+    scan: _Scan,
+    lo: FloatArray,
+    hi: FloatArray,
+    bands: dict[int, tuple[float, float]],
+    found: list[list[float]],
+    crossed: NDArray[np.intp],
+    behind: list[bool],
+) -> tuple[ShiftChoice, ...]:
+    """Each gear change's quickest candidate (range start, range end, the crossings, the
+    band's end), by the crossing time ``cost`` interpolated on its scan."""
     choices = []
-    for k in range(lo.size):
-        if not valid[k]:
-            choices.append(ShiftChoice(float(hi[k]), ShiftReason.REV_LIMIT, 0, None, False))
+    for k, (start, limit, top, last, n) in enumerate(
+        zip(
+            lo.tolist(),
+            hi.tolist(),
+            scan.top.tolist(),
+            scan.last.tolist(),
+            crossed.tolist(),
+            strict=True,
+        )
+    ):
+        if last < 0:  # no shared range
+            choices.append(ShiftChoice(limit, ShiftReason.REV_LIMIT, 0, None, False))
             continue
-        g, d = grid[k], diff[k]
-        top = float(hi[k])
-        stalled = np.flatnonzero(e_cur[k] <= 0.0)
-        if stalled.size:  # the car cannot reach these speeds in the current gear
-            j = int(stalled[0])
-            if j == 0:
-                choices.append(ShiftChoice(float(lo[k]), ShiftReason.DRAG_LIMIT, 0, None, False))
-                continue
-            e0, e1 = float(e_cur[k][j - 1]), float(e_cur[k][j])
-            frac = e0 / (e0 - e1)
-            top = float(g[j - 1] + frac * (g[j] - g[j - 1]))
-            d_top = float(d[j - 1] + frac * (d[j] - d[j - 1]))
-            g, d = np.append(g[:j], top), np.append(d[:j], d_top)
-        band = _coincident_band(g, d, float(scale[k]))
-        roots = []
-        falls = np.flatnonzero((d[:-1] > 0.0) & (d[1:] <= 0.0))
-        for j in falls.tolist():
-            if d[j + 1] == 0.0:
-                root = float(g[j + 1])
-            elif diff_scalar is None:
-                root = float(g[j] + d[j] / (d[j] - d[j + 1]) * (g[j + 1] - g[j]))
-            else:
-                f = functools.partial(diff_scalar, k)
-                root = _crossing(f, float(g[j]), float(g[j + 1]), float(d[j]), float(d[j + 1]))
-            if band is None or not band[0] <= root <= band[1]:
-                roots.append(root)
-        candidates = [float(lo[k]), top, *roots]
+        if last == 0:  # the car cannot accelerate at the range's start
+            choices.append(ShiftChoice(start, ShiftReason.DRAG_LIMIT, 0, None, False))
+            continue
+        band, here = bands.get(k), found[k]
+        candidates = [start, top, *here]
         if band is not None:
             candidates.append(band[1])
-        at = np.interp(candidates, grid[k], cost[k])
-        best = candidates[int(np.argmin(at))]
+        best = candidates[int(np.interp(candidates, grid[k], cost[k]).argmin())]
         if band is not None and band[0] <= best <= band[1]:
             best = band[1]
-        below = best == float(lo[k]) and bool(d[0] < 0.0)
-        at_end = best >= top and not any(abs(r - top) <= 1e-9 * top for r in roots)
+        below = best == start and behind[k]
         reason = ShiftReason.CROSSOVER
-        if at_end:
-            reason = ShiftReason.REV_LIMIT if top >= float(hi[k]) else ShiftReason.DRAG_LIMIT
-        choices.append(
-            ShiftChoice(
-                best, reason, len(roots), band, below, _intersections(g, d, band), tuple(roots)
-            )
-        )
+        if best >= top and not any(abs(r - top) <= 1e-9 * top for r in here):
+            reason = ShiftReason.REV_LIMIT if top >= limit else ShiftReason.DRAG_LIMIT
+        choices.append(ShiftChoice(best, reason, len(here), band, below, n, tuple(here)))
     return tuple(choices)

@@ -14,30 +14,12 @@ from core.driveline.gearing import GearTable, gear_tables, road_speed_m_s, rpm_g
 from core.driveline.tires import Tire
 from core.engine.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
 from core.errors import CurveError
+from core.notices import Notice
 from core.shifts.best import ShiftReason, best_shifts
 
-__all__ = ["Notice", "ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan"]
+__all__ = ["ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan"]
 
 FloatArray = NDArray[np.float64]
-
-
-@dataclass(frozen=True)
-class Notice:
-    """Something the caller should know about a result.
-
-    Attributes
-    ----------
-    code : str
-        Stable identifier, e.g. ``"rev_limit_clipped"``.
-    message : str
-        One plain sentence.
-    parameter : str or None
-        The core argument concerned, if any.
-    """
-
-    code: str
-    message: str
-    parameter: str | None = None
 
 
 @dataclass(frozen=True)

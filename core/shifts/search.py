@@ -18,8 +18,9 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from core.runs.batch import batch_finish_times
+from core.runs.drive_model import DriveModel
 from core.runs.milestones import time_at_distance
-from core.runs.simulate import DriveModel, simulate_run
+from core.runs.simulate import simulate_run
 from core.shifts.pattern import pattern_search
 
 __all__ = ["SEARCH_WON", "OptimalShifts", "search_shift_rpm"]

@@ -14,15 +14,17 @@ the speed at which the next gear starts).
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
 
 from core.errors import SimulationError
+from core.runs.drive_model import DriveModel
 from core.runs.milestones import time_at_distance, time_at_speed
 from core.runs.performance import ShiftCriterion, optimal_shift_rpm, planned_shift_rpm
-from core.runs.simulate import DriveModel, simulate_run
+from core.runs.simulate import simulate_run
 from core.shifts.search import OptimalShifts
 
 __all__ = ["DEFAULT_TOLERANCE_S", "ShiftWindow", "ShiftWindows", "shift_windows"]
@@ -93,6 +95,46 @@ def _edge(rpm: FloatArray, loss: FloatArray, tol: float, k: int, step: int) -> f
         return float(rpm[j])
     share = (tol - loss[j]) / (loss[nxt] - loss[j])
     return float(rpm[j] + share * (rpm[nxt] - rpm[j]))
+
+
+def _gear_window(
+    model: DriveModel,
+    best: OptimalShifts,
+    k: int,
+    reached: bool,
+    points: int,
+    tolerance_s: float,
+    time_to_finish: Callable[[FloatArray], tuple[float, float]],
+) -> ShiftWindow:
+    """The window of the shift out of gear index ``k``: the time lost against the best
+    plan at each shift rpm on a grid from where the next gear lands on the curve's first
+    point up to the rev limit (all zero when the run does not get to that shift)."""
+    ratios = model.drivetrain.overall_ratios
+    limit = model.rev_limit_rpm
+    lower = min(
+        max(model.curve.rpm_min * ratios[k] / ratios[k + 1], model.curve.rpm_min + 1.0),
+        limit - 1.0,
+    )
+    opt = float(best.shift_rpm[k])
+    grid = np.unique(np.concatenate([np.linspace(lower, limit, points), [opt]]))
+    if not reached:
+        return ShiftWindow(k + 1, k + 2, False, grid, np.zeros(grid.size), opt, lower, limit)
+    loss = np.empty(grid.size)
+    for j, r in enumerate(grid):
+        trial = best.shift_rpm.copy()
+        trial[k] = r
+        loss[j] = time_to_finish(trial)[0] - best.time_s
+    i = int(np.argmin(loss))
+    return ShiftWindow(
+        k + 1,
+        k + 2,
+        True,
+        grid,
+        loss,
+        opt,
+        _edge(grid, loss, tolerance_s, i, -1),
+        _edge(grid, loss, tolerance_s, i, 1),
+    )
 
 
 def shift_windows(
@@ -181,39 +223,10 @@ def shift_windows(
     )
     _, finish_clock = time_to_finish(best.shift_rpm)
     evaluations += 2
-    ratios = model.drivetrain.overall_ratios
-    limit = model.rev_limit_rpm
     windows = []
-    for k in range(ratios.size - 1):
-        lower = min(
-            max(model.curve.rpm_min * ratios[k] / ratios[k + 1], model.curve.rpm_min + 1.0),
-            limit - 1.0,
-        )
-        opt = float(best.shift_rpm[k])
-        grid = np.unique(np.concatenate([np.linspace(lower, limit, points), [opt]]))
+    for k in range(model.drivetrain.overall_ratios.size - 1):
         reached = k < len(base.shifts) and base.shifts[k].time_s < finish_clock
-        if not reached:
-            windows.append(
-                ShiftWindow(k + 1, k + 2, False, grid, np.zeros(grid.size), opt, lower, limit)
-            )
-            continue
-        loss = np.empty(grid.size)
-        for j, r in enumerate(grid):
-            trial = best.shift_rpm.copy()
-            trial[k] = r
-            loss[j] = time_to_finish(trial)[0] - best.time_s
-        evaluations += grid.size
-        i = int(np.argmin(loss))
-        windows.append(
-            ShiftWindow(
-                k + 1,
-                k + 2,
-                True,
-                grid,
-                loss,
-                opt,
-                _edge(grid, loss, tolerance_s, i, -1),
-                _edge(grid, loss, tolerance_s, i, 1),
-            )
-        )
+        window = _gear_window(model, best, k, reached, points, tolerance_s, time_to_finish)
+        evaluations += window.rpm.size if reached else 0
+        windows.append(window)
     return ShiftWindows(best, tolerance_s, tuple(windows), evaluations)

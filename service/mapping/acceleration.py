@@ -8,16 +8,15 @@ from typing import Any
 import numpy as np
 
 from core import OptimalShifts, RunReport, TimedDistance, TimedSpeed, sample_trace
+from core.runs.drive_model import DriveModel
 from core.runs.report import QUARTER_MILE_M
-from core.runs.simulate import DriveModel
+from core.units import STANDARD_GRAVITY_M_S2 as G
 from service.mapping.shift_plan import notices_out, rounded
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
 from service.output.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["run_document", "run_summary"]
-
-G = 9.80665
 
 
 def _speed(v: float | None, units: UnitSystem) -> float | None:

@@ -30,6 +30,7 @@ from core import (
     run_report,
     shift_plan,
 )
+from core.runs.milestones import STANDARD_ROLLOUT_M
 from core.runs.report import QUARTER_MILE_M
 from service.mapping.acceleration import run_document
 from service.mapping.inputs import (
@@ -196,7 +197,7 @@ def compute_acceleration_run(body: AccelerationRunRequest) -> RunOutcome:
     drivetrain, tire = build_drivetrain(body.drivetrain), build_tire(body.drivetrain.tire, u)
     vehicle, launch = build_vehicle(body.vehicle, u), build_launch(body.launch, curve, u)
     speed = Quantity.SPEED
-    rollout = 0.3048 if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
+    rollout = STANDARD_ROLLOUT_M if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
     start = to_si(run.start_speed, speed, u)
     with core_fields(RUN_FIELDS, u):
         model = drive_model(

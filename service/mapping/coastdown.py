@@ -5,7 +5,8 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Any
 
-from core.car.coast_down import REFERENCE_PRESSURE_PA, REFERENCE_TEMPERATURE_K, CoastDownFit
+from core.car.coast_down import CoastDownFit
+from core.car.coast_down_reference import REFERENCE_PRESSURE_PA, REFERENCE_TEMPERATURE_K
 from service.mapping.shift_plan import notices_out
 from service.output.cautions import CAUTIONS
 from service.output.sheets import summary_sheet, wrap_text

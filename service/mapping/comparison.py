@@ -10,7 +10,7 @@ from collections.abc import Callable, Mapping, Sequence
 from typing import Any
 
 from core.choice.setups import SetupFigures
-from core.shifts.plan import Notice
+from core.notices import Notice
 from service.mapping.comparison_curves import (
     curve_notices,
     curves_summary,

@@ -11,7 +11,7 @@ import numpy as np
 
 from core.choice.setups import SetupFigures
 from core.engine.curves import RPM_TO_RAD_S
-from core.shifts.plan import Notice
+from core.notices import Notice
 from service.mapping.setups import NamedSetup
 from service.mapping.shift_plan import rounded
 from service.units import Quantity, UnitSystem, from_si, unit_labels

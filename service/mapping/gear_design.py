@@ -5,7 +5,7 @@ from __future__ import annotations
 from collections.abc import Mapping, Sequence
 from typing import Any
 
-from core.shifts.plan import Notice
+from core.notices import Notice
 from service.mapping.gear_design_inputs import GearSetStudy, SpeedometerStudy
 from service.mapping.shift_plan import notices_out, rounded, tire_document
 from service.output.cautions import CAUTIONS, SPEEDOMETER_CAUTIONS, SPEEDOMETER_SHORT_CAUTION

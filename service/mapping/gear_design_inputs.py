@@ -31,7 +31,8 @@ from core.driveline.speedometer import (
 )
 from core.driveline.tires import Tire
 from core.engine.curves import TorqueCurve
-from core.shifts.plan import Notice, resolve_rev_limit
+from core.notices import Notice
+from core.shifts.plan import resolve_rev_limit
 from service.http.problems import ProblemError
 from service.mapping.inputs import ENGINE_FIELDS, build_curve, build_tire, core_fields
 from service.mapping.setups import renamed_fields

@@ -9,6 +9,7 @@ from core.logs.check import PassAnalysis
 from core.logs.pass_data import PassLog
 from core.logs.shift import LoggedShift
 from core.logs.text import LogText
+from core.units import STANDARD_GRAVITY_M_S2 as G  # accelerations are reported in g
 from service.mapping.log_analysis_inputs import ModelShifts
 from service.mapping.shift_plan import notices_out
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
@@ -17,7 +18,6 @@ from service.units import Quantity, UnitSystem, from_si, unit_labels
 
 __all__ = ["VERDICT_RULE", "log_analysis_document", "log_summary"]
 
-G = 9.80665  # [m/s^2]; accelerations are reported in g, as in the acceleration-run trace
 VERDICT_RULE = (
     "Verdict: the crossover is where the next gear's logged acceleration, fitted against "
     "speed and extrapolated back, meets this gear's, extrapolated forward; the target is "

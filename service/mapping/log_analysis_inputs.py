@@ -6,7 +6,8 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 
 from core import Drivetrain, Tire, acceleration_shifts, drive_model, shift_plan
-from core.logs.pass_data import AccelerationUnit, LogDataError, PassLog, SpeedUnit, pass_log
+from core.errors import LogDataError
+from core.logs.pass_data import AccelerationUnit, PassLog, SpeedUnit, pass_log
 from core.logs.text import LogText, read_log_text
 from service.http.problems import ProblemError
 from service.mapping.inputs import DRIVETRAIN_FIELDS, ENGINE_FIELDS, build_curve, core_fields

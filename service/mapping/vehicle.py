@@ -18,6 +18,7 @@ from core import (
     Vehicle,
     air_state,
 )
+from core.units import ISO_SEA_LEVEL_TEMPERATURE_K
 from service.mapping.inputs import core_fields
 from service.schemas.vehicle import AirIn, LaunchIn, VehicleIn
 from service.units import Quantity, UnitSystem, to_si
@@ -65,7 +66,7 @@ def air_density(air: AirIn, units: UnitSystem) -> float:
     """Density of the request's air [kg/m^3]: ISO 2533 sea level unless stated."""
     with core_fields(VEHICLE_FIELDS, units):
         temperature_k = (
-            288.15
+            ISO_SEA_LEVEL_TEMPERATURE_K
             if air.temperature is None
             else to_si(air.temperature, Quantity.TEMPERATURE, units)
         )

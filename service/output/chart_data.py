@@ -13,7 +13,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from core import ConverterDrive, gear_tables, sample_trace
-from core.runs.milestones import time_at_distance
+from core.runs.milestones import STANDARD_ROLLOUT_M, time_at_distance
 from service.mapping.calculations import PlanOutcome, RunOutcome
 from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 
@@ -180,7 +180,7 @@ def _rollout_m(outcome: RunOutcome) -> float:
     if run.start_speed != 0.0:
         return 0.0
     if run.rollout is None:
-        return 0.3048
+        return STANDARD_ROLLOUT_M
     return to_si(run.rollout, Quantity.LENGTH, outcome.body.units)
 
 

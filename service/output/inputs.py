@@ -5,6 +5,7 @@ from __future__ import annotations
 from typing import Any
 
 from core import Drivetrain, TorqueCurve
+from core.units import ISO_SEA_LEVEL_TEMPERATURE_K, MPH_M_S
 from service.output.model import fmt, join_numbers
 from service.schemas.inputs import CurveIn
 from service.schemas.vehicle import LaunchIn, VehicleIn
@@ -123,7 +124,7 @@ def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
             else f"Cd {fmt(load.drag_coefficient, 3)} x frontal area "
             f"{fmt(load.frontal_area, 2)} {area}"
         )
-        per_speed = 0.000041 * from_si(0.44704, Quantity.SPEED, units)  # Gillespie: per mph
+        per_speed = 0.000041 * from_si(MPH_M_S, Quantity.SPEED, units)  # Gillespie: per mph
         rolling = (
             f"rolling 0.0041 + {per_speed:.3g} per {lab['speed']}"
             if load.rolling_coefficient is None
@@ -137,7 +138,8 @@ def vehicle_facts(vehicle: VehicleIn, units: UnitSystem) -> Facts:
         if air.pressure is not None
         else f"altitude {air.altitude or 0.0:g} {lab['distance']}"
     )
-    standard = from_si(288.15, Quantity.TEMPERATURE, units)  # ISO 2533 sea level, 15 degC
+    # ISO 2533 sea level, 15 degC
+    standard = from_si(ISO_SEA_LEVEL_TEMPERATURE_K, Quantity.TEMPERATURE, units)
     temperature = (
         f"{standard:g} {temp} (standard)"
         if air.temperature is None

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from core.car.coast_down import (
+from core.car.coast_down_reference import (
     REFERENCE_TEMPERATURE_K,
     ROLLING_TEMPERATURE_COEFFICIENT_PER_K,
 )

@@ -17,7 +17,6 @@ from service.units import UnitSystem
 
 __all__ = ["chassis_report", "dyno_correction_report", "log_check_report"]
 
-G = 9.80665  # standard gravity [m/s^2], ISO 80000-3
 _STANDARDS = {
     "sae_j1349_2004": "SAE J1349 (2004)",
     "sae_j1349_1990": "SAE J1349 (1990)",

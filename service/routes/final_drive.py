@@ -7,6 +7,7 @@ from starlette.responses import Response
 
 from core.choice.sweep import sweep_final_drives
 from core.choice.sweep_spec import SweepObjective
+from core.runs.milestones import STANDARD_ROLLOUT_M
 from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
@@ -47,7 +48,9 @@ async def create_final_drive_sweep(body: FinalDriveSweepRequest, _json: JsonBody
     vehicle = None if body.vehicle is None else build_vehicle(body.vehicle, u)
     launch = None if vehicle is None else build_launch(body.launch or LaunchIn(), curve, u)
     limits = sweep_constraints(body.constraints, u)
-    rollout = 0.3048 if body.rollout is None else to_si(body.rollout, Quantity.LENGTH, u)
+    rollout = (
+        STANDARD_ROLLOUT_M if body.rollout is None else to_si(body.rollout, Quantity.LENGTH, u)
+    )
     with core_fields({**SWEEP_FIELDS, "final_drive_ratio": "ratios"}):
         sweep = sweep_final_drives(
             curve,

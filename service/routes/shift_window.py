@@ -9,6 +9,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from core import drive_model
+from core.runs.milestones import STANDARD_ROLLOUT_M
 from core.runs.report import QUARTER_MILE_M
 from core.shifts.window import shift_windows
 from service.http.deps import JsonBody
@@ -57,7 +58,7 @@ async def create_shift_window(body: ShiftWindowRequest, _json: JsonBody) -> Resp
     curve = build_curve(body.engine.curve, u)
     drivetrain, tire = build_drivetrain(body.drivetrain), build_tire(body.drivetrain.tire, u)
     vehicle, launch = build_vehicle(body.vehicle, u), build_launch(body.launch, curve, u)
-    rollout = 0.3048 if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
+    rollout = STANDARD_ROLLOUT_M if run.rollout is None else to_si(run.rollout, Quantity.LENGTH, u)
     finish_v = None if run.finish_speed is None else to_si(run.finish_speed, Quantity.SPEED, u)
     finish_d = None
     if finish_v is None:

@@ -10,8 +10,9 @@ from starlette.responses import Response
 
 from core import Notice, air_state, drive_model
 from core.air.weather import Weather, predict_slip, weather_air
-from core.engine.correction import CorrectionStandard
+from core.engine.reference_air import CorrectionStandard
 from core.runs.report import QUARTER_MILE_M
+from core.units import ISO_SEA_LEVEL_TEMPERATURE_K
 from service.http.deps import JsonBody
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
@@ -52,7 +53,11 @@ def _weather(w: StripWeatherIn, u: UnitSystem) -> Weather:
 def _vehicle_density(v: VehicleIn, u: UnitSystem) -> float:
     """Density the vehicle's road load was built for, from its `air` block."""
     air = v.air
-    t = 288.15 if air.temperature is None else to_si(air.temperature, Quantity.TEMPERATURE, u)
+    t = (
+        ISO_SEA_LEVEL_TEMPERATURE_K
+        if air.temperature is None
+        else to_si(air.temperature, Quantity.TEMPERATURE, u)
+    )
     state = air_state(
         t,
         air.relative_humidity / 100.0,

@@ -111,7 +111,7 @@ class ApiModel(BaseModel):
         for name, info in cls.model_fields.items():
             value = data.get(name)
             has_bool = isinstance(value, bool) or (
-                isinstance(value, list) and any(isinstance(v, bool) for v in value)
+                isinstance(value, list) and bool in set(map(type, value))
             )
             if has_bool and _numeric(info.annotation):
                 fixed = dict(data) if fixed is None else fixed

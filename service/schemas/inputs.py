@@ -7,6 +7,7 @@ from typing import Annotated, Any, Literal, Self
 from pydantic import ConfigDict, Discriminator, Field, Tag, model_validator
 
 from core.engine.curves import MIN_RPM
+from core.units import MILE_M
 from service.schemas.common import ApiModel, schema_rules
 from service.schemas.quantities import CurvePower, CurveTorque, TireDiameter
 
@@ -18,7 +19,6 @@ MAX_GEARS = 12
 Rpm = Annotated[float, Field(ge=MIN_RPM, le=30000, description="Engine speed [rpm].")]
 Ratio = Annotated[float, Field(ge=0.01, le=50)]
 Efficiency = Annotated[float, Field(ge=0.4, le=1)]  # as the chassis-dyno efficiencies
-MILE_M = 1609.344
 MIN_TIRE_CIRCUMFERENCE_M = 0.1
 """Smallest rolling circumference accepted [m], whichever way the tire is given."""
 

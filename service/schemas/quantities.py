@@ -12,6 +12,7 @@ from typing import Annotated
 from core.air.altimeter import ALTIMETER_RANGE_PA, ELEVATION_RANGE_M
 from core.air.atmosphere import AIR_PRESSURE_RANGE_PA, AIR_TEMPERATURE_RANGE_K, ALTITUDE_RANGE_M
 from core.engine.correction import CELL_TEMPERATURE_RANGE_K, STATION_PRESSURE_RANGE_PA
+from core.units import STANDARD_GRAVITY_M_S2
 from service.bounds import SiLimits
 from service.units import Quantity
 
@@ -120,8 +121,8 @@ LogAcceleration = Annotated[
     float,
     SiLimits(
         None,
-        ge=-50 * 9.80665,
-        le=50 * 9.80665,
+        ge=-50 * STANDARD_GRAVITY_M_S2,
+        le=50 * STANDARD_GRAVITY_M_S2,
         unit_field="acceleration_unit",
         choices=("g", "m/s^2"),
         si_unit="m/s^2",

@@ -24,8 +24,9 @@ from core.car.vehicle import Launch, Vehicle
 from core.driveline.drivetrain import make_drivetrain
 from core.driveline.tires import Tire, tire_from_diameter
 from core.engine.curves import torque_curve_from_torque
+from core.runs.drive_model import DriveModel, drive_model
 from core.runs.performance import acceleration_shifts
-from core.runs.simulate import DriveModel, RunResult, drive_model, simulate_run
+from core.runs.simulate import RunResult, simulate_run
 
 __all__ = [
     "CURVE_RPM",

@@ -14,6 +14,7 @@ from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 import pint
 import pytest
 from pydantic import BaseModel
@@ -191,6 +192,36 @@ def test_each_limit_is_enforced_in_si_in_both_systems(
                 assert found == [], (value, unit)
 
 
+LIMITED_LISTS = [p for p in LIMITED if p.values[3] == "item"]
+
+
+@pytest.mark.parametrize("system", [pytest.param(s, id=s.value) for s in UnitSystem])
+@pytest.mark.parametrize(("model", "name", "limits", "shape"), LIMITED_LISTS)
+def test_a_limited_list_flags_exactly_the_items_the_one_value_check_flags(
+    model: type[BaseModel], name: str, limits: SiLimits, shape: str, system: UnitSystem
+) -> None:
+    # a list of numbers is checked as one array; every item at, a hair and a step either
+    # side of each limit (the neighbouring doubles of the limit in the caller's unit) must
+    # be flagged exactly when SiLimits.problem flags it on its own
+    unit = _caller_unit(limits, system)
+    values = [_convert(_inside(limits), limits.si_unit or si_label(limits.quantity), unit)]  # type: ignore[arg-type]
+    for limit_si in (limits.gt, limits.ge, limits.lt, limits.le):
+        if limit_si is not None:
+            at = limits._from_si(limit_si, unit, system)
+            step = max(abs(at) * 1e-6, 1e-6)
+            values += [at, np.nextafter(at, -np.inf), np.nextafter(at, np.inf)]
+            values += [at - step, at + step]
+    values = [float(v) for v in values]
+    given: dict[str, Any] = {name: values}
+    instance = model.model_construct(**given)
+    found = [e["field"] for e in bound_violations(instance, system)]
+    expected = [
+        f"{name}[{i}]" for i, v in enumerate(values) if limits.problem(v, instance, system)
+    ]
+    assert found == expected
+    assert 1 <= len(found) < len(values)
+
+
 def _us_run(api: Any, run: dict[str, Any], **vehicle: Any) -> Any:
     from tests.conftest import load_demo
 
@@ -293,6 +324,17 @@ def test_true_is_not_taken_for_a_number(api: Any, coupe_us: dict[str, Any]) -> N
     r = api.post("/v1/shift-plan", json=coupe_us)
     assert r.status_code == 422
     assert r.json()["field"] == "drivetrain.final_drive_ratio"
+
+
+def test_a_curve_torque_too_large_to_convert_is_refused_naming_its_point(
+    api: Any, coupe_us: dict[str, Any]
+) -> None:
+    # 1.7e308 lbf*ft is past the largest double once in N*m: the item is outside its limit
+    # (a 422 naming it), as a single number is, never an overflow error
+    coupe_us["engine"]["curve"]["torque"][3] = 1.7e308
+    r = api.post("/v1/shift-plan", json=coupe_us)
+    assert r.status_code == 422, r.text
+    assert r.json()["field"] == "engine.curve.torque[3]"
 
 
 def test_standard_air_is_labelled_in_the_callers_units(api: Any) -> None:

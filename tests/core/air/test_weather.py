@@ -10,7 +10,7 @@ import pytest
 from numpy.testing import assert_allclose
 
 from core.air.weather import Weather, density_altitude_m, predict_slip, weather_air
-from core.engine.correction import CorrectionStandard
+from core.engine.reference_air import CorrectionStandard
 from core.errors import CorrectionError
 from tests.core.shifts.test_window import QUARTER_MILE_M, invented_car
 

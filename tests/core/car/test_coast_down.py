@@ -6,12 +6,7 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from core.car.coast_down import (
-    CoastDownRun,
-    TravelDirection,
-    coast_down_speed,
-    fit_coast_down,
-)
+from core.car.coast_down import CoastDownRun, TravelDirection, coast_down_speed, fit_coast_down
 from core.errors import FitError
 
 MASS = 1500.0

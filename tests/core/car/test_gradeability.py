@@ -21,7 +21,7 @@ from core.car.vehicle import Launch, Vehicle
 from core.driveline.drivetrain import make_drivetrain
 from core.driveline.tires import tire_from_diameter
 from core.engine.curves import torque_curve_from_torque
-from core.runs.simulate import DriveModel, drive_model
+from core.runs.drive_model import DriveModel, drive_model
 
 G = 9.80665  # standard gravity [m/s^2], scipy.constants.g
 MASS_KG = 1500.0

@@ -178,5 +178,5 @@ def test_gradeability_with_nan_force_is_rejected() -> None:
 
 
 def test_gradeability_with_invalid_mass_is_rejected() -> None:
-    with pytest.raises(VehicleError, match="`mass_kg` must be > 0"):
+    with pytest.raises(VehicleError, match="`mass_kg` must be finite and > 0"):
         gradeability_percent([100.0], -5.0)

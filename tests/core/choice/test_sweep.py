@@ -32,10 +32,11 @@ from core.driveline.tires import tire_from_diameter
 from core.engine.curves import Interpolation, TorqueCurve, torque_curve_from_torque
 from core.errors import DrivetrainError, SimulationError
 from core.runs.batch import batch_runs
+from core.runs.drive_model import DriveModel, drive_model
 from core.runs.milestones import STANDARD_DISTANCES, STANDARD_SPEEDS
 from core.runs.performance import top_speed
 from core.runs.report import run_report
-from core.runs.simulate import DriveModel, drive_model, simulate_run
+from core.runs.simulate import simulate_run
 from core.shifts.plan import shift_plan
 
 INCH_M = 0.0254

@@ -26,9 +26,10 @@ from core.converter.tables import TorqueConverter
 from core.driveline.drivetrain import make_drivetrain
 from core.driveline.tires import tire_from_diameter
 from core.engine.curves import torque_curve_from_torque
+from core.runs.drive_model import DriveModel, drive_model
 from core.runs.milestones import time_at_distance
 from core.runs.performance import optimal_shift_rpm
-from core.runs.simulate import DriveModel, drive_model, simulate_run
+from core.runs.simulate import simulate_run
 from core.shifts.plan import shift_plan
 
 LBF_FT_IN_NM = 1.3558179483314004  # scipy.constants: lbf * foot

@@ -25,9 +25,9 @@ from core.dyno.file import (
     read_dyno_text,
 )
 from core.dyno.numbers import DecimalMark
-from core.dyno.parse import Delimiter
 from core.engine.curves import CurveSource, TorqueCurve
 from core.errors import DynoFileError, GearworkError
+from core.readers.delimited import Delimiter
 
 UREG: pint.UnitRegistry[float] = pint.UnitRegistry()
 

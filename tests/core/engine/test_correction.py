@@ -16,14 +16,12 @@ from core.air.altimeter import station_pressure_from_altimeter_pa
 from core.air.atmosphere import saturation_vapour_pressure_pa
 from core.engine.correction import (
     Correction,
-    CorrectionStandard,
-    PressureBasis,
     apply_correction,
     correction_factor,
     correction_factors,
-    reference_conditions,
 )
 from core.engine.curves import CurveSource, Interpolation, torque_curve_from_torque
+from core.engine.reference_air import CorrectionStandard, reference_conditions
 from core.errors import CorrectionError
 
 UREG: pint.UnitRegistry[float] = pint.UnitRegistry()
@@ -111,19 +109,6 @@ def test_factor_is_one_at_each_standards_own_reference_air(standard: CorrectionS
     assert_allclose(result.factor, 1.0, rtol=1e-14)
     assert result.within_validity
     assert result.notices == ()
-
-
-def test_reference_conditions_state_each_standards_air() -> None:
-    # REFERENCES.md: J1349 and ISO 1585 298 K / 99 kPa dry; DIN 70020 293 K / 1013 mbar total;
-    # J607 60 F / 29.92 inHg dry (pint's inch of mercury).
-    assert reference_conditions(J1349) == reference_conditions(J1349_2004)
-    assert reference_conditions(ISO).temperature_k == 298.0
-    assert reference_conditions(ISO).pressure_pa == 99_000.0
-    assert reference_conditions(DIN).pressure_basis is PressureBasis.TOTAL
-    j607 = reference_conditions(J607)
-    assert j607.pressure_basis is PressureBasis.DRY
-    assert_allclose(j607.temperature_k, _convert(60.0, "degF", "K"), rtol=1e-14)
-    assert_allclose(j607.pressure_pa, _convert(29.92, "inHg", "Pa"), rtol=1e-12)
 
 
 def test_j1349_2004_stays_within_a_tenth_of_a_percent_of_1990() -> None:

@@ -22,9 +22,10 @@ import pytest
 from numpy.testing import assert_allclose
 
 from core.driveline.drivetrain import make_drivetrain
+from core.errors import LogDataError
 from core.logs.check import GearSource, PassAnalysis, analyse_pass
 from core.logs.crossover import ShiftVerdict, VerdictBasis
-from core.logs.pass_data import AccelerationUnit, LogDataError, PassLog, SpeedUnit, pass_log
+from core.logs.pass_data import AccelerationUnit, PassLog, SpeedUnit, pass_log
 from tests.core.synthetic_pass import (
     FINAL_DRIVE,
     GEAR_RATIOS,

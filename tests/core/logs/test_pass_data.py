@@ -7,9 +7,9 @@ import pytest
 from numpy.testing import assert_allclose
 from scipy import constants
 
+from core.errors import LogDataError
 from core.logs.pass_data import (
     AccelerationUnit,
-    LogDataError,
     SpeedUnit,
     TimeUnit,
     pass_log,

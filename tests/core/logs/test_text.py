@@ -8,8 +8,8 @@ from __future__ import annotations
 import pytest
 from numpy.testing import assert_allclose
 
+from core.errors import LogDataError
 from core.logs.header import LogQuantity
-from core.logs.pass_data import LogDataError
 from core.logs.text import read_log_text
 
 

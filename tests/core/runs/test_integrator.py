@@ -33,16 +33,17 @@ from core.engine.curves import (
 )
 from core.errors import SimulationError
 from core.runs.batch import batch_finish_times
+from core.runs.batch_timing import TRAP_WINDOW_M
+from core.runs.drive_model import DriveModel, drive_model
 from core.runs.milestones import (
-    FOOT_M,
-    TRAP_WINDOW_M,
     time_at_distance,
     time_at_speed,
     timed_distance,
 )
 from core.runs.performance import optimal_shift_rpm
 from core.runs.report import run_report, sample_trace
-from core.runs.simulate import DriveModel, drive_model, simulate_run
+from core.runs.simulate import simulate_run
+from core.units import FOOT_M
 
 GEOMETRY = AxleGeometry(2.6, 0.5, 1.3)
 TIRE = tire_from_diameter(0.6)  # rolling radius 0.3 m

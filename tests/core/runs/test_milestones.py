@@ -19,19 +19,20 @@ from core.car.vehicle import Launch, RotatingInertia, Vehicle
 from core.driveline.drivetrain import make_drivetrain
 from core.driveline.tires import tire_from_diameter, tire_from_size
 from core.engine.curves import torque_curve_from_torque
+from core.runs.batch_timing import TRAP_WINDOW_M
+from core.runs.drive_model import drive_model
 from core.runs.milestones import (
-    FOOT_M,
     STANDARD_DISTANCES,
     STANDARD_SPEEDS,
-    TRAP_WINDOW_M,
     speed_at_distance,
     time_at_distance,
     time_at_speed,
     timed_distance,
     timed_speed,
 )
-from core.runs.simulate import RunResult, drive_model, simulate_run
+from core.runs.simulate import RunResult, simulate_run
 from core.shifts.plan import shift_plan
+from core.units import FOOT_M
 
 MPH = constants.mile / constants.hour  # 0.44704 m/s
 ROLLOUT_M = 0.29  # about 11.5 in (common practice: roughly a foot, tire-dependent)

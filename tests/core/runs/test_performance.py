@@ -19,6 +19,7 @@ from core.car.vehicle import Launch, RotatingInertia, Vehicle
 from core.driveline.drivetrain import make_drivetrain
 from core.driveline.tires import tire_from_diameter
 from core.engine.curves import TorqueCurve, torque_curve_from_torque
+from core.runs.drive_model import DriveModel, drive_model
 from core.runs.milestones import time_at_distance, time_at_speed
 from core.runs.performance import (
     acceleration_shift_points,
@@ -28,7 +29,7 @@ from core.runs.performance import (
     optimal_shift_rpm,
     top_speed,
 )
-from core.runs.simulate import DriveModel, drive_model, simulate_run
+from core.runs.simulate import simulate_run
 from core.shifts.best import ShiftReason
 from core.shifts.plan import shift_plan
 

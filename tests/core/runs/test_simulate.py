@@ -32,8 +32,9 @@ from core.engine.curves import (
     torque_curve_from_torque,
 )
 from core.errors import SimulationError
+from core.runs.drive_model import DriveModel, drive_model
 from core.runs.milestones import time_at_distance, time_at_speed
-from core.runs.simulate import DriveModel, drive_model, simulate_run
+from core.runs.simulate import simulate_run
 
 G = constants.g  # 9.80665 m/s^2
 LBF_FT_IN_NM = constants.pound_force * constants.foot  # 1.3558179483314 N*m

@@ -223,3 +223,51 @@ def test_flat_torque_reports_no_intersection_and_no_overtake() -> None:
         0,
         (),
     )
+
+
+def _road_loaded_efforts(
+    curve: TorqueCurve, ratios: np.ndarray, drag: float, rows: slice = slice(None)
+) -> tuple[Callable[..., tuple[np.ndarray, np.ndarray]], Callable[[int, float], float]]:
+    """Efforts of the gear changes ``rows`` (force less an invented road load) and the
+    force gap of one change at one speed."""
+    step = ratios[1:] / ratios[:-1]
+    first = rows.start or 0
+
+    def efforts(n: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        road = drag * (n / ratios[:-1][rows, None]) ** 2 / 1000.0
+        cur = ratios[:-1][rows, None] * curve.torque_at(n) - road
+        return cur, ratios[1:][rows, None] * curve.torque_at(n * step[rows, None]) - road
+
+    def diff(k: int, n: float) -> float:
+        k += first
+        return float(ratios[k] * curve.torque_scalar(n)) - float(
+            ratios[k + 1] * curve.torque_scalar(n * step[k])
+        )
+
+    return efforts, diff
+
+
+def test_gear_changes_found_together_equal_each_found_alone() -> None:
+    # every gear change is scanned, cut, banded and counted in one array: rows must not
+    # leak into each other, so each change found alone gives the same choice (invented
+    # curves; road load makes some gears stall and some ranges empty)
+    rng = np.random.default_rng(7)
+    for trial in range(40):
+        rpm = np.unique(np.round(rng.uniform(800.0, 9000.0, int(rng.integers(4, 40)))))
+        torque = np.abs(300.0 + np.cumsum(rng.normal(0.0, 25.0, rpm.size))) + 1.0
+        if trial % 5 == 0:  # constant power: coincident bands
+            curve = torque_curve_from_power(rpm, np.full(rpm.size, 150e3))
+        else:
+            curve = torque_curve_from_torque(rpm, torque)
+        ratios = np.sort(rng.uniform(0.6, 4.5, int(rng.integers(3, 9))))[::-1]
+        drag = 0.0 if trial % 2 else float(rng.uniform(0.0, 400.0))
+        low = curve.rpm_min / (ratios[1:] / ratios[:-1])
+        high = np.full(low.size, curve.rpm_max * rng.uniform(0.7, 1.0))
+        efforts, diff = _road_loaded_efforts(curve, ratios, drag)
+        together = best_shifts(efforts, diff if drag == 0.0 else None, low, high)
+        for k in range(low.size):
+            one, one_diff = _road_loaded_efforts(curve, ratios, drag, slice(k, k + 1))
+            (alone,) = best_shifts(
+                one, one_diff if drag == 0.0 else None, low[k : k + 1], high[k : k + 1]
+            )
+            assert together[k] == alone

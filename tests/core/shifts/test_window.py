@@ -12,7 +12,7 @@ from core.driveline.drivetrain import make_drivetrain
 from core.driveline.tires import tire_from_diameter
 from core.engine.curves import torque_curve_from_torque
 from core.errors import SimulationError
-from core.runs.simulate import DriveModel, drive_model
+from core.runs.drive_model import DriveModel, drive_model
 from core.shifts.window import ShiftWindows, shift_windows
 
 QUARTER_MILE_M = 402.336  # 1320 ft, exact by definition of the foot
