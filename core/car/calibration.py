@@ -60,8 +60,8 @@ from core.car.calibration_report import (
 from core.car.vehicle import RotatingInertia, Vehicle
 from core.errors import FitError, SimulationError
 from core.logs.pass_data import PassLog
-from core.runs.simulate import DriveModel
-from core.shifts.plan import Notice
+from core.notices import Notice
+from core.runs.drive_model import DriveModel
 
 __all__ = [
     "DRAG_AREA_BOUNDS_M2",

@@ -21,7 +21,8 @@ from core.car.calibration_pass import FitWindow, StartKind, launch_bounds
 from core.car.vehicle import Coupling, RotatingInertia
 from core.engine.curves import CurveSource
 from core.errors import FitError, SimulationError
-from core.runs.simulate import DriveModel, RunResult, simulate_run
+from core.runs.drive_model import DriveModel
+from core.runs.simulate import RunResult, simulate_run
 
 __all__ = [
     "DRAG_AREA_BOUNDS_M2",

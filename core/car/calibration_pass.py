@@ -27,8 +27,8 @@ from numpy.typing import NDArray
 from core.errors import FitError
 from core.logs.check import GearSegment, PassAnalysis, analyse_pass
 from core.logs.pass_data import PassLog
-from core.runs.simulate import DriveModel
-from core.shifts.plan import Notice
+from core.notices import Notice
+from core.runs.drive_model import DriveModel
 
 __all__ = ["STANDING_SPEED_M_S", "FitWindow", "StartKind", "fit_window", "launch_bounds"]
 

@@ -19,8 +19,8 @@ from numpy.typing import NDArray
 
 from core.car.calibration_pass import FitWindow
 from core.car.vehicle import Launch
+from core.notices import Notice
 from core.runs.simulate import RunResult
-from core.shifts.plan import Notice
 
 __all__ = [
     "MIN_FIT_DURATION_S",

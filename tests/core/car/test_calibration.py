@@ -25,7 +25,8 @@ from core.driveline.tires import Tire
 from core.engine.curves import CurveSource, torque_curve_from_torque
 from core.errors import FitError
 from core.logs.pass_data import PassLog, SpeedUnit, pass_log
-from core.runs.simulate import DriveModel, drive_model, simulate_run
+from core.runs.drive_model import DriveModel, drive_model
+from core.runs.simulate import simulate_run
 
 RHO = 1.2  # [kg/m^3]
 MASS = 1520.0
