@@ -16,6 +16,7 @@ from core.air import weather as _air_weather
 from core.air.altimeter import *  # noqa: F403
 from core.air.atmosphere import *  # noqa: F403
 from core.air.weather import *  # noqa: F403
+from core.car import calibration as _car_calibration
 from core.car import coast_down as _car_coast_down
 from core.car import coast_down_reference as _car_coast_down_reference
 from core.car import gradeability as _car_gradeability
@@ -23,6 +24,7 @@ from core.car import inertia as _car_inertia
 from core.car import road_load as _car_road_load
 from core.car import traction as _car_traction
 from core.car import vehicle as _car_vehicle
+from core.car.calibration import *  # noqa: F403
 from core.car.coast_down import *  # noqa: F403
 from core.car.coast_down_reference import *  # noqa: F403
 from core.car.gradeability import *  # noqa: F403
@@ -143,6 +145,7 @@ __all__ = []
 __all__ += _air_altimeter.__all__
 __all__ += _air_atmosphere.__all__
 __all__ += _air_weather.__all__
+__all__ += _car_calibration.__all__
 __all__ += _car_coast_down.__all__
 __all__ += _car_coast_down_reference.__all__
 __all__ += _car_gradeability.__all__

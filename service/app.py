@@ -22,6 +22,7 @@ from service.http.openapi import build_openapi
 from service.http.problems import install_problem_handlers
 from service.routes import (
     acceleration,
+    calibration,
     charts,
     chassis,
     coastdown,
@@ -68,6 +69,7 @@ OPENAPI_TAGS: list[dict[str, Any]] = [
     {"name": "road load", "description": "Road load fitted to coast-downs."},
     {"name": "shift window", "description": "What each shift rpm costs."},
     {"name": "weather", "description": "Density altitude; slips between weathers."},
+    {"name": "calibration", "description": "The car fitted to a logged pass."},
     {
         "name": "reports",
         "description": "Printable sheets (HTML, text, PDF) of every answer.",
@@ -91,6 +93,7 @@ ROUTERS: tuple[ModuleType, ...] = (
     coastdown,
     shift_window,
     weather,
+    calibration,
     demo,
 )
 

@@ -62,6 +62,13 @@ CASES: list[tuple[str, str, str]] = [
     ("demo_weather_metric", "/v1/weather-correction", "weather_metric.json"),
     ("demo_weather_metric", "/v1/reports/weather-correction?format=text", "weather_metric.txt"),
     ("demo_log_text_request_metric", "/v1/log-analysis", "log_analysis_metric.json"),
+    ("demo_calibration_metric", "/v1/calibration/pass", "calibration_pass_metric.json"),
+    ("demo_calibration_us", "/v1/calibration/pass", "calibration_pass_us.json"),
+    (
+        "demo_calibration_metric",
+        "/v1/reports/calibration/pass?format=text",
+        "calibration_pass_metric.txt",
+    ),
 ]
 
 

@@ -144,6 +144,12 @@ ENDPOINTS: tuple[Endpoint, ...] = (
         "weather-correction",
         report="/v1/reports/weather-correction",
     ),
+    _family(
+        "calibrate",
+        "/v1/calibration/pass",
+        "calibration-pass",
+        report="/v1/reports/calibration/pass",
+    ),
 )
 
 

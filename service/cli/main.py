@@ -39,6 +39,7 @@ _EXAMPLES = {
     "coast-down": "gearwork coast-down tests/data/demo_coastdown_metric.json",
     "shift-window": "gearwork shift-window tests/data/demo_shift_window_metric.json",
     "weather": "gearwork weather tests/data/demo_weather_metric.json",
+    "calibrate": "gearwork calibrate tests/data/demo_calibration_metric.json",
 }
 
 

@@ -20,16 +20,16 @@ from core import (
 )
 from core.units import ISO_SEA_LEVEL_TEMPERATURE_K
 from service.mapping.inputs import DRIVETRAIN_FIELDS, ENGINE_FIELDS, core_fields
-from service.schemas.vehicle import LaunchIn, VehicleIn
+from service.schemas.vehicle import AirIn, LaunchIn, VehicleIn
 from service.units import Quantity, UnitSystem, to_si
 
 __all__ = [
     "CAR_FIELDS",
     "LAUNCH_FIELDS",
     "VEHICLE_FIELDS",
+    "air_density",
     "build_launch",
     "build_vehicle",
-    "vehicle_air_density",
 ]
 
 VEHICLE_FIELDS: Mapping[str, str] = {
@@ -76,25 +76,24 @@ CAR_FIELDS: Mapping[str, str] = {
 }
 
 
-def vehicle_air_density(body: VehicleIn, units: UnitSystem) -> float:
-    """Density [kg/m^3] of the air the vehicle's road load is stated for (its `air` block:
-    15 degC unless given, the pressure or else the altitude)."""
-    air = body.air
-    temperature_k = (
-        ISO_SEA_LEVEL_TEMPERATURE_K
-        if air.temperature is None
-        else to_si(air.temperature, Quantity.TEMPERATURE, units)
-    )
-    state = air_state(
-        temperature_k,
-        air.relative_humidity / 100.0,
-        pressure_pa=None
-        if air.pressure is None
-        else to_si(air.pressure, Quantity.PRESSURE, units),
-        altitude_m=None
-        if air.pressure is not None
-        else to_si(air.altitude or 0.0, Quantity.DISTANCE, units),
-    )
+def air_density(air: AirIn, units: UnitSystem) -> float:
+    """Density of the request's air [kg/m^3]: ISO 2533 sea level unless stated."""
+    with core_fields(VEHICLE_FIELDS, units):
+        temperature_k = (
+            ISO_SEA_LEVEL_TEMPERATURE_K
+            if air.temperature is None
+            else to_si(air.temperature, Quantity.TEMPERATURE, units)
+        )
+        state = air_state(
+            temperature_k,
+            air.relative_humidity / 100.0,
+            pressure_pa=None
+            if air.pressure is None
+            else to_si(air.pressure, Quantity.PRESSURE, units),
+            altitude_m=None
+            if air.pressure is not None
+            else to_si(air.altitude or 0.0, Quantity.DISTANCE, units),
+        )
     return state.density_kg_m3
 
 
@@ -129,7 +128,7 @@ def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
     """The core vehicle of a request's vehicle."""
     with core_fields(VEHICLE_FIELDS, units):
         mass = to_si(body.mass, Quantity.MASS, units)
-        density = vehicle_air_density(body, units)  # checked even where coast-down sets drag
+        density = air_density(body.air, units)  # checked even where coast-down sets drag
         road = _road_load(body, mass, density, units)
         geometry = AxleGeometry.from_front_weight_share(
             to_si(body.wheelbase, Quantity.LENGTH, units),

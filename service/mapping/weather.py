@@ -15,7 +15,7 @@ from core.runs.report import QUARTER_MILE_M
 from service.mapping.acceleration import RUN_FIELDS
 from service.mapping.documents import notices_out
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
-from service.mapping.vehicle import build_launch, build_vehicle, vehicle_air_density
+from service.mapping.vehicle import air_density, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS
 from service.output.sheets import summary_sheet, wrap_text
 from service.schemas.weather import StripWeatherIn, WeatherCorrectionRequest
@@ -96,7 +96,7 @@ def _carried_slip(
         )
         return predict_slip(
             model,
-            vehicle_air_density(body.vehicle, u),
+            air_density(body.vehicle.air, u),
             taken,
             _weather(body.predict_for, u),
             standard,

@@ -31,6 +31,7 @@ from service.output.sheet_response import (
     FormatQuery,
     sheet_response,
 )
+from service.output.sheets_calibration import calibration_chart, calibration_report
 from service.output.sheets_choice import (
     comparison_report,
     spacing_report,
@@ -47,6 +48,7 @@ from service.output.sheets_track import (
 )
 from service.output.shift_plan_report import shift_plan_report
 from service.routes import (
+    calibration,
     chassis,
     coastdown,
     comparison,
@@ -58,6 +60,7 @@ from service.routes import (
     weather,
 )
 from service.schemas.acceleration import AccelerationRunRequest
+from service.schemas.calibration import CalibrationRequest
 from service.schemas.chassis import ChassisConversionRequest
 from service.schemas.coastdown import CoastDownRequest
 from service.schemas.comparison import ComparisonRequest
@@ -260,6 +263,16 @@ SHEETS = (
         weather.create_weather_correction,
         weather_report,
         weather_inputs,
+    ),
+    _answer_sheet(
+        "calibration/pass",
+        "pass_calibration",
+        "the car fitted to a logged pass",
+        CalibrationRequest,
+        calibration.create_pass_calibration,
+        calibration_report,
+        None,
+        lambda body, doc: calibration_chart(doc, body.units),
     ),
 )
 

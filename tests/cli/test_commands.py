@@ -44,6 +44,9 @@ FAMILIES = [
         "shift-window", "/v1/shift-window", "demo_shift_window_metric.json", id="shift-window"
     ),
     pytest.param("weather", "/v1/weather-correction", "demo_weather_metric.json", id="weather"),
+    pytest.param(
+        "calibrate", "/v1/calibration/pass", "demo_calibration_metric.json", id="calibrate"
+    ),
 ]
 
 

@@ -55,6 +55,7 @@ SHEETS: dict[str, tuple[str, int]] = {
     "road-load/coast-down": ("demo_coastdown_metric", 2),
     "shift-window": ("demo_shift_window_metric", 2),
     "weather-correction": ("demo_weather_metric", 1),
+    "calibration/pass": ("demo_calibration_metric", 2),
 }
 
 
