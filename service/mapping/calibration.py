@@ -10,6 +10,7 @@ import numpy as np
 from core import drive_model
 from core.car.calibration import FittedFigure, PassCalibration, calibrate_pass
 from core.car.calibration_fit import (
+    DRAG_AREA_WIDTH_FLOOR_M2,
     EFFICIENCY_WIDTH,
     MASS_FACTOR_WIDTH,
     PRIOR_SPEED_M_S,
@@ -38,10 +39,10 @@ from service.units import Quantity, UnitSystem, from_si, unit_labels
 __all__ = [
     "CALIBRATION_FIELDS",
     "CALIBRATION_METHOD",
-    "PRIORS_TEXT",
     "calibrate_request",
     "calibration_document",
     "calibration_summary",
+    "priors_text",
 ]
 
 CALIBRATION_FIELDS: Mapping[str, str] = {
@@ -68,12 +69,21 @@ CALIBRATION_METHOD = (
     "(standing start) or start speed (rolling) fitted too. Standard uncertainties: cov = "
     "s^2 (J^T J)^-1 at the solution, assuming independent speed errors."
 )
-PRIORS_TEXT = (
-    f"Each figure is pulled towards your value by a residual worth {PRIOR_SPEED_M_S:g} m/s "
-    f"of speed error per prior width: {MASS_FACTOR_WIDTH:g} for the mass factor, "
-    f"{EFFICIENCY_WIDTH:.2f} for "
-    "the efficiency, half your drag area (at least 0.1 m^2) for the drag area."
-)
+
+
+def priors_text(units: UnitSystem) -> str:
+    """How the priors pull, in the caller's units."""
+    lab = unit_labels(units)
+    speed = from_si(PRIOR_SPEED_M_S, Quantity.SPEED, units)
+    area = from_si(DRAG_AREA_WIDTH_FLOOR_M2, Quantity.AREA, units)
+    return (
+        f"Each figure is pulled towards your value by a residual worth {speed:.2g} "
+        f"{lab['speed']} of speed error per prior width: {MASS_FACTOR_WIDTH:g} for the mass "
+        f"factor, {EFFICIENCY_WIDTH:.2f} for the efficiency, half your drag area (at least "
+        f"{area:.2g} {lab['area']}) for the drag area."
+    )
+
+
 _NAMES = ("mass_factor", "efficiency", "drag_area")
 
 
@@ -224,7 +234,7 @@ def calibration_document(
         },
         "trace": _trace(fit, u),
         "method": CALIBRATION_METHOD,
-        "priors": PRIORS_TEXT,
+        "priors": priors_text(u),
         "warnings": notices_out(fit.notices, CALIBRATION_FIELDS),
         "cautions": list(CAUTIONS),
     }
@@ -320,6 +330,6 @@ def calibration_summary(
         *_block_lines(doc),
         "",
         *wrap_text("Method: " + CALIBRATION_METHOD),
-        *wrap_text("Priors: " + PRIORS_TEXT),
+        *wrap_text("Priors: " + doc["priors"]),
     ]
     return summary_sheet("GEARWORK PASS CALIBRATION", reference, body, fit.notices)

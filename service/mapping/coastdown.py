@@ -25,10 +25,10 @@ from service.units import Quantity, UnitSystem, from_si, to_si, unit_labels
 __all__ = [
     "COAST_DOWN_FIELDS",
     "COAST_DOWN_METHOD",
-    "REFERENCE_METHOD",
     "coast_down_document",
     "coast_down_summary",
     "fit_coast_downs",
+    "reference_method",
 ]
 
 COAST_DOWN_FIELDS: Mapping[str, str] = {
@@ -45,11 +45,26 @@ COAST_DOWN_METHOD = (
     "differentiated); runs in each direction are averaged, then the two directions (SAE "
     "J2263 in outline). Intervals: 95 %, from each run's Jacobian."
 )
-REFERENCE_METHOD = (
-    "SAE J1263 in outline: F2 x rho_ref/rho_test; F0 and F1 x (1 + 0.00864/K x (T - "
-    "20 degC)); reference 20 degC, 98.21 kPa, dry air (values from memory). No wind or "
-    "grade correction beyond the paired runs."
-)
+
+
+def reference_method(units: UnitSystem) -> str:
+    """The reference correction in words, its temperatures and pressure in the caller's units.
+
+    >>> reference_method(UnitSystem.US)[:80]
+    'SAE J1263 in outline: F2 x rho_ref/rho_test; F0 and F1 x (1 + 0.0048/degF x (T -'
+    """
+    temp = unit_labels(units)["temperature"]
+    t_ref = from_si(REFERENCE_TEMPERATURE_K, Quantity.TEMPERATURE, units)
+    one_kelvin = from_si(REFERENCE_TEMPERATURE_K + 1.0, Quantity.TEMPERATURE, units) - t_ref
+    per_degree = 0.00864 / one_kelvin
+    p_ref = from_si(REFERENCE_PRESSURE_PA, Quantity.PRESSURE, units)
+    per = "K" if units is UnitSystem.METRIC else temp
+    return (
+        f"SAE J1263 in outline: F2 x rho_ref/rho_test; F0 and F1 x (1 + {per_degree:.3g}/{per} "
+        f"x (T - {t_ref:.0f} {temp})); reference {t_ref:.0f} {temp}, {p_ref:.2f} "
+        f"{unit_labels(units)['pressure']}, dry air (values from memory). No wind or grade "
+        "correction beyond the paired runs."
+    )
 
 
 def fit_coast_downs(body: CoastDownRequest) -> CoastDownFit:
@@ -140,7 +155,7 @@ def coast_down_document(
             "air_density_ratio": round(ref.test_density_kg_m3 / ref.reference_density_kg_m3, 6),
             "rolling_factor": round(ref.rolling_factor, 6),
             "coast_down": at_ref,
-            "method": REFERENCE_METHOD,
+            "method": reference_method(units),
         },
         "drag_area": round(from_si(fit.drag_area_m2, Quantity.AREA, units), 4),
         "rolling_coefficient": round(fit.rolling_coefficient, 6),

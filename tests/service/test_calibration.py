@@ -282,3 +282,25 @@ def test_a_coast_down_road_load_keeps_f0_f1_and_gets_the_fitted_drag_as_f2(
     assert_allclose(rho, 1.19, rtol=0.02)
     run = {**caller_car(), **doc["calibrated"]}
     assert api.post("/v1/acceleration-run", json=run).status_code == 200
+
+
+@pytest.mark.parametrize(
+    ("demo", "speed", "area"),
+    [
+        ("demo_calibration_metric", "0.36 km/h", "0.1 m^2"),
+        ("demo_calibration_us", "0.22 mph", "1.1 ft^2"),
+    ],
+)
+def test_the_priors_are_worded_in_the_callers_units(
+    api: ApiClient, demo: str, speed: str, area: str
+) -> None:
+    # 0.1 m/s and 0.1 m^2 in the caller's units (scipy.constants: mile, hour, foot)
+    per_mph = sc.mile / sc.hour
+    assert f"{0.1 / per_mph:.2g} mph" == "0.22 mph"
+    assert f"{0.1 / sc.foot**2:.2g} ft^2" == "1.1 ft^2"
+    r = api.post(URL, json=load_demo(demo))
+    assert r.status_code == 200, r.text
+    priors = r.json()["priors"]
+    assert speed in priors and area in priors
+    assert "m/s" not in priors
+    assert "Priors: Each figure" in r.json()["summary"]

@@ -89,6 +89,11 @@ def test_us_units_give_the_same_fit_in_pounds_force_and_mph(
     assert_allclose(us["f0"]["value"] * lbf, metric["f0"]["value"], rtol=2e-3)
     assert_allclose(us["f2"]["value"] * lbf / 1.609344**2, metric["f2"]["value"], rtol=2e-3)
     assert "lbf" in us["summary"]
+    # SAE J1263 reference air, 20 degC and 98.21 kPa (memory), quoted in degF and inHg;
+    # 0.00864 per K is 0.0048 per degF (a kelvin is 1.8 degF)
+    method = us["reference_conditions"]["method"]
+    assert "0.0048/degF" in method and "68 degF" in method and "29.00 inHg" in method
+    assert "degC" not in method and "kPa" not in method
 
 
 def test_speed_and_time_of_unequal_length_is_a_problem(api: ApiClient) -> None:
