@@ -14,7 +14,7 @@ from core.car.coast_down_reference import (
     ROLLING_TEMPERATURE_COEFFICIENT_PER_K,
 )
 from service.output.model import Column, KeyFigure, Report, Section, Table, fmt
-from service.output.sheets_track import answer_report
+from service.output.sheets_track import track_report
 from service.schemas.coastdown import CoastDownRequest
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
@@ -180,7 +180,7 @@ def coast_down_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         Section("Reference conditions", _reference_facts(doc), notes=(_reference_note(units),)),
         Section("Method", notes=(doc["method"],)),
     )
-    return answer_report(
+    return track_report(
         "Coast-down road load",
         doc,
         units,

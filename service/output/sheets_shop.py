@@ -15,9 +15,15 @@ from service.output.inputs import units_line
 from service.output.model import Column, KeyFigure, Report, Section, Table, fmt, thin_rows
 from service.units import UnitSystem
 
-__all__ = ["chassis_report", "dyno_correction_report", "log_check_report"]
+__all__ = [
+    "STANDARDS",
+    "answer_report",
+    "chassis_report",
+    "dyno_correction_report",
+    "log_check_report",
+]
 
-_STANDARDS = {
+STANDARDS = {
     "sae_j1349_2004": "SAE J1349 (2004)",
     "sae_j1349_1990": "SAE J1349 (1990)",
     "sae_j607": "SAE J607",
@@ -28,7 +34,9 @@ _STANDARDS = {
 MEASUREMENT_CAUTIONS = (CAUTIONS[0], CAUTIONS[-1])
 
 
-def _report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> Report:
+def answer_report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> Report:
+    """A sheet printed from a JSON answer: its sections, then the answer's warnings; the
+    cautions given (by default all of them)."""
     notes = tuple(w["message"] for w in doc.get("warnings", ()))
     sections = parts.pop("sections") + ((Section("Warnings", notes=notes),) if notes else ())
     return Report(
@@ -110,7 +118,7 @@ def log_check_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         if v in verdicts
     )
     sections = (Section("Logged pass", facts, (segments, shifts)),)
-    return _report("Log check", doc, units, sections=sections, key_figures=figures)
+    return answer_report("Log check", doc, units, sections=sections, key_figures=figures)
 
 
 def dyno_correction_report(doc: dict[str, Any], units: UnitSystem) -> Report:
@@ -128,7 +136,7 @@ def dyno_correction_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         ),
         tuple(
             (
-                _STANDARDS.get(c["standard"], c["standard"]),
+                STANDARDS.get(c["standard"], c["standard"]),
                 fmt(c["factor"], 4),
                 fmt(c["dry_pressure"], 3),
                 fmt(c["vapour_pressure"], 3),
@@ -143,7 +151,7 @@ def dyno_correction_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         picked = thin_rows(len(curve["rpm"]))
         tables.append(
             Table(
-                f"Curve corrected by {_STANDARDS.get(doc['applied'], doc['applied'])}",
+                f"Curve corrected by {STANDARDS.get(doc['applied'], doc['applied'])}",
                 (Column("Engine", "rpm"), Column("Torque", lab["torque"])),
                 tuple((fmt(curve["rpm"][k]), fmt(curve["torque"][k], 1)) for k in picked),
             )
@@ -154,10 +162,10 @@ def dyno_correction_report(doc: dict[str, Any], units: UnitSystem) -> Report:
             "Correction factor",
             fmt(applied["factor"], 4),
             "",
-            _STANDARDS.get(doc["applied"], doc["applied"]),
+            STANDARDS.get(doc["applied"], doc["applied"]),
         ),
     )
-    return _report(
+    return answer_report(
         "Dyno correction",
         doc,
         units,
@@ -231,7 +239,7 @@ def chassis_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         ),
         KeyFigure("Engine torque", fmt(peaks["engine_torque"], 1), tq, "estimated"),
     )
-    return _report(
+    return answer_report(
         "Chassis dyno conversion",
         doc,
         units,

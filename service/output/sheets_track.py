@@ -15,15 +15,14 @@ from core import CurveSource
 from core.shifts.plan import resolve_rev_limit
 from service.mapping.documents import tire_document
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire
-from service.output.cautions import SHORT_CAUTION
 from service.output.inputs import (
     curve_facts,
     drivetrain_facts,
     launch_facts,
-    units_line,
     vehicle_facts,
 )
 from service.output.model import Column, KeyFigure, Report, Section, Table, fmt
+from service.output.sheets_shop import STANDARDS, answer_report
 from service.schemas.inputs import DrivetrainIn, EngineIn
 from service.schemas.shift_window import ShiftWindowRequest
 from service.schemas.vehicle import LaunchIn, VehicleIn
@@ -31,36 +30,19 @@ from service.schemas.weather import WeatherCorrectionRequest
 from service.units import UnitSystem, unit_labels
 
 __all__ = [
-    "answer_report",
     "shift_window_inputs",
     "shift_window_report",
+    "track_report",
     "weather_inputs",
     "weather_report",
 ]
 
 Facts = list[tuple[str, str]]
-STANDARDS = {
-    "sae_j1349_2004": "SAE J1349 (2004)",
-    "sae_j1349_1990": "SAE J1349 (1990)",
-    "sae_j607": "SAE J607",
-    "din_70020": "DIN 70020",
-    "iso_1585": "ISO 1585",
-}
 
 
-def answer_report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> Report:
+def track_report(kind: str, doc: dict[str, Any], units: UnitSystem, **parts: Any) -> Report:
     """A track sheet: the document's warnings last, its cautions in full."""
-    notes = tuple(w["message"] for w in doc.get("warnings", ()))
-    sections = parts.pop("sections") + ((Section("Warnings", notes=notes),) if notes else ())
-    return Report(
-        kind=kind,
-        reference=doc.get("reference"),
-        units=units_line(units),
-        short_caution=SHORT_CAUTION,
-        sections=sections,
-        cautions=tuple(doc["cautions"]),
-        **parts,
-    )
+    return answer_report(kind, doc, units, cautions=tuple(doc["cautions"]), **parts)
 
 
 def _car_facts(
@@ -165,7 +147,7 @@ def shift_window_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         Section("Time lost by shift rpm", tables=tuple(_loss_table(w) for w in reached)),
         Section("Method", notes=(doc["method"],)),
     )
-    return answer_report(
+    return track_report(
         "Shift window",
         doc,
         units,
@@ -295,7 +277,7 @@ def weather_report(doc: dict[str, Any], units: UnitSystem) -> Report:
         Section("Weather", (("Standard", STANDARDS[doc["standard"]]),), tuple(tables)),
         Section("Method", notes=(doc["method"], "Limits: " + doc["limits"])),
     )
-    return answer_report(
+    return track_report(
         "Weather correction", doc, units, sections=sections, key_figures=_weather_figures(doc)
     )
 
