@@ -19,7 +19,7 @@ from service.output.chart_page import ENVELOPE, INKS
 from service.output.pdf_ink import Ink
 from service.output.pdf_layout import text_width
 
-__all__ = ["Box", "draw_pdf_chart"]
+__all__ = ["Box", "draw_frame", "draw_pdf_chart"]
 
 # dash and gap [mm] per gear: solid, long dash, dots, dash, short dash, very long dash
 _DASHES = ((0.0, 0.0), (2.5, 0.8), (0.55, 0.65), (1.6, 0.7), (1.2, 0.65), (3.6, 0.8))
@@ -64,12 +64,27 @@ def _tick_text(value: float) -> str:
 
 
 def _frame(pdf: Ink, ax: _Axes, xlabel: str, ylabel: str) -> None:
-    box = ax.box
+    yticks = [(float(ax.y(v)), _tick_text(v), v > 0) for v in nice_ticks(ax.ymax / 1.0, 6)]
+    xticks = [(float(ax.x(v)), _tick_text(v)) for v in nice_ticks(ax.xmax, 7)]
+    draw_frame(pdf, ax.box, yticks, xticks, xlabel, ylabel)
+
+
+def draw_frame(
+    pdf: Ink,
+    box: Box,
+    yticks: list[tuple[float, str, bool]],
+    xticks: list[tuple[float, str]],
+    xlabel: str,
+    ylabel: str,
+) -> None:
+    """Axes, ticks, grid lines and labels of a chart in ``box``.
+
+    ``yticks`` holds (page y, text, draw a grid line) and ``xticks`` (page x, text).
+    """
     pdf.set_font("helvetica", "", 7)
     pdf.set_dash_pattern()
-    for value in nice_ticks(ax.ymax / 1.0, 6):
-        y = float(ax.y(value))
-        if value > 0:
+    for y, text, grid in yticks:
+        if grid:
             pdf.set_draw_color(185, 185, 185)
             pdf.set_line_width(0.15)
             pdf.set_dash_pattern(0.3, 0.7)
@@ -78,13 +93,10 @@ def _frame(pdf: Ink, ax: _Axes, xlabel: str, ylabel: str) -> None:
         pdf.set_draw_color(58, 58, 58)
         pdf.set_line_width(0.25)
         pdf.line(box.x - 1.2, y, box.x, y)
-        text = _tick_text(value)
         pdf.set_text_color(58, 58, 58)
         pdf.text(box.x - 1.8 - text_width(pdf, text), y + 0.9, text)
-    for value in nice_ticks(ax.xmax, 7):
-        x = float(ax.x(value))
+    for x, text in xticks:
         pdf.line(x, box.y + box.h, x, box.y + box.h + 1.2)
-        text = _tick_text(value)
         pdf.text(x - text_width(pdf, text) / 2, box.y + box.h + 4.0, text)
     pdf.set_draw_color(58, 58, 58)
     pdf.set_line_width(0.28)

@@ -7,7 +7,7 @@ import numpy as np
 
 from service.output.chart_data_track import PlotChart, PlotSeries, clip_polyline
 from service.output.chart_page import INKS
-from service.output.pdf_chart import Box
+from service.output.pdf_chart import Box, draw_frame
 from service.output.pdf_ink import Ink
 from service.output.pdf_layout import latin, text_width
 from service.output.svg_chart_track import free_spot, range_ticks, tick_text
@@ -42,39 +42,10 @@ class _Axes:
 
 
 def _frame(pdf: Ink, ax: _Axes, chart: PlotChart) -> None:
-    box = ax.box
-    pdf.set_font("helvetica", "", 7)
-    pdf.set_dash_pattern()
-    yt = range_ticks(ax.y0, ax.y1, 6)
-    for value in yt:
-        y = ax.y(value)
-        if value > ax.y0:
-            pdf.set_draw_color(185, 185, 185)
-            pdf.set_line_width(0.15)
-            pdf.set_dash_pattern(0.3, 0.7)
-            pdf.line(box.x, y, box.x + box.w, y)
-            pdf.set_dash_pattern()
-        pdf.set_draw_color(58, 58, 58)
-        pdf.set_line_width(0.25)
-        pdf.line(box.x - 1.2, y, box.x, y)
-        text = tick_text(value, yt)
-        pdf.set_text_color(58, 58, 58)
-        pdf.text(box.x - 1.8 - text_width(pdf, text), y + 0.9, text)
-    xt = range_ticks(ax.x0, ax.x1, 7)
-    for value in xt:
-        x = ax.x(value)
-        pdf.line(x, box.y + box.h, x, box.y + box.h + 1.2)
-        text = tick_text(value, xt)
-        pdf.text(x - text_width(pdf, text) / 2, box.y + box.h + 4.0, text)
-    pdf.set_line_width(0.28)
-    pdf.line(box.x, box.y, box.x, box.y + box.h)
-    pdf.line(box.x, box.y + box.h, box.x + box.w, box.y + box.h)
-    pdf.set_font("helvetica", "", 7.5)
-    pdf.set_text_color(30, 30, 30)
-    xlabel, ylabel = latin(chart.x_label), latin(chart.y_label)
-    pdf.text(box.x + box.w / 2 - text_width(pdf, xlabel) / 2, box.y + box.h + 8.0, xlabel)
-    with pdf.rotation(90, box.x - 11.0, box.y + box.h / 2):
-        pdf.text(box.x - 11.0 - text_width(pdf, ylabel) / 2, box.y + box.h / 2, ylabel)
+    yt, xt = range_ticks(ax.y0, ax.y1, 6), range_ticks(ax.x0, ax.x1, 7)
+    yticks = [(ax.y(v), tick_text(v, yt), v > ax.y0) for v in yt]
+    xticks = [(ax.x(v), tick_text(v, xt)) for v in xt]
+    draw_frame(pdf, ax.box, yticks, xticks, latin(chart.x_label), latin(chart.y_label))
 
 
 def _bands(pdf: Ink, ax: _Axes, chart: PlotChart) -> None:
