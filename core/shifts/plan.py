@@ -15,7 +15,7 @@ from core.driveline.tires import Tire
 from core.engine.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
 from core.errors import CurveError
 from core.notices import Notice
-from core.shifts.best import ShiftReason, best_shifts
+from core.shifts.best import ShiftChoice, ShiftReason, best_shifts
 
 __all__ = ["ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan"]
 
@@ -142,6 +142,57 @@ def resolve_rev_limit(
     return float(rev_limit_rpm), ()
 
 
+_EFFICIENCY_NOT_APPLIED = Notice(
+    "efficiency_not_applied",
+    "The curve is from a chassis dyno and already net of driveline losses; the given "
+    "efficiency is not applied again.",
+    "efficiency",
+)
+
+
+def _choice_notices(
+    gear: int, choice: ShiftChoice, rpm_after: float, rpm_min: float
+) -> list[Notice]:
+    """What a reader should know about the change from ``gear`` to the next one."""
+    notes = []
+    if rpm_after < rpm_min:
+        notes.append(
+            Notice(
+                "gear_gap",
+                f"Shifting {gear}-{gear + 1} at the rev limit drops the engine to "
+                f"{rpm_after:.0f} rpm, below the curve's first point ({rpm_min:g} rpm); "
+                "the force after the shift is taken at that point.",
+                "gear_ratios",
+            )
+        )
+    if choice.coincident_rpm is not None:
+        lo, hi = choice.coincident_rpm
+        notes.append(
+            Notice(
+                "coincident_force",
+                f"Gears {gear} and {gear + 1} give the same tractive force from {lo:.0f} "
+                f"to {hi:.0f} rpm; any shift in that band is equally quick.",
+            )
+        )
+    if choice.crossings > 1:
+        notes.append(
+            Notice(
+                "multiple_crossovers",
+                f"Gears {gear} and {gear + 1} cross {choice.crossings} times; the shift "
+                "that crosses their shared speed range quickest was chosen.",
+            )
+        )
+    if choice.below_range:
+        notes.append(
+            Notice(
+                "next_gear_stronger",
+                f"Gear {gear + 1} pulls harder than gear {gear} wherever both are on the "
+                "curve; shift as soon as the next gear reaches the curve's first point.",
+            )
+        )
+    return notes
+
+
 def shift_plan(
     curve: TorqueCurve,
     drivetrain: Drivetrain,
@@ -192,14 +243,7 @@ def shift_plan(
     chassis = curve.source is CurveSource.CHASSIS
     efficiency = np.ones(drivetrain.gear_count) if chassis else drivetrain.efficiency
     if chassis and np.any(drivetrain.efficiency != 1.0):
-        notes.append(
-            Notice(
-                "efficiency_not_applied",
-                "The curve is from a chassis dyno and already net of driveline losses; the "
-                "given efficiency is not applied again.",
-                "efficiency",
-            )
-        )
+        notes.append(_EFFICIENCY_NOT_APPLIED)
     rows = rpm_grid(curve, limit, rpm_step)
     tables = gear_tables(curve, drivetrain, tire, rows, efficiency, converter)
     ratios = drivetrain.overall_ratios
@@ -253,41 +297,7 @@ def shift_plan(
         turbine = choice.shift_rpm
         n_s = engine_rpm(i, turbine)
         after = engine_rpm(i + 1, turbine * q)
-        if after < curve.rpm_min:
-            notes.append(
-                Notice(
-                    "gear_gap",
-                    f"Shifting {i + 1}-{i + 2} at the rev limit drops the engine to "
-                    f"{after:.0f} rpm, below the curve's first point ({curve.rpm_min:g} rpm); "
-                    "the force after the shift is taken at that point.",
-                    "gear_ratios",
-                )
-            )
-        if choice.coincident_rpm is not None:
-            lo, hi = choice.coincident_rpm
-            notes.append(
-                Notice(
-                    "coincident_force",
-                    f"Gears {i + 1} and {i + 2} give the same tractive force from {lo:.0f} "
-                    f"to {hi:.0f} rpm; any shift in that band is equally quick.",
-                )
-            )
-        if choice.crossings > 1:
-            notes.append(
-                Notice(
-                    "multiple_crossovers",
-                    f"Gears {i + 1} and {i + 2} cross {choice.crossings} times; the shift "
-                    "that crosses their shared speed range quickest was chosen.",
-                )
-            )
-        if choice.below_range:
-            notes.append(
-                Notice(
-                    "next_gear_stronger",
-                    f"Gear {i + 2} pulls harder than gear {i + 1} wherever both are on the "
-                    "curve; shift as soon as the next gear reaches the curve's first point.",
-                )
-            )
+        notes.extend(_choice_notices(i + 1, choice, after, curve.rpm_min))
         shifts.append(
             ShiftPoint(
                 from_gear=i + 1,
