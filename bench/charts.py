@@ -18,6 +18,7 @@ import subprocess
 import sys
 import time
 from pathlib import Path
+from typing import Any
 
 from bench.common import ratio_line, side_by_side, time_call
 
@@ -74,7 +75,7 @@ def _png_settings(chart: object) -> None:
         print(f"      {label:<32}", timing, f"  {len(save()) / 1024:.0f} KiB")
 
 
-def main() -> None:
+def _import_costs() -> None:
     mpl = "matplotlib.figure, matplotlib.backends.backend_agg, matplotlib.backends.backend_pdf"
     print(f"import matplotlib (figure, Agg, PDF), fresh process: {_import_cost(mpl):.3f} s")
     print(
@@ -82,32 +83,19 @@ def main() -> None:
         f"{_import_cost('service.output.png_chart'):.3f} s"
     )
 
-    from bench.matplotlib_chart import matplotlib_png
-    from service.mapping.acceleration import compute_acceleration_run
-    from service.mapping.shift_plan import compute_shift_plan
-    from service.output.chart_data import run_chart, tractive_force_chart
-    from service.output.html import render_html
-    from service.output.pdf import render_pdf
-    from service.output.png_chart import ChartFormat, render_chart, svg_markup
-    from service.output.run_report import acceleration_run_report
-    from service.output.shift_plan_report import shift_plan_report
-    from service.output.text import render_text
-    from service.schemas.acceleration import AccelerationRunRequest
-    from service.schemas.shift_plan import ShiftPlanRequest
 
-    coupe = ShiftPlanRequest.model_validate(json.loads((DATA / "demo_coupe_us.json").read_text()))
-    sedan = AccelerationRunRequest.model_validate(
-        json.loads((DATA / "demo_sedan_run_metric.json").read_text())
-    )
-    plan = compute_shift_plan(coupe)
-    force = tractive_force_chart(plan)
+def _render_costs(plan: Any, force: Any, speed: Any) -> None:
+    """First renders in the process, then each format of both charts, in isolation."""
+    from bench.matplotlib_chart import matplotlib_png
+    from service.output.chart_data import tractive_force_chart
+    from service.output.png_chart import ChartFormat, render_chart
+
     t0 = time.perf_counter()
     render_chart(force, ChartFormat.SVG)
     print(f"first SVG render in the process: {time.perf_counter() - t0:.3f} s")
     t0 = time.perf_counter()
     render_chart(force, ChartFormat.PNG)
     print(f"first PNG render in the process (fonts loaded): {time.perf_counter() - t0:.3f} s")
-
     print(f"tractive-force chart, demo coupe (6 gears), {RUNS} renders each")
     print("   chart data    ", time_call(lambda: tractive_force_chart(plan), runs=RUNS, warmup=3))
     for fmt in ChartFormat:
@@ -118,20 +106,24 @@ def main() -> None:
     size = len(matplotlib_png(force))
     print("   PNG matplotlib", timing, f"  {size / 1024:.0f} KiB  (before)")
     _png_settings(force)
-
-    run = compute_acceleration_run(sedan)
-    speed = run_chart(run)
     print("run chart, demo sedan")
     for fmt in ChartFormat:
         timing = time_call(functools.partial(render_chart, speed, fmt), runs=RUNS, warmup=3)
         print(f"   {fmt.name:<14}", timing)
 
+
+def _served_ratios(coupe: Any) -> None:
+    """Each request computed: the plan's JSON against the chart of the same plan."""
+    from bench.matplotlib_chart import matplotlib_png
     from service.http.responses import FastJSONResponse
+    from service.mapping.shift_plan import compute_shift_plan
+    from service.output.chart_data import tractive_force_chart
+    from service.output.png_chart import ChartFormat, render_chart
     from service.output.shift_plan_summary import shift_plan_summary
 
     numbers = itertools.count()
 
-    def fresh() -> ShiftPlanRequest:
+    def fresh() -> Any:
         return coupe.model_copy(update={"reference": f"BENCH-{next(numbers)}"})
 
     def plan_request() -> object:
@@ -144,50 +136,38 @@ def main() -> None:
     def chart_request(fmt: ChartFormat) -> bytes:
         return render_chart(tractive_force_chart(compute_shift_plan(fresh())), fmt)
 
+    def old_png() -> bytes:
+        return matplotlib_png(tractive_force_chart(compute_shift_plan(fresh())))
+
     # SVG and PNG each against the plan in a run of their own: matplotlib's heap churn
     # would otherwise land in the SVG's timings as collections of the garbage it left
-    got = side_by_side(
-        {"plan": plan_request, "svg": functools.partial(chart_request, ChartFormat.SVG)},
-        rounds=7,
-        calls=5,
-    )
-    png = side_by_side(
-        {"plan": plan_request, "png": functools.partial(chart_request, ChartFormat.PNG)},
-        rounds=7,
-        calls=5,
-    )
-    old = side_by_side(
-        {
-            "plan": plan_request,
-            "mpl": lambda: matplotlib_png(tractive_force_chart(compute_shift_plan(fresh()))),
-        },
-        rounds=3,
-        calls=3,
-    )
+    svg = functools.partial(chart_request, ChartFormat.SVG)
+    png = functools.partial(chart_request, ChartFormat.PNG)
+    got = side_by_side({"plan": plan_request, "svg": svg}, rounds=7, calls=5)
+    new = side_by_side({"plan": plan_request, "png": png}, rounds=7, calls=5)
+    old = side_by_side({"plan": plan_request, "mpl": old_png}, rounds=3, calls=3)
     print("demo coupe, each request computed: plan JSON vs the chart of the same plan")
     print("   shift plan (compute, summary, JSON)", got["plan"])
     print("   SVG chart (compute, draw)          ", got["svg"])
-    print("   shift plan, in the PNG's run       ", png["plan"])
-    print("   PNG chart (compute, draw)          ", png["png"])
+    print("   shift plan, in the PNG's run       ", new["plan"])
+    print("   PNG chart (compute, draw)          ", new["png"])
     print("   shift plan, in matplotlib's run    ", old["plan"])
     print("   matplotlib PNG (compute, draw)     ", old["mpl"])
-    print(
-        ratio_line(
-            "SVG chart / computed shift plan", got["svg"].median / got["plan"].median, "<= 4"
-        )
-    )
-    print(
-        ratio_line(
-            "PNG chart / computed shift plan", png["png"].median / png["plan"].median, "<= 4"
-        )
-    )
-    print(
-        ratio_line(
-            "matplotlib PNG (before) / computed shift plan",
-            old["mpl"].median / old["plan"].median,
-            "for comparison",
-        )
-    )
+    for label, runs, key, target in (
+        ("SVG chart / computed shift plan", got, "svg", "<= 4"),
+        ("PNG chart / computed shift plan", new, "png", "<= 4"),
+        ("matplotlib PNG (before) / computed shift plan", old, "mpl", "for comparison"),
+    ):
+        print(ratio_line(label, runs[key].median / runs["plan"].median, target))
+
+
+def _report_costs(plan: Any, run: Any, force: Any, speed: Any) -> None:
+    from service.output.html import render_html
+    from service.output.pdf import render_pdf
+    from service.output.png_chart import svg_markup
+    from service.output.run_report import acceleration_run_report
+    from service.output.shift_plan_report import shift_plan_report
+    from service.output.text import render_text
 
     report = shift_plan_report(plan)
     run_report = acceleration_run_report(run)
@@ -202,6 +182,27 @@ def main() -> None:
     print(
         "   pdf           ", time_call(lambda: render_pdf(run_report, speed), runs=RUNS, warmup=3)
     )
+
+
+def main() -> None:
+    _import_costs()
+    from service.mapping.acceleration import compute_acceleration_run
+    from service.mapping.shift_plan import compute_shift_plan
+    from service.output.chart_data import run_chart, tractive_force_chart
+    from service.schemas.acceleration import AccelerationRunRequest
+    from service.schemas.shift_plan import ShiftPlanRequest
+
+    coupe = ShiftPlanRequest.model_validate(json.loads((DATA / "demo_coupe_us.json").read_text()))
+    sedan = AccelerationRunRequest.model_validate(
+        json.loads((DATA / "demo_sedan_run_metric.json").read_text())
+    )
+    plan = compute_shift_plan(coupe)
+    force = tractive_force_chart(plan)
+    run = compute_acceleration_run(sedan)
+    speed = run_chart(run)
+    _render_costs(plan, force, speed)
+    _served_ratios(coupe)
+    _report_costs(plan, run, force, speed)
 
 
 if __name__ == "__main__":
