@@ -126,7 +126,9 @@ class TraceProbes:
     """Many traces read block by block as they are made.
 
     For each probe distance it keeps the last point at or before it and the first point
-    past it; for each probe speed, the first point at or above it and the point before.
+    past it, once a block passes it (until then the trace's last point stands for the
+    former); for each probe speed, the first point at or above it and the point before.
+    A block that passes no new probe costs little more than noting its last point.
     Every block handed to :meth:`add` must be non-decreasing in distance and in speed along
     its rows, and follow the row's earlier blocks in time (the gear segments, shift points
     and final hold of :func:`core.runs.batch.batch_runs` are). Every trace starts at the
@@ -173,50 +175,65 @@ class TraceProbes:
         """
         cols = (t, v, x)
         new = ~self.started[rows]
-        self.first_t[rows[new]] = t[new, 0]
-        self.first_v[rows[new]] = v[new, 0]
+        if new.any():
+            self.first_t[rows[new]] = t[new, 0]
+            self.first_v[rows[new]] = v[new, 0]
         if self.d.size:
-            before = x[:, -1:] <= self.d[None, :]  # the whole block at or before d
-            past = x[:, :1] > self.d[None, :]  # the whole block past d
-            ri, ji = np.nonzero(before)
-            for le, col in zip(self.le, cols, strict=True):
-                le[rows[ri], ji] = col[ri, -1]
-            ri, ji = np.nonzero(~before & ~past)  # d falls inside the block
-            k = _count_at_most(x, ri, self.d[ji]) - 1
-            for le, col in zip(self.le, cols, strict=True):
-                le[rows[ri], ji] = col[ri, k]
-            for gt, col in zip(self.gt, cols[:2], strict=True):
-                gt[rows[ri], ji] = col[ri, k + 1]
-            self.gt_found[rows[ri], ji] = True
-            ri, ji = np.nonzero(past & ~self.gt_found[rows])
-            for gt, col in zip(self.gt, cols[:2], strict=True):
-                gt[rows[ri], ji] = col[ri, 0]
-            self.gt_found[rows[ri], ji] = True
+            self._add_distances(rows, cols)
         if self.s.size:
-            ri, ji = np.nonzero(~self.found[rows] & (v[:, -1:] >= self.s[None, :]))
-            k = _count_below(v, ri, self.s[ji])
-            c = rows[ri]
-            inside = k > 0
-            lasts = [self.last[0], self.last[1], self.last_a]
-            for hit, pre, col, last in zip(self.hit, self.pre, (t, v, a), lasts, strict=True):
-                hit[c, ji] = col[ri, k]
-                pre[c, ji] = np.where(inside, col[ri, np.maximum(k - 1, 0)], last[c])
-            # the trace's very first point already reaches the speed
-            first = ~inside & ~self.started[c]
-            self.pre[0][c[first], ji[first]] = np.nan
-            self.found[c, ji] = True
+            self._add_speeds(rows, (t, v, a))
         for last, col in zip(self.last, cols, strict=True):
             last[rows] = col[:, -1]
         self.last_a[rows] = a[:, -1]
         self.started[rows] = True
+
+    def _add_distances(self, rows: IntArray, cols: tuple[FloatArray, ...]) -> None:
+        """The distances that ``cols`` (t, v, x) passes, not passed before: the point at
+        or before each (the trace's previous point where the block starts past it) and
+        the first point past it. A distance never passed is read at the trace's last
+        point (:meth:`passing`)."""
+        x = cols[2]
+        ri, ji = np.nonzero((x[:, -1:] > self.d[None, :]) & ~self.gt_found[rows])
+        if ri.size == 0:
+            return
+        k = _count_at_most(x, ri, self.d[ji])  # the first point past the distance
+        c = rows[ri]
+        inside = k > 0
+        for le, col, last in zip(self.le, cols, self.last, strict=True):
+            le[c, ji] = np.where(inside, col[ri, k - 1], last[c])
+        for gt, col in zip(self.gt, cols[:2], strict=True):
+            gt[c, ji] = col[ri, k]
+        self.gt_found[c, ji] = True
+
+    def _add_speeds(self, rows: IntArray, cols: tuple[FloatArray, ...]) -> None:
+        """The speeds that ``cols`` (t, v, a) first reaches: the first point at or above
+        each and the point before (the trace's previous point where the block starts at
+        or above it)."""
+        v = cols[1]
+        ri, ji = np.nonzero(~self.found[rows] & (v[:, -1:] >= self.s[None, :]))
+        if ri.size == 0:
+            return
+        k = _count_below(v, ri, self.s[ji])
+        c = rows[ri]
+        inside = k > 0
+        lasts = (self.last[0], self.last[1], self.last_a)
+        for hit, pre, col, last in zip(self.hit, self.pre, cols, lasts, strict=True):
+            hit[c, ji] = col[ri, k]
+            pre[c, ji] = np.where(inside, col[ri, k - 1], last[c])
+        # the trace's very first point already reaches the speed
+        first = ~inside & ~self.started[c]
+        self.pre[0][c[first], ji[first]] = np.nan
+        self.found[c, ji] = True
 
     def passing(self) -> tuple[FloatArray, FloatArray]:
         """Time [s] and speed [m/s] of each trace passing each probe distance, shape (c, d),
         NaN where a trace does not get there, with the acceleration constant between the
         points either side."""
         d = self.d[None, :]
-        t0, v0, x0 = self.le
         found = self.gt_found
+        t0, v0, x0 = (
+            np.where(found, le, last[:, None]) for le, last in zip(self.le, self.last, strict=True)
+        )
         t1 = np.where(found, self.gt[0], t0)
         v1 = np.where(found, self.gt[1], v0)
         dx = d - x0
