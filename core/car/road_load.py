@@ -269,16 +269,22 @@ class RoadLoad:
         """
         speed = np.asarray(speed_m_s, dtype=np.float64)
         flat = speed.reshape(-1)
-        bad = np.flatnonzero(~np.isfinite(flat) | (flat < 0.0))
-        if bad.size:
-            index = int(bad[0])
+        # two reductions see any NaN, infinity or negative speed; only then is it located
+        if flat.size and not (float(flat.min()) >= 0.0 and float(flat.max()) < math.inf):
+            index = int(np.flatnonzero(~np.isfinite(flat) | (flat < 0.0))[0])
             where = "speed_m_s" if speed.ndim == 0 else f"speed_m_s[{index}]"
             raise VehicleError(
                 f"`{where}` must be finite and >= 0, got {flat[index]:g}", parameter=where
             )
         normal = 1.0 if self.form is RoadLoadForm.COAST_DOWN else math.cos(self.grade_angle_rad)
-        level = normal * (self.constant_n + self.linear_n_s_m * speed)
-        result: FloatArray = level + self.quadratic_n_s2_m2 * speed**2 + self.grade_force_n
+        # normal*(C0 + C1*v) + F2*v**2 + grade, term by term in place
+        result: FloatArray = self.linear_n_s_m * speed
+        result += self.constant_n
+        result *= normal
+        drag = speed * speed
+        drag *= self.quadratic_n_s2_m2
+        result += drag
+        result += self.grade_force_n
         return result
 
 

@@ -17,7 +17,6 @@ to rounding, so the results agree with the one-car model to rounding.
 
 from __future__ import annotations
 
-import dataclasses
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
@@ -104,7 +103,8 @@ def candidate_masses(
     Both the rotating equivalent ``[(Ie + It)*Ntf**2 + Id*Nf**2 + Iw] / r**2`` (Gillespie,
     ch. 2) and the mass-factor estimate ``m*(1.04 + 0.0025*Ntf**2)`` are ``A + B*f**2`` in
     the final drive ratio f, ``Ntf`` and ``Nf`` both being proportional to it; the vehicle's
-    own methods at f = 1 and f = 2 fix A and B.
+    own methods at f = 1 and f = 2 fix A and B, once per car
+    (:attr:`core.runs.drive_model.DriveModel.final_drive_masses`).
 
     Parameters
     ----------
@@ -118,16 +118,11 @@ def candidate_masses(
     tuple of ndarray, shapes (c, g) and (c,)
         Effective mass in each gear and decoupled mass [kg].
     """
-    vehicle, tire, base = model.vehicle, model.tire, model.drivetrain
-    one = dataclasses.replace(base, final_drive_ratio=1.0)
-    two = dataclasses.replace(base, final_drive_ratio=2.0)
-    e1, e2 = vehicle.effective_mass_kg(one, tire), vehicle.effective_mass_kg(two, tire)
-    d1, d2 = vehicle.decoupled_mass_kg(one, tire), vehicle.decoupled_mass_kg(two, tire)
+    terms = model.final_drive_masses
     f2 = final_drive_ratio**2
-    b_eff = (e2 - e1) / 3.0
-    b_dec = (d2 - d1) / 3.0
-    effective = (e1 - b_eff)[None, :] + b_eff[None, :] * f2[:, None]
-    decoupled = (d1 - b_dec) + b_dec * f2
+    b_eff, b_dec = terms.effective_per_f2_kg, terms.decoupled_per_f2_kg
+    effective = terms.effective_base_kg[None, :] + b_eff[None, :] * f2[:, None]
+    decoupled = terms.decoupled_base_kg + b_dec * f2
     return effective, decoupled
 
 

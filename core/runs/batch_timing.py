@@ -159,6 +159,7 @@ class TraceProbes:
         self.started = np.zeros(count, dtype=np.bool_)
         self.first_t = np.full(count, np.nan)  # time and speed of each trace's first point
         self.first_v = np.full(count, np.nan)
+        self._passing: tuple[FloatArray, FloatArray] | None = None  # read once all is added
 
     def add(
         self, rows: IntArray, t: FloatArray, v: FloatArray, x: FloatArray, a: FloatArray
@@ -174,6 +175,7 @@ class TraceProbes:
             points.
         """
         cols = (t, v, x)
+        self._passing = None
         new = ~self.started[rows]
         if new.any():
             self.first_t[rows[new]] = t[new, 0]
@@ -229,6 +231,11 @@ class TraceProbes:
         """Time [s] and speed [m/s] of each trace passing each probe distance, shape (c, d),
         NaN where a trace does not get there, with the acceleration constant between the
         points either side."""
+        if self._passing is None:
+            self._passing = self._passed()
+        return self._passing
+
+    def _passed(self) -> tuple[FloatArray, FloatArray]:
         d = self.d[None, :]
         found = self.gt_found
         t0, v0, x0 = (
@@ -331,6 +338,8 @@ def timed_speeds(
     -------
     tuple of BatchTimedSpeed
     """
+    if not speeds:
+        return ()
     rolled = probes.passing()[0][:, 0]
     reaching = probes.reaching()
     out = []

@@ -10,6 +10,7 @@ run reads it by linear interpolation.
 
 from __future__ import annotations
 
+import dataclasses
 import functools
 from dataclasses import dataclass
 
@@ -25,9 +26,27 @@ from core.errors import SimulationError
 from core.notices import Notice
 from core.shifts.plan import resolve_rev_limit
 
-__all__ = ["DriveModel", "drive_model"]
+__all__ = ["DriveModel", "FinalDriveMasses", "drive_model"]
 
 FloatArray = NDArray[np.float64]
+
+
+@dataclass(frozen=True)
+class FinalDriveMasses:
+    """The car's masses as ``A + B*f**2`` in its final drive ratio f [kg].
+
+    Attributes
+    ----------
+    effective_base_kg, effective_per_f2_kg : ndarray, shape (g,)
+        ``A`` and ``B`` of the effective mass in each gear [kg].
+    decoupled_base_kg, decoupled_per_f2_kg : float
+        ``A`` and ``B`` of the mass while the engine slips [kg].
+    """
+
+    effective_base_kg: FloatArray
+    effective_per_f2_kg: FloatArray
+    decoupled_base_kg: float
+    decoupled_per_f2_kg: float
 
 
 @dataclass(frozen=True)
@@ -151,6 +170,20 @@ class DriveModel:
             engine[slipping] = np.interp(turbine[slipping], nodes, engine_map)
             torque[slipping] = np.interp(turbine[slipping], nodes, torque_map)
         return torque, engine
+
+    @functools.cached_property
+    def final_drive_masses(self) -> FinalDriveMasses:
+        """The effective and decoupled masses as ``A + B*f**2`` in the final drive ratio f,
+        fixed once per car by the vehicle's own methods at f = 1 and f = 2 (see
+        :func:`core.choice.batch_drive.candidate_masses`)."""
+        vehicle, tire, base = self.vehicle, self.tire, self.drivetrain
+        one = dataclasses.replace(base, final_drive_ratio=1.0)
+        two = dataclasses.replace(base, final_drive_ratio=2.0)
+        e1, e2 = vehicle.effective_mass_kg(one, tire), vehicle.effective_mass_kg(two, tire)
+        d1, d2 = vehicle.decoupled_mass_kg(one, tire), vehicle.decoupled_mass_kg(two, tire)
+        b_eff = (e2 - e1) / 3.0
+        b_dec = (d2 - d1) / 3.0
+        return FinalDriveMasses(e1 - b_eff, b_eff, d1 - b_dec, b_dec)
 
     @functools.cached_property
     def converter_map(self) -> ConverterMap:
