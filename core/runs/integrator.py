@@ -9,8 +9,10 @@ acceleration is a function of speed alone (quasi-static engine, converter and ro
 (Gillespie ch. 2), so time and distance are integrals over speed, ``t = int dv / a`` and
 ``x = int v dv / a``. Every still-running row gets a grid of ``POINTS_PER_GEAR`` speeds in
 the gear, one row of a (c, n) array whose net acceleration comes from one call of
-:func:`core.choice.batch_drive.batch_acceleration`; the integrals follow by the trapezoid rule
-along the rows. The loop runs once per gear, not once per row or per time step.
+:func:`core.choice.batch_drive.batch_drive` (:class:`core.runs.row_drive.RowCar`); the
+integrals follow by the trapezoid rule along the rows. The loop runs once per gear, not
+once per row or per time step; many rows go through it ``ROW_BLOCK`` at a time, so that a
+block's arrays stay in the processor's cache and the cost grows linearly with the rows.
 
 Where a gear cannot reach its shift speed the acceleration falls to zero at a speed
 ``v*`` (the drag-limited speed of that gear, found by a bracketed root finder on the force
@@ -29,16 +31,21 @@ block: :func:`core.runs.simulate.simulate_run` keeps them as a trace (a batch of
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.optimize.elementwise import find_root
 
 from core.car.vehicle import Coupling
-from core.choice.batch_drive import batch_drive
 from core.engine.curves import RPM_TO_RAD_S
+from core.runs.row_drive import (
+    POINTS_PER_GEAR,
+    TAIL_END,
+    TAIL_POINTS,
+    RowCar,
+    approach,
+    drag_limited_speed,
+)
 from core.runs.run_blocks import GearBlock, RunEnds, RunSink, RunStart, ShiftBlock
 
 if TYPE_CHECKING:
@@ -47,6 +54,7 @@ if TYPE_CHECKING:
 __all__ = [
     "MAX_SPEED_M_S",
     "POINTS_PER_GEAR",
+    "ROW_BLOCK",
     "TAIL_END",
     "TAIL_POINTS",
     "integrate_runs",
@@ -55,10 +63,8 @@ __all__ = [
 FloatArray = NDArray[np.float64]
 BoolArray = NDArray[np.bool_]
 IntArray = NDArray[np.int64]
-POINTS_PER_GEAR = 121
-TAIL_POINTS = 24
-TAIL_END = 1e-6  # [-] relative distance to the drag-limited speed where the approach ends
 MAX_SPEED_M_S = 150.0  # [m/s], no run integrates beyond this
+ROW_BLOCK = 128  # rows integrated together: a block's (rows, points) arrays stay in cache
 _EVEN = np.linspace(0.0, 1.0, POINTS_PER_GEAR)
 
 
@@ -102,83 +108,6 @@ def _cumulative(y: FloatArray, step: FloatArray) -> FloatArray:
     return out
 
 
-@dataclass(frozen=True)
-class _Car:
-    """The rows' gearing and masses."""
-
-    model: DriveModel
-    ratio: FloatArray  # (c, g) overall ratios
-    mass: FloatArray  # (c, g) effective mass
-    decoupled: FloatArray  # (c,) mass while the engine slips
-
-    def net(
-        self, g: int, rows: IntArray, speed: FloatArray, launching: bool
-    ) -> tuple[FloatArray, FloatArray, BoolArray]:
-        """Net acceleration [m/s^2], engine speed [rpm] and traction-limited flags."""
-        model = self.model
-        ratio = self.ratio[rows, g]
-        force, engine, n_in = batch_drive(model, g, speed, ratio, launching)
-        limited = force > model.traction_limit_n
-        usable = np.minimum(force, model.traction_limit_n)
-        resist = model.vehicle.road_load.force_n(np.maximum(speed, 0.0))
-        # the engine's inertia rides with the car only while it follows the wheels
-        slipping = engine > n_in * (1.0 + 1e-6) + 1e-6
-        mass = np.where(slipping, self.decoupled[rows][:, None], self.mass[rows, g][:, None])
-        return (usable - resist) / mass, np.array(engine, dtype=np.float64), limited
-
-
-def _drag_limited_speed(
-    car: _Car, g: int, rows: IntArray, lo: FloatArray, hi: FloatArray, launching: bool
-) -> FloatArray:
-    """Speed [m/s] in (lo, hi] where the net acceleration falls to zero, per row."""
-
-    def accel(v: FloatArray, idx: FloatArray) -> FloatArray:
-        flat = v.ravel()
-        a = car.net(g, rows[idx.ravel().astype(np.int64)], flat[:, None], launching)[0]
-        return a[:, 0].reshape(v.shape)
-
-    found = find_root(
-        accel,
-        (lo, hi),
-        args=(np.arange(rows.size, dtype=np.float64),),
-        tolerances={"xatol": 1e-9, "xrtol": 1e-12},
-    )
-    return np.clip(np.asarray(found.x, dtype=np.float64), lo, hi)
-
-
-def _approach(
-    car: _Car,
-    g: int,
-    rows: IntArray,
-    v_in: FloatArray,
-    v_star: FloatArray,
-    start: tuple[FloatArray, FloatArray],
-    launching: bool,
-) -> GearBlock:
-    """Integrate rows from ``v_in`` towards their drag-limited speed ``v_star``, with
-    ``POINTS_PER_GEAR + TAIL_POINTS`` points each."""
-    span = v_star - v_in
-    body = np.linspace(0.0, 1.0, POINTS_PER_GEAR, endpoint=False)
-    last = 1.0 / POINTS_PER_GEAR  # relative distance to v* after the evenly spaced part
-    tail = np.geomspace(last, TAIL_END * v_star / span, TAIL_POINTS + 1)
-    rel = np.concatenate([np.broadcast_to(1.0 - body, (rows.size, body.size)), tail.T[:, 1:]], 1)
-    d = rel * span[:, None]  # distance to v*, falling
-    v = v_star[:, None] - d
-    a, rpm, limited = car.net(g, rows, v, launching)
-    q_inv = d / np.where(a > 0.0, a, np.nan)
-    # product integration: int dv/(q d) with 1/q linear on each interval
-    mean_inv = 0.5 * (q_inv[:, 1:] + q_inv[:, :-1])
-    dt = mean_inv * np.log(d[:, :-1] / d[:, 1:])
-    dx = v_star[:, None] * dt - mean_inv * (v[:, 1:] - v[:, :-1])
-    t = np.zeros(v.shape)
-    x = np.zeros(v.shape)
-    np.cumsum(dt, axis=1, out=t[:, 1:])
-    np.cumsum(dx, axis=1, out=x[:, 1:])
-    t += start[0][:, None]
-    x += start[1][:, None]
-    return GearBlock(rows, g, t, v, x, rpm, a, limited)
-
-
 class _State:
     """Per-row progress of the runs."""
 
@@ -202,7 +131,7 @@ class _State:
 
 
 def _gear(
-    car: _Car,
+    car: RowCar,
     g: int,
     rows: IntArray,
     shift_speed: FloatArray,
@@ -263,8 +192,8 @@ def _gear(
         d_rows = rows[drag]
         km = np.maximum(kw - 1, 0)[drag]
         lo, hi = _pick(grid[drag], km), _pick(grid[drag], kw[drag])
-        v_star = _drag_limited_speed(car, g, d_rows, lo, hi, launching)
-        block = _approach(
+        v_star = drag_limited_speed(car, g, d_rows, lo, hi, launching)
+        block = approach(
             car, g, d_rows, v_in[drag], v_star, (state.t[d_rows], state.x[d_rows]), launching
         )
         sink.gear(block)
@@ -275,7 +204,7 @@ def _gear(
     return go
 
 
-def _shift(car: _Car, g: int, rows: IntArray, state: _State) -> ShiftBlock:
+def _shift(car: RowCar, g: int, rows: IntArray, state: _State) -> ShiftBlock:
     """The shift out of gear index ``g``: no drive for shift_time_s."""
     model = car.model
     ts = model.launch.shift_time_s
@@ -292,7 +221,7 @@ def _shift(car: _Car, g: int, rows: IntArray, state: _State) -> ShiftBlock:
     return block
 
 
-def _hold(car: _Car, state: _State, start: RunStart, sink: RunSink) -> None:
+def _hold(car: RowCar, state: _State, start: RunStart, sink: RunSink) -> None:
     """Carry settled rows on at their last speed over the rest of the distance asked."""
     hold = np.flatnonzero(np.isfinite(state.settled) & (state.x < start.cover_distance_m))
     if hold.size == 0:
@@ -307,6 +236,49 @@ def _hold(car: _Car, state: _State, start: RunStart, sink: RunSink) -> None:
     for g in np.unique(state.gear[hold]).tolist():
         k = state.gear[hold] == g
         sink.gear(GearBlock(hold[k], g, t[k], vv[k], x[k], rpm[k], zero[k], zero[k] > 0.0))
+
+
+def _drive_rows(
+    car: RowCar,
+    block: IntArray,
+    shifts: tuple[FloatArray, FloatArray],
+    state: _State,
+    start: RunStart,
+    sink: RunSink,
+) -> None:
+    """Drive the rows ``block`` gear by gear, shifting at their shift rpm and speed
+    ``shifts`` (each shape (c, g), the rev limit in top gear), until each has covered
+    what ``start`` asks, settled or stalled."""
+    limits, shift_speed = shifts
+    gears = car.ratio.shape[1]
+    r = car.model.tire.rolling_radius_m
+    target_v = min(max(start.cover_speed_m_s, 0.0), MAX_SPEED_M_S)
+    for g in range(start.gear, gears):
+        idx = block[state.active[block]]
+        if idx.size == 0:
+            break
+        top = g == gears - 1
+        launching = start.speed_m_s == 0.0 and g == start.gear
+        v_top = shift_speed[idx, g]
+        state.n[idx] = state.v[idx] * car.ratio[idx, g] / (r * RPM_TO_RAD_S)
+        skip = np.zeros(idx.size, dtype=np.bool_)
+        if not top:  # a gear entered above its own shift speed is left at once
+            skip = state.v[idx] >= np.minimum(v_top, MAX_SPEED_M_S)
+            state.left_at_once[idx[skip], g] = True
+        driven = np.flatnonzero(~skip)
+        if driven.size:
+            rows = idx[driven]
+            shift = None if top else limits[rows, g]
+            go = _gear(car, g, rows, v_top[driven], shift, state, sink, launching)
+            rows = rows[go]
+            held = rows if top else rows[state.v[rows] >= MAX_SPEED_M_S * (1 - 1e-12)]
+            state.settle(held, state.v[held], "rev_limit")
+            state.active[held] = False
+            finished = (state.x[rows] >= start.cover_distance_m) & (state.v[rows] >= target_v)
+            state.active[rows[finished]] = False
+        shifting = idx[state.active[idx]]
+        if shifting.size and not top:
+            sink.shift(_shift(car, g, shifting, state))
 
 
 def integrate_runs(
@@ -340,40 +312,15 @@ def integrate_runs(
     RunEnds
     """
     count, gears = overall_ratio.shape
-    car = _Car(model, overall_ratio, masses[0], masses[1])
-    r = model.tire.rolling_radius_m
+    car = RowCar(model, overall_ratio, masses[0], masses[1])
     limits = np.empty((count, gears))
     limits[:, :-1] = shift_rpm
     limits[:, -1] = model.rev_limit_rpm
-    shift_speed = limits * RPM_TO_RAD_S * r / overall_ratio
+    shift_speed = limits * RPM_TO_RAD_S * model.tire.rolling_radius_m / overall_ratio
     state = _State(count, gears, start)
-    target_v = min(max(start.cover_speed_m_s, 0.0), MAX_SPEED_M_S)
-    for g in range(start.gear, gears):
-        idx = np.flatnonzero(state.active)
-        if idx.size == 0:
-            break
-        top = g == gears - 1
-        launching = start.speed_m_s == 0.0 and g == start.gear
-        v_top = shift_speed[idx, g]
-        state.n[idx] = state.v[idx] * overall_ratio[idx, g] / (r * RPM_TO_RAD_S)
-        skip = np.zeros(idx.size, dtype=np.bool_)
-        if not top:  # a gear entered above its own shift speed is left at once
-            skip = state.v[idx] >= np.minimum(v_top, MAX_SPEED_M_S)
-            state.left_at_once[idx[skip], g] = True
-        driven = np.flatnonzero(~skip)
-        if driven.size:
-            rows = idx[driven]
-            shift = None if top else limits[rows, g]
-            go = _gear(car, g, rows, v_top[driven], shift, state, sink, launching)
-            rows = rows[go]
-            held = rows if top else rows[state.v[rows] >= MAX_SPEED_M_S * (1 - 1e-12)]
-            state.settle(held, state.v[held], "rev_limit")
-            state.active[held] = False
-            finished = (state.x[rows] >= start.cover_distance_m) & (state.v[rows] >= target_v)
-            state.active[rows[finished]] = False
-        shifting = idx[state.active[idx]]
-        if shifting.size and not top:
-            sink.shift(_shift(car, g, shifting, state))
+    for first in range(0, count, ROW_BLOCK):
+        block = np.arange(first, min(first + ROW_BLOCK, count))
+        _drive_rows(car, block, (limits, shift_speed), state, start, sink)
     _hold(car, state, start, sink)
     return RunEnds(
         moved=state.moved,
