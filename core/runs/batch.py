@@ -106,14 +106,21 @@ class BatchRuns:
 
 
 class _Probing:
-    """A :class:`core.runs.integrator.RunSink` feeding the strip timers, recording shifts."""
+    """A :class:`core.runs.integrator.RunSink` feeding the strip timers, recording shifts.
+
+    Many runs are read block by block as they come; a batch of one keeps its blocks and
+    reads them whole at :meth:`finish`, as a single run's trace is read (the same points,
+    the same probes, fewer calls)."""
 
     def __init__(self, probes: TraceProbes, count: int, gears: int) -> None:
         self.probes = probes
         self.events = {k: np.full((count, gears - 1), np.nan) for k in ("t", "v", "n0", "n1")}
+        self.kept: list[tuple[FloatArray, FloatArray, FloatArray, FloatArray]] | None = None
+        if count == 1:
+            self.kept = []
 
     def gear(self, block: GearBlock) -> None:
-        self.probes.add(
+        self._read(
             block.rows, block.time_s, block.speed_m_s, block.distance_m, block.acceleration_m_s2
         )
 
@@ -124,13 +131,29 @@ class _Probing:
         self.events["n0"][rows, g] = block.rpm_before
         self.events["n1"][rows, g] = np.maximum(block.rpm_after, 0.0)
         if np.any(block.end_time_s > block.time_s):
-            self.probes.add(
+            self._read(
                 rows,
                 block.end_time_s[:, None],
                 block.end_speed_m_s[:, None],
                 block.end_distance_m[:, None],
                 -block.deceleration_m_s2[:, None],
             )
+
+    def _read(
+        self, rows: IntArray, t: FloatArray, v: FloatArray, x: FloatArray, a: FloatArray
+    ) -> None:
+        if self.kept is None:
+            self.probes.add(rows, t, v, x, a)
+        else:
+            self.kept.append((t[0], v[0], x[0], a[0]))
+
+    def finish(self) -> TraceProbes:
+        """The probes, every block read."""
+        if self.kept:
+            t, v, x, a = (np.concatenate(c) for c in zip(*self.kept, strict=True))
+            self.probes.add_trace(t, v, x, a)
+            self.kept = []
+        return self.probes
 
 
 def batch_runs(
@@ -198,6 +221,7 @@ def batch_runs(
         RunStart(0.0, 0, cover_distance_m, target_v),
         sink,
     )
+    sink.finish()
     moved = ends.moved
     return BatchRuns(
         final_drive_ratio=f,
@@ -268,6 +292,7 @@ def batch_finish_times(
         )
         sink = _Probing(probes, idx.size, gears)
         ends = integrate_runs(model, ratio, masses, shifts[idx], start, sink)
+        sink.finish()
         if finish_distance_m is not None:
             timed = timed_distances(probes, distances, ends.moved)[0].elapsed_s
         else:

@@ -36,6 +36,7 @@ FloatArray = NDArray[np.float64]
 BoolArray = NDArray[np.bool_]
 IntArray = NDArray[np.int64]
 _DIRECT_COUNT = 100_000  # pairs times points up to which counting beats bisection
+_ONE_ROW = np.zeros(1, dtype=np.int64)
 
 TRAP_WINDOW_M = 66.0 * FOOT_M
 """A trap speed is the average over the last 66 ft before the line [m] (common practice)."""
@@ -148,17 +149,18 @@ class TraceProbes:
         nd, ns = distances.size, speeds.size
         self.d, self.s = distances, speeds
         # every trace starts at rest at the origin, at or before every distance
-        self.le = [np.zeros((count, nd)) for _ in range(3)]  # t, v, x
-        self.gt = [np.full((count, nd), np.nan) for _ in range(2)]  # t, v
+        # each list holds views of one array: t, v, x (le, last); t, v (gt); t, v, a (hit, pre)
+        self.le = list(np.zeros((3, count, nd)))
+        self.gt = list(np.full((2, count, nd), np.nan))
         self.gt_found = np.zeros((count, nd), dtype=np.bool_)
-        self.hit = [np.full((count, ns), np.nan) for _ in range(3)]  # t, v, a
-        self.pre = [np.full((count, ns), np.nan) for _ in range(3)]
+        self.hit = list(np.full((3, count, ns), np.nan))
+        self.pre = list(np.full((3, count, ns), np.nan))
         self.found = np.zeros((count, ns), dtype=np.bool_)
-        self.last = [np.zeros(count) for _ in range(3)]  # t, v, x
+        self.last = list(np.zeros((3, count)))
         self.last_a = np.zeros(count)
         self.started = np.zeros(count, dtype=np.bool_)
-        self.first_t = np.full(count, np.nan)  # time and speed of each trace's first point
-        self.first_v = np.full(count, np.nan)
+        # time and speed of each trace's first point
+        self.first_t, self.first_v = np.full((2, count), np.nan)
         self._passing: tuple[FloatArray, FloatArray] | None = None  # read once all is added
 
     def add(
@@ -188,6 +190,21 @@ class TraceProbes:
             last[rows] = col[:, -1]
         self.last_a[rows] = a[:, -1]
         self.started[rows] = True
+
+    def add_trace(self, t: FloatArray, v: FloatArray, x: FloatArray, a: FloatArray) -> None:
+        """Read the whole trace of a batch of one at once.
+
+        Parameters
+        ----------
+        t, v, x, a : ndarray, shape (n,)
+            Time [s], speed [m/s], distance [m] and acceleration [m/s^2] of every point in
+            time order, distance never falling. Read as one block, or for speeds in blocks
+            along which speed does not fall (a shift's coast or a slowing car starts a new
+            block); the same points read block by block give the same probes.
+        """
+        cuts = (np.flatnonzero(v[1:] < v[:-1]) + 1).tolist() if self.s.size else []
+        for lo, hi in zip([0, *cuts], [*cuts, v.size], strict=True):
+            self.add(_ONE_ROW, t[None, lo:hi], v[None, lo:hi], x[None, lo:hi], a[None, lo:hi])
 
     def _add_distances(self, rows: IntArray, cols: tuple[FloatArray, ...]) -> None:
         """The distances that ``cols`` (t, v, x) passes, not passed before: the point at

@@ -113,7 +113,6 @@ class TimedSpeed:
     less_rollout_s: float | None
 
 
-_ONE_RUN = np.zeros(1, dtype=np.int64)
 _MOVED = np.ones(1, dtype=np.bool_)
 
 
@@ -121,18 +120,10 @@ def _probes(run: RunResult, distances: ArrayLike, speeds: ArrayLike) -> TracePro
     """The strip timer's probes read over one run: the whole trace as one block (distance
     never falls), or for speeds, in blocks along which speed does not fall (a shift's
     coast or a slowing car starts a new block)."""
-    probe_v = np.asarray(speeds, dtype=np.float64)
-    probes = TraceProbes(1, np.asarray(distances, dtype=np.float64), probe_v)
-    v = run.speed_m_s
-    cuts = (np.flatnonzero(v[1:] < v[:-1]) + 1).tolist() if probe_v.size else []
-    for lo, hi in zip([0, *cuts], [*cuts, v.size], strict=True):
-        probes.add(
-            _ONE_RUN,
-            run.time_s[None, lo:hi],
-            v[None, lo:hi],
-            run.distance_m[None, lo:hi],
-            run.acceleration_m_s2[None, lo:hi],
-        )
+    probes = TraceProbes(
+        1, np.asarray(distances, dtype=np.float64), np.asarray(speeds, dtype=np.float64)
+    )
+    probes.add_trace(run.time_s, run.speed_m_s, run.distance_m, run.acceleration_m_s2)
     return probes
 
 
