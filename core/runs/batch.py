@@ -44,6 +44,7 @@ __all__ = ["BatchRuns", "batch_finish_times", "batch_runs"]
 FloatArray = NDArray[np.float64]
 BoolArray = NDArray[np.bool_]
 IntArray = NDArray[np.int64]
+_KEEP_ROWS = 16  # runs up to which the sink reads blocks together (fewer, larger calls)
 
 
 @dataclass(frozen=True)
@@ -108,16 +109,17 @@ class BatchRuns:
 class _Probing:
     """A :class:`core.runs.integrator.RunSink` feeding the strip timers, recording shifts.
 
-    Many runs are read block by block as they come; a batch of one keeps its blocks and
-    reads them whole at :meth:`finish`, as a single run's trace is read (the same points,
-    the same probes, fewer calls)."""
+    Many runs are read block by block as they come. A few runs keep their blocks while
+    every block covers the same rows (the usual case: no run finishes or stops before the
+    others) and are read as one block at :meth:`finish` or when the rows change: the same
+    points, the same probes, fewer calls."""
 
     def __init__(self, probes: TraceProbes, count: int, gears: int) -> None:
         self.probes = probes
         self.events = {k: np.full((count, gears - 1), np.nan) for k in ("t", "v", "n0", "n1")}
-        self.kept: list[tuple[FloatArray, FloatArray, FloatArray, FloatArray]] | None = None
-        if count == 1:
-            self.kept = []
+        self.keeping = count <= _KEEP_ROWS
+        self.kept: list[tuple[FloatArray, FloatArray, FloatArray, FloatArray]] = []
+        self.kept_rows = np.zeros(0, dtype=np.int64)
 
     def gear(self, block: GearBlock) -> None:
         self._read(
@@ -142,16 +144,19 @@ class _Probing:
     def _read(
         self, rows: IntArray, t: FloatArray, v: FloatArray, x: FloatArray, a: FloatArray
     ) -> None:
-        if self.kept is None:
+        if not self.keeping:
             self.probes.add(rows, t, v, x, a)
-        else:
-            self.kept.append((t[0], v[0], x[0], a[0]))
+            return
+        if self.kept and not np.array_equal(rows, self.kept_rows):
+            self.finish()
+        self.kept_rows = rows
+        self.kept.append((t, v, x, a))
 
     def finish(self) -> TraceProbes:
         """The probes, every block read."""
         if self.kept:
-            t, v, x, a = (np.concatenate(c) for c in zip(*self.kept, strict=True))
-            self.probes.add_trace(t, v, x, a)
+            t, v, x, a = (np.concatenate(c, axis=1) for c in zip(*self.kept, strict=True))
+            self.probes.add(self.kept_rows, t, v, x, a, speed_falls=True)
             self.kept = []
         return self.probes
 

@@ -130,10 +130,10 @@ class TraceProbes:
     past it, once a block passes it (until then the trace's last point stands for the
     former); for each probe speed, the first point at or above it and the point before.
     A block that passes no new probe costs little more than noting its last point.
-    Every block handed to :meth:`add` must be non-decreasing in distance and in speed along
-    its rows, and follow the row's earlier blocks in time (the gear segments, shift points
-    and final hold of :func:`core.runs.batch.batch_runs` are). Every trace starts at the
-    origin.
+    Every block handed to :meth:`add` must be non-decreasing in distance along its rows (in
+    speed too, unless it says otherwise), and follow the row's earlier blocks in time (the
+    gear segments, shift points and final hold of :func:`core.runs.batch.batch_runs` are).
+    Every trace starts at the origin.
 
     Parameters
     ----------
@@ -164,7 +164,14 @@ class TraceProbes:
         self._passing: tuple[FloatArray, FloatArray] | None = None  # read once all is added
 
     def add(
-        self, rows: IntArray, t: FloatArray, v: FloatArray, x: FloatArray, a: FloatArray
+        self,
+        rows: IntArray,
+        t: FloatArray,
+        v: FloatArray,
+        x: FloatArray,
+        a: FloatArray,
+        *,
+        speed_falls: bool = False,
     ) -> None:
         """Read the next block of some traces.
 
@@ -175,6 +182,10 @@ class TraceProbes:
         t, v, x, a : ndarray, shape (r, w)
             Time [s], speed [m/s], distance [m] and acceleration [m/s^2] of the block's
             points.
+        speed_falls : bool
+            True where speed may fall along a row (several gears and shifts read as one
+            block): the speed probes then read the running highest speed, whose first
+            reach of a speed is the trace's. False promises speed never falls.
         """
         cols = (t, v, x)
         self._passing = None
@@ -185,7 +196,8 @@ class TraceProbes:
         if self.d.size:
             self._add_distances(rows, cols)
         if self.s.size:
-            self._add_speeds(rows, (t, v, a))
+            highest = np.maximum.accumulate(v, axis=1) if speed_falls else v
+            self._add_speeds(rows, (t, v, a), highest)
         for last, col in zip(self.last, cols, strict=True):
             last[rows] = col[:, -1]
         self.last_a[rows] = a[:, -1]
@@ -198,13 +210,9 @@ class TraceProbes:
         ----------
         t, v, x, a : ndarray, shape (n,)
             Time [s], speed [m/s], distance [m] and acceleration [m/s^2] of every point in
-            time order, distance never falling. Read as one block, or for speeds in blocks
-            along which speed does not fall (a shift's coast or a slowing car starts a new
-            block); the same points read block by block give the same probes.
+            time order, distance never falling (speed may fall).
         """
-        cuts = (np.flatnonzero(v[1:] < v[:-1]) + 1).tolist() if self.s.size else []
-        for lo, hi in zip([0, *cuts], [*cuts, v.size], strict=True):
-            self.add(_ONE_ROW, t[None, lo:hi], v[None, lo:hi], x[None, lo:hi], a[None, lo:hi])
+        self.add(_ONE_ROW, t[None, :], v[None, :], x[None, :], a[None, :], speed_falls=True)
 
     def _add_distances(self, rows: IntArray, cols: tuple[FloatArray, ...]) -> None:
         """The distances that ``cols`` (t, v, x) passes, not passed before: the point at
@@ -224,15 +232,16 @@ class TraceProbes:
             gt[c, ji] = col[ri, k]
         self.gt_found[c, ji] = True
 
-    def _add_speeds(self, rows: IntArray, cols: tuple[FloatArray, ...]) -> None:
+    def _add_speeds(
+        self, rows: IntArray, cols: tuple[FloatArray, ...], highest: FloatArray
+    ) -> None:
         """The speeds that ``cols`` (t, v, a) first reaches: the first point at or above
         each and the point before (the trace's previous point where the block starts at
-        or above it)."""
-        v = cols[1]
-        ri, ji = np.nonzero(~self.found[rows] & (v[:, -1:] >= self.s[None, :]))
+        or above it). ``highest`` is the running highest speed along each row."""
+        ri, ji = np.nonzero(~self.found[rows] & (highest[:, -1:] >= self.s[None, :]))
         if ri.size == 0:
             return
-        k = _count_below(v, ri, self.s[ji])
+        k = _count_below(highest, ri, self.s[ji])
         c = rows[ri]
         inside = k > 0
         lasts = (self.last[0], self.last[1], self.last_a)
