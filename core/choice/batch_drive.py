@@ -72,8 +72,9 @@ def checked_final_drives(final_drive_ratio: ArrayLike) -> FloatArray:
             f"`final_drive_ratio` must list one or more ratios, got shape {f.shape}",
             parameter="final_drive_ratio",
         )
-    bad = np.flatnonzero(~np.isfinite(f) | (f <= 0.0) | (f > MAX_RATIO))
-    if bad.size:
+    # two reductions see any NaN or ratio out of range; only then is it located
+    if not (float(f.min()) > 0.0 and float(f.max()) <= MAX_RATIO):
+        bad = np.flatnonzero(~np.isfinite(f) | (f <= 0.0) | (f > MAX_RATIO))
         i = int(bad[0])
         raise DrivetrainError(
             f"`final_drive_ratio[{i}]` must be finite and in (0, {MAX_RATIO:g}], got {f[i]}",

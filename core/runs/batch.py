@@ -116,7 +116,8 @@ class _Probing:
 
     def __init__(self, probes: TraceProbes, count: int, gears: int) -> None:
         self.probes = probes
-        self.events = {k: np.full((count, gears - 1), np.nan) for k in ("t", "v", "n0", "n1")}
+        events = np.full((4, count, gears - 1), np.nan)
+        self.events = dict(zip(("t", "v", "n0", "n1"), events, strict=True))
         self.keeping = count <= _KEEP_ROWS
         self.kept: list[tuple[FloatArray, FloatArray, FloatArray, FloatArray]] = []
         self.kept_rows = np.zeros(0, dtype=np.int64)

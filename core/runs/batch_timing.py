@@ -94,6 +94,8 @@ def _count_at_most(values: FloatArray, rows: IntArray, limits: FloatArray) -> In
     """Per pair p, how many of ``values[rows[p]]`` (a non-decreasing row) are at most
     ``limits[p]``: counted directly for few pairs, else by a bisection on every pair at
     once."""
+    if values.shape[0] == 1:  # one row: every pair reads it
+        return np.searchsorted(values[0], limits, side="right").astype(np.int64)
     if rows.size * values.shape[1] <= _DIRECT_COUNT:
         direct: IntArray = np.count_nonzero(values[rows] <= limits[:, None], axis=1)
         return direct.astype(np.int64)
@@ -110,6 +112,8 @@ def _count_at_most(values: FloatArray, rows: IntArray, limits: FloatArray) -> In
 def _count_below(values: FloatArray, rows: IntArray, limits: FloatArray) -> IntArray:
     """Per pair p, how many of ``values[rows[p]]`` (a non-decreasing row) are below
     ``limits[p]``."""
+    if values.shape[0] == 1:  # one row: every pair reads it
+        return np.searchsorted(values[0], limits, side="left").astype(np.int64)
     if rows.size * values.shape[1] <= _DIRECT_COUNT:
         direct: IntArray = np.count_nonzero(values[rows] < limits[:, None], axis=1)
         return direct.astype(np.int64)
@@ -226,8 +230,9 @@ class TraceProbes:
         k = _count_at_most(x, ri, self.d[ji])  # the first point past the distance
         c = rows[ri]
         inside = k > 0
+        every = bool(inside.all())
         for le, col, last in zip(self.le, cols, self.last, strict=True):
-            le[c, ji] = np.where(inside, col[ri, k - 1], last[c])
+            le[c, ji] = col[ri, k - 1] if every else np.where(inside, col[ri, k - 1], last[c])
         for gt, col in zip(self.gt, cols[:2], strict=True):
             gt[c, ji] = col[ri, k]
         self.gt_found[c, ji] = True
@@ -264,18 +269,28 @@ class TraceProbes:
     def _passed(self) -> tuple[FloatArray, FloatArray]:
         d = self.d[None, :]
         found = self.gt_found
-        t0, v0, x0 = (
-            np.where(found, le, last[:, None]) for le, last in zip(self.le, self.last, strict=True)
-        )
-        t1 = np.where(found, self.gt[0], t0)
-        v1 = np.where(found, self.gt[1], v0)
+        every = bool(found.all())  # every trace passed every distance: nothing to fill in
+        if every:
+            (t0, v0, x0), (t1, v1) = self.le, self.gt
+        else:
+            t0, v0, x0 = (
+                np.where(found, le, last[:, None])
+                for le, last in zip(self.le, self.last, strict=True)
+            )
+            t1 = np.where(found, self.gt[0], t0)
+            v1 = np.where(found, self.gt[1], v0)
         dx = d - x0
-        flat = (t1 <= t0) | (dx <= 0.0) | ~found
-        a = (v1 - v0) / np.where(flat, 1.0, t1 - t0)
+        span = t1 - t0
+        flat = (t1 <= t0) | (dx <= 0.0)
+        if not every:
+            flat |= ~found
+        a = (v1 - v0) / np.where(flat, 1.0, span)
         root = np.sqrt(np.maximum(v0 * v0 + 2.0 * a * dx, 0.0))
         moving = ~flat & (v0 + root > 0.0)
         tau = np.where(moving, 2.0 * dx / np.where(moving, v0 + root, 1.0), 0.0)
-        tau = np.minimum(tau, np.where(flat, 0.0, t1 - t0))
+        tau = np.minimum(tau, np.where(flat, 0.0, span))
+        if every:
+            return t0 + tau, v0 + a * tau
         reach = found | (d <= self.last[2][:, None] * (1 + 1e-12))
         return np.where(reach, t0 + tau, np.nan), np.where(reach, v0 + a * tau, np.nan)
 
