@@ -47,6 +47,8 @@ BoolArray = NDArray[np.bool_]
 _TOP_SPEED_GRID = 257  # as core.runs.performance.top_speed
 _TOP_SPEED_BLOCK = 128  # candidates scanned together: (128, 257) doubles stay in cache
 _SHARED_RTOL = 1e-12
+_TOP_SPEED_INDEX = np.arange(_TOP_SPEED_GRID)[None, :]
+_TOP_SPEED_STEPS = np.arange(_TOP_SPEED_GRID, dtype=np.float64)[None, :]
 
 
 def checked_final_drives(final_drive_ratio: ArrayLike) -> FloatArray:
@@ -133,6 +135,9 @@ def _shared_row(n_in: FloatArray) -> FloatArray | None:
     if n_in.shape[0] == 1:
         return first
     scale = max(float(np.max(np.abs(first))), 1.0)
+    last = n_in[:, -1]  # rows that differ at their last point differ: no need to look further
+    if float(np.max(np.abs(last - first[-1]))) > _SHARED_RTOL * scale:
+        return None
     if float(np.max(np.abs(n_in - first))) <= _SHARED_RTOL * scale:
         return first
     return None
@@ -171,8 +176,10 @@ def batch_drive(
         engine = np.broadcast_to(e_row, n_in.shape)
     else:
         torque, engine = model.gearbox_input(gear, n_in, launching=launching)
-    force = torque * ratio[:, None] * float(model.efficiency[gear]) / r
-    force = np.where(n_in > model.rev_limit_rpm * (1.0 + 1e-9), 0.0, force)
+    force = torque * ratio[:, None]
+    force *= float(model.efficiency[gear])
+    force /= r
+    force[n_in > model.rev_limit_rpm * (1.0 + 1e-9)] = 0.0
     return force, engine, n_in
 
 
@@ -245,19 +252,25 @@ def _gear_top_speeds(
     r = model.tire.rolling_radius_m
     lo = model.curve.rpm_min * RPM_TO_RAD_S * r / ratio
     hi = model.rev_limit_rpm * RPM_TO_RAD_S * r / ratio
-    v = np.linspace(lo, hi, _TOP_SPEED_GRID, axis=-1)
-    force = torque[None, :] * (ratio * float(model.efficiency[gear]) / r)[:, None]
-    spare = np.minimum(force, model.traction_limit_n) - model.vehicle.road_load.force_n(v)
+    # np.linspace(lo, hi, _TOP_SPEED_GRID, axis=-1) term by term, laid out row by row
+    v = _TOP_SPEED_STEPS * ((hi - lo) / (_TOP_SPEED_GRID - 1))[:, None]
+    v += lo[:, None]
+    v[:, -1] = hi
+    spare = torque[None, :] * (ratio * float(model.efficiency[gear]) / r)[:, None]
+    np.minimum(spare, model.traction_limit_n, out=spare)
+    spare -= model.vehicle.road_load.force_n(v)
     spare[:, -1] = np.minimum(spare[:, -1], spare[:, -2])  # the limiter cuts drive
-    strong = spare > 0.0
+    strong: BoolArray = spare > 0.0
     holds = strong.any(axis=1)
     first = np.argmax(strong, axis=1)  # the car reaches the gear's range above here
-    neg = (spare <= 0.0) & (np.arange(_TOP_SPEED_GRID)[None, :] >= first[:, None])
+    neg: BoolArray = spare <= 0.0
+    neg &= first[:, None] <= _TOP_SPEED_INDEX
     k = np.argmax(neg, axis=1)
-    crosses = holds & neg.any(axis=1)
+    crosses: BoolArray = holds & np.any(neg, axis=1)
     km = np.maximum(k - 1, 0)
-    s0, s1 = take_rows(spare, km), take_rows(spare, k)
-    v0, v1 = take_rows(v, km), take_rows(v, k)
+    each = np.arange(k.size)
+    s0, s1 = spare[each, km], spare[each, k]
+    v0, v1 = v[each, km], v[each, k]
     frac = np.where(crosses, s0 / np.where(crosses, s0 - s1, 1.0), 0.0)
     speed = np.where(crosses, v0 + frac * (v1 - v0), np.where(holds, hi, np.nan))
     return speed, crosses

@@ -101,10 +101,15 @@ def _pick(values: FloatArray, index: IntArray) -> FloatArray:
     return picked
 
 
-def _cumulative(y: FloatArray, step: FloatArray) -> FloatArray:
-    """Cumulative trapezoid along rows with the steps given, starting at 0."""
-    out = np.zeros(y.shape)
-    np.cumsum(step * (y[:, 1:] + y[:, :-1]) / 2.0, axis=1, out=out[:, 1:])
+def _cumulative(y: FloatArray, step: FloatArray, start: FloatArray) -> FloatArray:
+    """Cumulative trapezoid along rows with the steps given, from each row's start."""
+    out = np.empty(y.shape)
+    out[:, 0] = 0.0
+    area = y[:, 1:] + y[:, :-1]
+    area *= step
+    area /= 2.0
+    np.cumsum(area, axis=1, out=out[:, 1:])
+    out += start[:, None]
     return out
 
 
@@ -180,14 +185,18 @@ def _gear(
         state.active[rows[stuck]] = False
     go: BoolArray = ~stuck & ~drag
     if go.any():
-        step = np.diff(grid[go], axis=1)
-        inv = 1.0 / a[go]
-        t = state.t[rows[go]][:, None] + _cumulative(inv, step)
-        x = state.x[rows[go]][:, None] + _cumulative(grid[go] * inv, step)
-        sink.gear(GearBlock(rows[go], g, t, grid[go], x, rpm[go], a[go], limited[go]))
-        moving = rows[go]
-        state.t[moving], state.x[moving], state.v[moving] = t[:, -1], x[:, -1], v_end[go]
-        state.n[moving] = rpm[go][:, -1]
+        # every row going on (the usual case) reads the arrays as they are, uncopied
+        on = slice(None) if go.all() else go
+        v, a_on = grid[on], a[on]
+        moving = rows[on]
+        step = np.diff(v, axis=1)
+        inv = 1.0 / a_on
+        t = _cumulative(inv, step, state.t[moving])
+        inv *= v
+        x = _cumulative(inv, step, state.x[moving])
+        sink.gear(GearBlock(moving, g, t, v, x, rpm[on], a_on, limited[on]))
+        state.t[moving], state.x[moving], state.v[moving] = t[:, -1], x[:, -1], v_end[on]
+        state.n[moving] = rpm[on][:, -1]
     if drag.any():
         d_rows = rows[drag]
         km = np.maximum(kw - 1, 0)[drag]

@@ -57,12 +57,16 @@ class RowCar:
         ratio = self.ratio[rows, g]
         force, engine, n_in = batch_drive(model, g, speed, ratio, launching)
         limited = force > model.traction_limit_n
-        usable = np.minimum(force, model.traction_limit_n)
-        resist = model.vehicle.road_load.force_n(np.maximum(speed, 0.0))
+        net = np.minimum(force, model.traction_limit_n, out=force)
+        net -= model.vehicle.road_load.force_n(np.maximum(speed, 0.0))
         # the engine's inertia rides with the car only while it follows the wheels
-        slipping = engine > n_in * (1.0 + 1e-6) + 1e-6
-        mass = np.where(slipping, self.decoupled[rows][:, None], self.mass[rows, g][:, None])
-        return (usable - resist) / mass, np.array(engine, dtype=np.float64), limited
+        follows = n_in * (1.0 + 1e-6)
+        follows += 1e-6
+        slipping = engine > follows
+        net /= np.where(slipping, self.decoupled[rows][:, None], self.mass[rows, g][:, None])
+        # a shared (read-only) engine row is copied out; the caller may cut the rows
+        rpm = engine if engine.flags.writeable else np.array(engine, dtype=np.float64)
+        return net, rpm, limited
 
 
 def drag_limited_speed(
