@@ -22,6 +22,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from core.choice.batch_drive import candidate_masses, checked_final_drives, overall_ratios
+from core.engine.curves import RPM_TO_RAD_S
 from core.errors import SimulationError
 from core.runs.batch_timing import (
     BatchTimedDistance,
@@ -36,7 +37,6 @@ from core.runs.drive_model import DriveModel
 from core.runs.integrator import MAX_SPEED_M_S, integrate_runs
 from core.runs.milestones import STANDARD_ROLLOUT_M
 from core.runs.run_blocks import GearBlock, RunStart, ShiftBlock
-from core.runs.simulate import default_start_gear
 from core.shifts.shift_rpm import checked_shift_rpm
 
 __all__ = ["BatchRuns", "batch_finish_times", "batch_runs"]
@@ -245,6 +245,16 @@ def batch_runs(
     )
 
 
+def _start_gears(model: DriveModel, shifts: FloatArray, start_speed_m_s: float) -> IntArray:
+    """:func:`core.runs.simulate.default_start_gear` of each row of shift rpms (1 = first),
+    shape (k,): the lowest gear whose shift speed lies above the start speed."""
+    ratios = model.drivetrain.overall_ratios[:-1]
+    speeds = shifts * RPM_TO_RAD_S * model.tire.rolling_radius_m / ratios
+    below = start_speed_m_s < speeds
+    gears = np.where(below.any(axis=1), np.argmax(below, axis=1) + 1, ratios.size + 1)
+    return gears.astype(np.int64)
+
+
 def batch_finish_times(
     model: DriveModel,
     shift_rpm: ArrayLike,
@@ -285,7 +295,7 @@ def batch_finish_times(
     distances = [] if finish_distance_m is None else [("finish", finish_distance_m, False)]
     speeds = [] if finish_speed_m_s is None else [("finish", start_speed_m_s, finish_speed_m_s)]
     out = np.full(k, np.nan)
-    starts = np.array([default_start_gear(model, r, start_speed_m_s) for r in shifts])
+    starts = _start_gears(model, shifts, start_speed_m_s)
     for gear in np.unique(starts).tolist():
         idx = np.flatnonzero(starts == gear)
         probes = TraceProbes(idx.size, probe_distances(rollout, distances), probe_speeds(speeds))
