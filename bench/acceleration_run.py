@@ -7,7 +7,8 @@ search). Figures are medians of interleaved rounds; they are printed, never asse
 machine is shared). Run with ``make bench`` or ``python -m bench.acceleration_run``.
 
 Targets (issue 12): the quarter-mile run with converter and six gears <= 5x healthz; the
-time-optimal shift search <= 30 runs' worth.
+time-optimal shift search <= 30 runs' worth; a batch of one (the batched runs with a single
+candidate) <= 1.15 quarter-mile runs, a single run being a batch of one.
 """
 
 from __future__ import annotations
@@ -75,7 +76,9 @@ def _figures(model: DriveModel, rpm: NDArray[np.float64], healthz: Callable[[], 
     base, run = f["healthz in process"], f["quarter-mile run"]
     print(f"   quarter-mile run / healthz       {run / base:6.1f}x   (target <= 5)")
     print(f"   full run report / healthz        {f['full run report'] / base:6.1f}x")
-    print(f"   batch of one / quarter-mile run  {f['batch of one'] / run:6.2f}x")
+    print(
+        f"   batch of one / quarter-mile run  {f['batch of one'] / run:6.2f}x   (target <= 1.15)"
+    )
     print(
         f"   shift search / quarter-mile run  {f['shift search'] / run:6.1f} runs' worth"
         f"   (target <= 30; budget {budget} runs)"

@@ -153,8 +153,8 @@ def main() -> None:
             " optimum included (target <= 8, goal 5)"
         )
         thousand = f["batched 1000"] / batched
-        print(f"   batched 1000 / batched 100            {thousand:6.1f}  (linear: 10; the")
-        print("      service takes at most 200 ratios, so 1000 is the batched runs alone)")
+        print(f"   batched 1000 / batched 100            {thousand:6.1f}  (target <= 10, linear;")
+        print("      the service takes at most 200 ratios, so 1000 is the batched runs alone)")
 
 
 if __name__ == "__main__":
