@@ -16,6 +16,7 @@ CPU is claimed, further workers are left to the scheduler.
 
 from __future__ import annotations
 
+import atexit
 import os
 import socket
 
@@ -33,6 +34,7 @@ def _claim(cpu: int) -> bool:
         claim.close()
         return False
     _claims.append(claim)
+    atexit.register(claim.close)
     return True
 
 
