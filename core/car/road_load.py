@@ -277,14 +277,18 @@ class RoadLoad:
                 f"`{where}` must be finite and >= 0, got {flat[index]:g}", parameter=where
             )
         normal = 1.0 if self.form is RoadLoadForm.COAST_DOWN else math.cos(self.grade_angle_rad)
-        # normal*(C0 + C1*v) + F2*v**2 + grade, term by term in place
+        grade = self.grade_force_n
+        # normal*(C0 + C1*v) + F2*v**2 + grade, term by term in place (on a level road the
+        # factor 1 and the grade force 0 change nothing and are left out)
         result: FloatArray = self.linear_n_s_m * speed
         result += self.constant_n
-        result *= normal
+        if normal != 1.0:
+            result *= normal
         drag = speed * speed
         drag *= self.quadratic_n_s2_m2
         result += drag
-        result += self.grade_force_n
+        if grade != 0.0:
+            result += grade
         return result
 
 
