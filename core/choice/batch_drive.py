@@ -261,14 +261,15 @@ def _gear_top_speeds(
     spare -= model.vehicle.road_load.force_n(v)
     spare[:, -1] = np.minimum(spare[:, -1], spare[:, -2])  # the limiter cuts drive
     strong: BoolArray = spare > 0.0
-    holds = strong.any(axis=1)
     first = np.argmax(strong, axis=1)  # the car reaches the gear's range above here
+    each = np.arange(first.size)
+    holds = strong[each, first]  # argmax gives the first True, or 0 where there is none
     neg: BoolArray = spare <= 0.0
-    neg &= first[:, None] <= _TOP_SPEED_INDEX
+    if first.any():  # rows that reach the range later look for the crossing past it
+        neg &= first[:, None] <= _TOP_SPEED_INDEX
     k = np.argmax(neg, axis=1)
-    crosses: BoolArray = holds & np.any(neg, axis=1)
+    crosses: BoolArray = holds & neg[each, k]
     km = np.maximum(k - 1, 0)
-    each = np.arange(k.size)
     s0, s1 = spare[each, km], spare[each, k]
     v0, v1 = v[each, km], v[each, k]
     frac = np.where(crosses, s0 / np.where(crosses, s0 - s1, 1.0), 0.0)
