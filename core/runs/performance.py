@@ -212,24 +212,23 @@ def optimal_shift_rpm(
         Budget of simulated runs, seeds included; the search's batches take about two
         runs' time for a dozen runs.
     initial_name : str
-        Name reported for ``initial_rpm`` when it wins.
+        Name reported for ``initial_rpm`` when it wins; the value of a
+        :class:`ShiftCriterion` says ``initial_rpm`` is that criterion's plan
+        (:func:`planned_shift_rpm`), which is then not planned again.
 
     Returns
     -------
     OptimalShifts
     """
+    initial = np.asarray(initial_rpm, dtype=np.float64)
     seeds = [
-        (initial_name, np.asarray(initial_rpm, dtype=np.float64)),
+        (initial_name, initial),
         ("rev_limit", np.full(model.drivetrain.gear_count - 1, model.rev_limit_rpm)),
-        (
-            ShiftCriterion.TRACTIVE_FORCE.value,
-            planned_shift_rpm(model, ShiftCriterion.TRACTIVE_FORCE),
-        ),
-        (
-            ShiftCriterion.NET_ACCELERATION.value,
-            planned_shift_rpm(model, ShiftCriterion.NET_ACCELERATION),
-        ),
     ]
+    for criterion in (ShiftCriterion.TRACTIVE_FORCE, ShiftCriterion.NET_ACCELERATION):
+        # the caller's plan named after a criterion is that plan: not planned again
+        plan = initial if initial_name == criterion.value else planned_shift_rpm(model, criterion)
+        seeds.append((criterion.value, plan))
     return search_shift_rpm(
         model,
         seeds,

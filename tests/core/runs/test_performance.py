@@ -22,16 +22,19 @@ from core.engine.curves import TorqueCurve, torque_curve_from_torque
 from core.runs.drive_model import DriveModel, drive_model
 from core.runs.milestones import time_at_distance, time_at_speed
 from core.runs.performance import (
+    ShiftCriterion,
     acceleration_shift_points,
     acceleration_shifts,
     cruise_rpm,
     gradeability_by_gear,
     optimal_shift_rpm,
+    planned_shift_rpm,
     top_speed,
 )
 from core.runs.simulate import simulate_run
 from core.shifts.best import ShiftReason
 from core.shifts.plan import shift_plan
+from core.shifts.search import search_shift_rpm
 
 G = 9.80665  # standard gravity [m/s^2], scipy.constants.g
 GEOMETRY = AxleGeometry(2.6, 0.5, 1.3)
@@ -306,6 +309,47 @@ def test_optimal_shift_rpm_to_a_speed_never_returns_a_time_above_its_baseline() 
     t_finish = time_at_speed(run, finish)
     assert t_finish is not None
     assert_allclose(best.time_s, t_finish, rtol=1e-12)
+
+
+@pytest.mark.parametrize("criterion", list(ShiftCriterion), ids=lambda c: c.value)
+def test_a_plan_named_after_its_criterion_seeds_the_search_as_that_plan_would(
+    criterion: ShiftCriterion,
+) -> None:
+    # the caller's plan named after a criterion stands in for planning it again: the same
+    # seeds (a seed equal to an earlier one is not run twice), the same answer
+    model = _optimised_car()
+    plan = planned_shift_rpm(model, criterion)
+    named = optimal_shift_rpm(
+        model,
+        plan,
+        start_speed_m_s=0.0,
+        rollout_m=0.29,
+        finish_distance_m=QUARTER_MILE_M,
+        finish_speed_m_s=None,
+        max_evaluations=40,
+        initial_name=criterion.value,
+    )
+    seeds = [
+        (criterion.value, plan),
+        ("rev_limit", np.full(plan.size, model.rev_limit_rpm)),
+        *((c.value, planned_shift_rpm(model, c)) for c in ShiftCriterion),
+    ]
+    planned = search_shift_rpm(
+        model,
+        seeds,
+        start_speed_m_s=0.0,
+        rollout_m=0.29,
+        finish_distance_m=QUARTER_MILE_M,
+        finish_speed_m_s=None,
+        max_evaluations=40,
+    )
+    np.testing.assert_array_equal(named.shift_rpm, planned.shift_rpm)
+    assert (named.time_s, named.baseline_time_s, named.evaluations) == (
+        planned.time_s,
+        planned.baseline_time_s,
+        planned.evaluations,
+    )
+    assert (named.won_by, named.seeds) == (planned.won_by, planned.seeds)
 
 
 def test_a_shift_forced_because_both_gears_are_on_grip_gets_its_own_reason() -> None:
