@@ -15,6 +15,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Literal
 
 import numpy as np
 from numpy.typing import NDArray
@@ -90,40 +91,26 @@ class BatchTimedSpeed:
     less_rollout_s: FloatArray
 
 
-def _count_at_most(values: FloatArray, rows: IntArray, limits: FloatArray) -> IntArray:
+def _count(values: FloatArray, rows: IntArray, limits: FloatArray, *, at_most: bool) -> IntArray:
     """Per pair p, how many of ``values[rows[p]]`` (a non-decreasing row) are at most
-    ``limits[p]``: counted directly for few pairs, else by a bisection on every pair at
-    once."""
+    ``limits[p]`` (``at_most``), or below it: by a search of the one row, counted directly
+    for few pairs, else by a bisection on every pair at once."""
     if values.shape[0] == 1:  # one row: every pair reads it
-        return np.searchsorted(values[0], limits, side="right").astype(np.int64)
+        side: Literal["left", "right"] = "right" if at_most else "left"
+        return np.searchsorted(values[0], limits, side=side).astype(np.int64)
     if rows.size * values.shape[1] <= _DIRECT_COUNT:
-        direct: IntArray = np.count_nonzero(values[rows] <= limits[:, None], axis=1)
+        picked = values[rows]
+        inside = picked <= limits[:, None] if at_most else picked < limits[:, None]
+        direct: IntArray = np.count_nonzero(inside, axis=1)
         return direct.astype(np.int64)
     lo = np.zeros(rows.size, dtype=np.int64)
     hi = np.full(rows.size, values.shape[1], dtype=np.int64)
     while rows.size and bool(np.any(lo < hi)):
         mid = (lo + hi) // 2
-        above = values[rows, np.minimum(mid, values.shape[1] - 1)] > limits
-        hi = np.where(above, mid, hi)
-        lo = np.where(above, lo, np.minimum(mid + 1, hi))
-    return lo
-
-
-def _count_below(values: FloatArray, rows: IntArray, limits: FloatArray) -> IntArray:
-    """Per pair p, how many of ``values[rows[p]]`` (a non-decreasing row) are below
-    ``limits[p]``."""
-    if values.shape[0] == 1:  # one row: every pair reads it
-        return np.searchsorted(values[0], limits, side="left").astype(np.int64)
-    if rows.size * values.shape[1] <= _DIRECT_COUNT:
-        direct: IntArray = np.count_nonzero(values[rows] < limits[:, None], axis=1)
-        return direct.astype(np.int64)
-    lo = np.zeros(rows.size, dtype=np.int64)
-    hi = np.full(rows.size, values.shape[1], dtype=np.int64)
-    while rows.size and bool(np.any(lo < hi)):
-        mid = (lo + hi) // 2
-        reach = values[rows, np.minimum(mid, values.shape[1] - 1)] >= limits
-        hi = np.where(reach, mid, hi)
-        lo = np.where(reach, lo, np.minimum(mid + 1, hi))
+        value = values[rows, np.minimum(mid, values.shape[1] - 1)]
+        past = value > limits if at_most else value >= limits
+        hi = np.where(past, mid, hi)
+        lo = np.where(past, lo, np.minimum(mid + 1, hi))
     return lo
 
 
@@ -227,7 +214,7 @@ class TraceProbes:
         ri, ji = np.nonzero((x[:, -1:] > self.d[None, :]) & ~self.gt_found[rows])
         if ri.size == 0:
             return
-        k = _count_at_most(x, ri, self.d[ji])  # the first point past the distance
+        k = _count(x, ri, self.d[ji], at_most=True)  # the first point past the distance
         c = rows[ri]
         inside = k > 0
         every = bool(inside.all())
@@ -246,7 +233,7 @@ class TraceProbes:
         ri, ji = np.nonzero(~self.found[rows] & (highest[:, -1:] >= self.s[None, :]))
         if ri.size == 0:
             return
-        k = _count_below(highest, ri, self.s[ji])
+        k = _count(highest, ri, self.s[ji], at_most=False)
         c = rows[ri]
         inside = k > 0
         lasts = (self.last[0], self.last[1], self.last_a)
