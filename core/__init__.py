@@ -128,12 +128,14 @@ from core.runs.report import *  # noqa: F403
 from core.runs.run_blocks import *  # noqa: F403
 from core.runs.simulate import *  # noqa: F403
 from core.shifts import best as _shifts_best
+from core.shifts import overtake as _shifts_overtake
 from core.shifts import pattern as _shifts_pattern
 from core.shifts import plan as _shifts_plan
 from core.shifts import search as _shifts_search
 from core.shifts import shift_rpm as _shifts_shift_rpm
 from core.shifts import window as _shifts_window
 from core.shifts.best import *  # noqa: F403
+from core.shifts.overtake import *  # noqa: F403
 from core.shifts.pattern import *  # noqa: F403
 from core.shifts.plan import *  # noqa: F403
 from core.shifts.search import *  # noqa: F403
@@ -203,6 +205,7 @@ __all__ += _runs_report.__all__
 __all__ += _runs_run_blocks.__all__
 __all__ += _runs_simulate.__all__
 __all__ += _shifts_best.__all__
+__all__ += _shifts_overtake.__all__
 __all__ += _shifts_pattern.__all__
 __all__ += _shifts_plan.__all__
 __all__ += _shifts_search.__all__

@@ -16,6 +16,7 @@ from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
+from scipy.interpolate import PPoly
 
 from core.engine.pchip import pchip_coefficients
 from core.errors import CurveError
@@ -92,6 +93,7 @@ class TorqueCurve:
     source: CurveSource = CurveSource.ENGINE
     _coef: FloatArray = field(init=False, repr=False, compare=False)
     _scalar: Any = field(init=False, repr=False, compare=False)
+    _compiled: PPoly = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         rpm = _validated_rpm(self.rpm)
@@ -107,8 +109,9 @@ class TorqueCurve:
             coef[3] = torque[:-1]
         # piecewise cubic on each interval: ((c0*dx + c1)*dx + c2)*dx + c3, dx = n - rpm[i]
         object.__setattr__(self, "_coef", coef)
-        scalar = (rpm.tolist(), coef.T.tolist())
-        object.__setattr__(self, "_scalar", scalar)
+        pieces = (tuple(rpm.tolist()), tuple(map(tuple, coef.T.tolist())))
+        object.__setattr__(self, "_scalar", pieces)
+        object.__setattr__(self, "_compiled", PPoly.construct_fast(coef, rpm))
 
     @property
     def rpm_min(self) -> float:
@@ -119,6 +122,19 @@ class TorqueCurve:
     def rpm_max(self) -> float:
         """Highest sampled engine speed [rpm]."""
         return float(self.rpm[-1])
+
+    @property
+    def pieces(self) -> tuple[tuple[float, ...], tuple[tuple[float, float, float, float], ...]]:
+        """The fill as cubic pieces, for work one point at a time.
+
+        Returns
+        -------
+        tuple of (tuple of float, tuple of 4-tuples of float)
+            The sampled speeds ``x`` [rpm], and for each interval ``i`` the coefficients
+            ``(c0, c1, c2, c3)`` of its torque ``((c0*dx + c1)*dx + c2)*dx + c3`` [N*m] with
+            ``dx = rpm - x[i]`` (``c0 = c1 = 0`` for the linear fill).
+        """
+        return self._scalar  # type: ignore[no-any-return]
 
     def torque_at(self, rpm: ArrayLike) -> FloatArray:
         """Interpolated torque [N*m] at engine speeds inside the sampled range.
@@ -156,6 +172,36 @@ class TorqueCurve:
         out += c2.take(i)
         out *= dx
         out += c3.take(i)
+        return np.maximum(out, 0.0, out=out)
+
+    def torque_fast(self, rpm: ArrayLike) -> FloatArray:
+        """Interpolated torque [N*m] as ``torque_at``, evaluated in compiled code.
+
+        The same cubic pieces summed by powers of ``dx`` (scipy's ``PPoly``) rather than
+        nested: equal to ``torque_at`` to rounding (a few units in the last place), and
+        several times quicker on a large array, where ``torque_at`` spends its time in the
+        array passes of the search and the nested sum.
+
+        Parameters
+        ----------
+        rpm : array_like, any shape
+            Engine speed [rpm]; values outside ``[rpm_min, rpm_max]`` are clipped to it.
+
+        Returns
+        -------
+        ndarray, the shape of ``rpm``
+            Torque [N*m], never negative.
+
+        Examples
+        --------
+        >>> c = torque_curve_from_torque([1000, 2000, 3000], [100, 200, 100])
+        >>> n = [[1000.0, 1500.0], [2500.0, 3200.0]]
+        >>> bool(np.allclose(c.torque_fast(n), c.torque_at(np.ravel(n)).reshape(2, 2)))
+        True
+        """
+        x = self.rpm
+        n = np.clip(np.asarray(rpm, dtype=np.float64), x[0], x[-1])
+        out: FloatArray = self._compiled(n)
         return np.maximum(out, 0.0, out=out)
 
     def torque_scalar(self, rpm: float) -> float:

@@ -12,7 +12,8 @@ minimum where gear i's effort falls below gear i+1's. This module scans every ge
 once on a fine grid (stall, coincident band, sign changes and falling cells found for all
 pairs in array operations), refines each such crossing by bracketed root finding on the
 interpolated curves (an Illinois secant to 1e-7 rpm, the tolerance ``scipy.optimize.brentq``
-was given here; the tests hold the two together), adds the ends of the range as candidates,
+was given here; the tests hold the two together; :mod:`core.shifts.overtake`), adds the
+ends of the range as candidates,
 and keeps the candidate with the least J (a cumulative trapezoid), so curves that cross
 more than once still get the quickest shift. Where the efforts coincide over a stretch, J is
 flat there and the band is reported.
@@ -31,11 +32,14 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.shifts.overtake import REFINE_STEPS, XTOL, bracketed_crossing
+
 __all__ = [
     "COINCIDENT_RTOL",
     "REFINE_STEPS",
     "SCAN_POINTS",
     "XTOL",
+    "CellCrossings",
     "ScalarDiff",
     "ShiftChoice",
     "ShiftReason",
@@ -47,11 +51,13 @@ FloatArray = NDArray[np.float64]
 BoolArray = NDArray[np.bool_]
 VectorEfforts = Callable[[FloatArray], tuple[FloatArray, FloatArray]]
 ScalarDiff = Callable[[int, float], float]
+IntArray = NDArray[np.intp]
+CellCrossings = Callable[[IntArray, FloatArray, FloatArray, FloatArray, FloatArray], FloatArray]
 
 COINCIDENT_RTOL = 1e-4
 SCAN_POINTS = 513
-XTOL = 1e-7  # [rpm] width of the bracket a refined crossing is found in
-REFINE_STEPS = 100  # bound on the steps of one refinement (a handful are used)
+_UNIT = np.linspace(0.0, 1.0, SCAN_POINTS)
+_UNIT.flags.writeable = False
 
 
 class ShiftReason(enum.Enum):
@@ -115,45 +121,6 @@ def _coincident_band(
     if hi - lo < 0.02 * float(grid[-1] - grid[0]):
         return None
     return lo, hi
-
-
-def _crossing(f: Callable[[float], float], a: float, b: float, fa: float, fb: float) -> float:
-    """The crossing of ``f`` in ``[a, b]`` [rpm], where ``fa = f(a) > 0 >= f(b) = fb``.
-
-    Bracketed root finding to ``XTOL``, as ``scipy.optimize.brentq(f, a, b, xtol=XTOL)``
-    but without its per-call wrapping: each step takes the Illinois (modified regula falsi)
-    point and, when the crossing is not on its near side, a second point ``XTOL / 2``
-    beyond it, so once the estimate is within half the tolerance the bracket closes on the
-    crossing. The bracket always holds the sign change.
-    """
-    half = 0.5 * XTOL
-    kept = 0  # the end the last step kept: -1 a, +1 b
-    for _ in range(REFINE_STEPS):
-        w = b - a
-        if w <= XTOL:
-            break
-        s = min(max(a + fa / (fa - fb) * w, a + 0.5 * half), b - 0.5 * half)
-        ds = f(s)
-        if ds == 0.0:
-            return s
-        left = ds < 0.0  # the crossing is in [a, s]
-        if left == (s - a < b - s):  # on the short side of s: keep that part
-            s2, d2 = s, ds
-        else:  # on the long side: try just beyond s, to close the bracket
-            s2 = s - half if left else s + half
-            d2 = f(s2)
-            if d2 == 0.0:
-                return s2
-            if (d2 < 0.0) != left:  # between s and s2
-                a, b, fa, fb = (s2, s, d2, ds) if left else (s, s2, ds, d2)
-                break
-        if left:  # replace b; a kept (Illinois: halve it when kept twice)
-            b, fb = s2, d2
-            fa, kept = (0.5 * fa if kept == -1 else fa), -1
-        else:
-            a, fa = s2, d2
-            fb, kept = (0.5 * fb if kept == 1 else fb), 1
-    return min(max(a + fa / (fa - fb) * (b - a), a), b)
 
 
 @dataclass(frozen=True)
@@ -232,31 +199,139 @@ def _intersection_counts(scan: _Scan, bands: dict[int, tuple[float, float]]) -> 
     return np.bincount(row[1:][change], minlength=scan.diff.shape[0])
 
 
-def _falling_roots(
-    scan: _Scan, diff_scalar: ScalarDiff | None
-) -> tuple[NDArray[np.intp], FloatArray]:
+def _cell_roots(
+    rows: IntArray, cells: tuple[FloatArray, ...], refine: CellCrossings | None
+) -> FloatArray:
+    """The crossing in each falling cell ``(a, b, D(a), D(b))`` [rpm]: ``b`` where
+    ``D(b) = 0``, else refined by ``refine`` or linear in the cell."""
+    a, b, fa, fb = cells
+    with np.errstate(divide="ignore", invalid="ignore"):
+        roots = np.where(fb == 0.0, b, a + fa / (fa - fb) * (b - a))
+    moved = np.flatnonzero(fb != 0.0)
+    if refine is not None and moved.size:
+        roots[moved] = refine(rows[moved], a[moved], b[moved], fa[moved], fb[moved])
+    return roots
+
+
+def _falling_roots(scan: _Scan, refine: CellCrossings | None) -> tuple[IntArray, FloatArray]:
     """Each scan cell where the current gear falls behind (row-major order): its row and the
-    crossing in it [rpm], refined on ``diff_scalar`` or linear in the cell."""
+    crossing in it [rpm]."""
     g, d = scan.grid, scan.diff
     falls = (d[:, :-1] > 0.0) & (d[:, 1:] <= 0.0) & scan.inside[:, 1:] & (scan.last > 0)[:, None]
     rows, cols = np.nonzero(falls)
-    a, b = g[rows, cols], g[rows, cols + 1]
-    fa, fb = d[rows, cols], d[rows, cols + 1]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        roots = np.where(fb == 0.0, b, a + fa / (fa - fb) * (b - a))
-    if diff_scalar is not None:
-        for i in np.flatnonzero(fb != 0.0).tolist():
-            f = functools.partial(diff_scalar, int(rows[i]))
-            roots[i] = _crossing(f, float(a[i]), float(b[i]), float(fa[i]), float(fb[i]))
-    return rows, roots
+    cells = (g[rows, cols], g[rows, cols + 1], d[rows, cols], d[rows, cols + 1])
+    return rows, _cell_roots(rows, cells, refine)
 
 
-def _cost(grid: FloatArray, slowness: FloatArray) -> FloatArray:
-    """Cumulative trapezoid along each row from 0, as ``cumulative_trapezoid(initial=0)``."""
-    steps = np.diff(grid, axis=1) * (slowness[:, 1:] + slowness[:, :-1]) / 2.0
+def _scalar_crossings(diff_scalar: ScalarDiff) -> CellCrossings:
+    """Cell crossings refined one at a time on ``diff_scalar``."""
+
+    def cells(
+        rows: IntArray, a: FloatArray, b: FloatArray, fa: FloatArray, fb: FloatArray
+    ) -> FloatArray:
+        ends = zip(a.tolist(), b.tolist(), fa.tolist(), fb.tolist(), strict=True)
+        return np.array(
+            [
+                bracketed_crossing(functools.partial(diff_scalar, k), *end)
+                for k, end in zip(rows.tolist(), ends, strict=True)
+            ],
+            dtype=np.float64,
+        )
+
+    return cells
+
+
+def _cost(
+    grid: FloatArray, e_cur: FloatArray, e_next: FloatArray, scale: FloatArray
+) -> FloatArray:
+    """Cumulative trapezoid of the slowness ``1/e_cur - 1/e_next`` (each effort floored at
+    ``1e-9 * scale``) along each row from 0, as ``cumulative_trapezoid(initial=0)``."""
+    floor = 1e-9 * scale[:, None]
+    slowness = 1.0 / np.maximum(e_cur, floor)
+    slowness -= 1.0 / np.maximum(e_next, floor)
+    steps = grid[:, 1:] - grid[:, :-1]
+    steps *= slowness[:, 1:] + slowness[:, :-1]
+    steps *= 0.5
     out = np.zeros_like(grid)
     np.cumsum(steps, axis=1, out=out[:, 1:])
     return out
+
+
+@dataclass(frozen=True)
+class _Found:
+    """What the scan found in every row: the range's end ``top`` [rpm] and last scan index
+    ``last`` (as ``_Scan``), the coincident bands, the falling crossings [rpm] and the
+    count of sign changes."""
+
+    top: list[float]
+    last: list[int]
+    bands: dict[int, tuple[float, float]]
+    crossings: list[list[float]]
+    intersections: list[int]
+
+
+def _plain(
+    grid: FloatArray,
+    diff: FloatArray,
+    e_cur: FloatArray,
+    ranges: tuple[BoolArray, FloatArray],
+    scale: FloatArray,
+) -> bool:
+    """Whether every row is a range where the current gear never stalls, with no zero and
+    no NaN in ``diff`` and too few points close to a crossing for a band (``_bands``);
+    ``ranges`` are each row's validity and width [rpm]."""
+    valid, span = ranges
+    if not (valid.all() and e_cur.min() > 0.0) or np.isnan(scale).any():
+        return False
+    close = np.abs(diff) <= COINCIDENT_RTOL * scale[:, None]
+    if not close.any():
+        return True
+    reach = (np.count_nonzero(close, axis=1) - 1) * (span / (SCAN_POINTS - 1)) * (1.0 + 1e-9)
+    wide = reach >= 0.02 * (grid[:, -1] - grid[:, 0])
+    return not (wide.any() or (diff[close] == 0.0).any())
+
+
+def _found_plain(
+    grid: FloatArray, diff: FloatArray, hi: FloatArray, refine: CellCrossings | None
+) -> _Found:
+    """``_found_cut`` where every row is a valid range, the current gear never stalls and
+    no point is close to a crossing (so no zero and no band): the signs alone tell."""
+    p, m = diff.shape
+    pos = diff > 0.0
+    change = pos[:, 1:] != pos[:, :-1]
+    rows, cols = np.nonzero(change & pos[:, :-1])
+    crossings: list[list[float]] = [[] for _ in range(p)]
+    if rows.size:
+        a, b = grid[rows, cols], grid[rows, cols + 1]
+        fa, fb = diff[rows, cols], diff[rows, cols + 1]
+        roots = a + fa / (fa - fb) * (b - a) if refine is None else refine(rows, a, b, fa, fb)
+        for k, root in zip(rows.tolist(), roots.tolist(), strict=True):
+            crossings[k].append(root)
+    counts = np.count_nonzero(change, axis=1).tolist()
+    return _Found(hi.tolist(), [m - 1] * p, {}, crossings, counts)
+
+
+def _found_cut(
+    grid: FloatArray,
+    diff: FloatArray,
+    e_cur: FloatArray,
+    ends: tuple[FloatArray, FloatArray, BoolArray],
+    scale: FloatArray,
+    refine: CellCrossings | None,
+) -> _Found:
+    """Every row's scan cut where the current gear stalls, its band, crossings and count;
+    ``ends`` are each row's range end [rpm], width [rpm] and whether it is a range."""
+    hi, span, valid = ends
+    scan = _Scan.of(grid, diff, e_cur, hi, valid)
+    bands = _bands(scan, scale, span)
+    crossed = _intersection_counts(scan, bands)
+    rows, roots = _falling_roots(scan, refine)
+    found: list[list[float]] = [[] for _ in range(hi.size)]
+    for k, root in zip(rows.tolist(), roots.tolist(), strict=True):
+        band = bands.get(k)
+        if band is None or not band[0] <= root <= band[1]:
+            found[k].append(root)
+    return _Found(scan.top.tolist(), scan.last.tolist(), bands, found, crossed.tolist())
 
 
 def best_shifts(
@@ -264,6 +339,8 @@ def best_shifts(
     diff_scalar: ScalarDiff | None,
     rpm_low: ArrayLike,
     rpm_high: ArrayLike,
+    *,
+    cell_crossings: CellCrossings | None = None,
 ) -> tuple[ShiftChoice, ...]:
     """The quickest shift for each of p gear changes, computed together.
 
@@ -284,6 +361,12 @@ def best_shifts(
         Start of each shared range in current-gear rpm (the next gear's lowest usable speed).
     rpm_high : array_like, shape (p,)
         End of each shared range: the current gear's rev limit [rpm].
+    cell_crossings : callable, optional
+        ``cell_crossings(rows, a, b, fa, fb) -> n``: the crossing [rpm] in each scan cell
+        ``[a, b]`` of gear change ``rows`` where ``current - next`` falls from ``fa > 0`` to
+        ``fb < 0``, found to ``XTOL`` [rpm] (all arrays of one shape); used instead of
+        ``diff_scalar`` when given, for efforts whose crossings can be found more cheaply
+        together (:func:`core.shifts.overtake.force_crossings`).
 
     Returns
     -------
@@ -304,49 +387,41 @@ def best_shifts(
     hi = np.atleast_1d(np.asarray(rpm_high, dtype=np.float64))
     valid = hi > lo
     span = np.where(valid, hi - lo, 1.0)
-    grid = lo[:, None] + span[:, None] * np.linspace(0.0, 1.0, SCAN_POINTS)
+    grid = lo[:, None] + span[:, None] * _UNIT
     e_cur, e_next = efforts(grid)
     diff = e_cur - e_next
     scale = np.maximum(np.max(np.abs(e_cur), axis=1), np.max(np.abs(e_next), axis=1))
     scale = np.maximum(scale, 1e-300)
-    floor = 1e-9 * scale[:, None]
-    slowness = 1.0 / np.maximum(e_cur, floor) - 1.0 / np.maximum(e_next, floor)
-    cost = _cost(grid, slowness)
-
-    scan = _Scan.of(grid, diff, e_cur, hi, valid)
-    bands = _bands(scan, scale, span)
-    crossed = _intersection_counts(scan, bands)
-    rows, roots = _falling_roots(scan, diff_scalar)
-    found: list[list[float]] = [[] for _ in range(lo.size)]
-    for k, root in zip(rows.tolist(), roots.tolist(), strict=True):
-        band = bands.get(k)
-        if band is None or not band[0] <= root <= band[1]:
-            found[k].append(root)
-
-    return _choose(grid, cost, scan, lo, hi, bands, found, crossed, (diff[:, 0] < 0.0).tolist())
+    cost = _cost(grid, e_cur, e_next, scale)
+    refine = cell_crossings
+    if refine is None and diff_scalar is not None:
+        refine = _scalar_crossings(diff_scalar)
+    if _plain(grid, diff, e_cur, (valid, span), scale):
+        found = _found_plain(grid, diff, hi, refine)
+    else:
+        found = _found_cut(grid, diff, e_cur, (hi, span, valid), scale, refine)
+    return _choose(grid, cost, lo, hi, found, (diff[:, 0] < 0.0).tolist())
 
 
 def _choose(
     grid: FloatArray,
     cost: FloatArray,
-    scan: _Scan,
     lo: FloatArray,
     hi: FloatArray,
-    bands: dict[int, tuple[float, float]],
-    found: list[list[float]],
-    crossed: NDArray[np.intp],
+    found: _Found,
     behind: list[bool],
 ) -> tuple[ShiftChoice, ...]:
     """Each gear change's quickest candidate (range start, range end, the crossings, the
     band's end), by the crossing time ``cost`` interpolated on its scan."""
     choices = []
-    for k, (start, limit, top, last, n) in enumerate(
+    for k, (start, limit, top, last, n, here) in enumerate(
         zip(
             lo.tolist(),
             hi.tolist(),
-            scan.top.tolist(),
-            scan.last.tolist(),
-            crossed.tolist(),
+            found.top,
+            found.last,
+            found.intersections,
+            found.crossings,
             strict=True,
         )
     ):
@@ -356,7 +431,7 @@ def _choose(
         if last == 0:  # the car cannot accelerate at the range's start
             choices.append(ShiftChoice(start, ShiftReason.DRAG_LIMIT, 0, None, False))
             continue
-        band, here = bands.get(k), found[k]
+        band = found.bands.get(k)
         candidates = [start, top, *here]
         if band is not None:
             candidates.append(band[1])
