@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import enum
 import functools
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
@@ -247,12 +248,16 @@ def _cost(
     """Cumulative trapezoid of the slowness ``1/e_cur - 1/e_next`` (each effort floored at
     ``1e-9 * scale``) along each row from 0, as ``cumulative_trapezoid(initial=0)``."""
     floor = 1e-9 * scale[:, None]
-    slowness = 1.0 / np.maximum(e_cur, floor)
-    slowness -= 1.0 / np.maximum(e_next, floor)
+    slowness = np.maximum(e_cur, floor)
+    np.divide(1.0, slowness, out=slowness)
+    behind = np.maximum(e_next, floor)
+    np.divide(1.0, behind, out=behind)
+    slowness -= behind
     steps = grid[:, 1:] - grid[:, :-1]
-    steps *= slowness[:, 1:] + slowness[:, :-1]
+    steps *= np.add(slowness[:, 1:], slowness[:, :-1], out=behind[:, 1:])
     steps *= 0.5
-    out = np.zeros_like(grid)
+    out = np.empty_like(grid)
+    out[:, 0] = 0.0
     np.cumsum(steps, axis=1, out=out[:, 1:])
     return out
 
@@ -271,17 +276,13 @@ class _Found:
 
 
 def _plain(
-    grid: FloatArray,
-    diff: FloatArray,
-    e_cur: FloatArray,
-    ranges: tuple[BoolArray, FloatArray],
-    scale: FloatArray,
+    grid: FloatArray, diff: FloatArray, ranges: tuple[BoolArray, FloatArray], scale: FloatArray
 ) -> bool:
-    """Whether every row is a range where the current gear never stalls, with no zero and
-    no NaN in ``diff`` and too few points close to a crossing for a band (``_bands``);
+    """Whether every row is a range with no zero and no NaN in ``diff`` and too few points
+    close to a crossing for a band (``_bands``), for a current gear that never stalls;
     ``ranges`` are each row's validity and width [rpm]."""
     valid, span = ranges
-    if not (valid.all() and e_cur.min() > 0.0) or np.isnan(scale).any():
+    if not valid.all() or math.isnan(float(scale.sum())):
         return False
     close = np.abs(diff) <= COINCIDENT_RTOL * scale[:, None]
     if not close.any():
@@ -390,13 +391,15 @@ def best_shifts(
     grid = lo[:, None] + span[:, None] * _UNIT
     e_cur, e_next = efforts(grid)
     diff = e_cur - e_next
-    scale = np.maximum(np.max(np.abs(e_cur), axis=1), np.max(np.abs(e_next), axis=1))
-    scale = np.maximum(scale, 1e-300)
+    positive = bool(e_cur.min() > 0.0)  # False with a NaN too
+    peak_cur = e_cur.max(axis=1) if positive else np.max(np.abs(e_cur), axis=1)
+    scale = np.maximum(peak_cur, np.max(np.abs(e_next), axis=1))
+    np.maximum(scale, 1e-300, out=scale)
     cost = _cost(grid, e_cur, e_next, scale)
     refine = cell_crossings
     if refine is None and diff_scalar is not None:
         refine = _scalar_crossings(diff_scalar)
-    if _plain(grid, diff, e_cur, (valid, span), scale):
+    if positive and _plain(grid, diff, (valid, span), scale):
         found = _found_plain(grid, diff, hi, refine)
     else:
         found = _found_cut(grid, diff, e_cur, (hi, span, valid), scale, refine)

@@ -18,7 +18,6 @@ step a few multiplications instead of a search of the curve.
 from __future__ import annotations
 
 import math
-from bisect import bisect_right
 from collections.abc import Callable, Sequence
 
 import numpy as np
@@ -80,31 +79,29 @@ def bracketed_crossing(
     return min(max(a + fa / (fa - fb) * (b - a), a), b)
 
 
-def _piece(xs: Sequence[float], n: float) -> int:
-    """Index of the curve interval holding ``n`` (the end ones beyond the samples)."""
-    return min(max(bisect_right(xs, n) - 1, 0), len(xs) - 2)
-
-
 Cubic = tuple[float, float, float, float, float]
 """One interval of the curve: its start [rpm] and coefficients c0..c3."""
 
 
-def _cubics(curve: TorqueCurve, lo: float, hi: float) -> tuple[Cubic, Cubic, float] | None:
-    """The curve's pieces over ``[lo, hi]`` when at most two: the one below the cut, the
-    one from it on, and the cut [rpm] (infinite for one piece); None for more."""
-    xs, coef = curve.pieces
-    i, k = _piece(xs, lo), _piece(xs, hi)
+def _cubics(curve: TorqueCurve, i: int, k: int) -> tuple[Cubic, Cubic, float] | None:
+    """The curve's pieces ``i`` to ``k`` when at most two: the one below the cut, the one
+    from it on, and the cut [rpm] (infinite for one piece); None for more."""
     if k > i + 1:
         return None
-    below: Cubic = (xs[i], *coef[i])
-    above: Cubic = (xs[k], *coef[k])
-    return below, above, (xs[k] if k > i else math.inf)
+    xs, coef = curve.pieces
+    return (xs[i], *coef[i]), (xs[k], *coef[k]), (xs[k] if k > i else math.inf)
 
 
 def _cell_crossing(
-    curve: TorqueCurve, k1: float, k2: float, q: float, cell: tuple[float, float, float, float]
+    curve: TorqueCurve,
+    k1: float,
+    k2: float,
+    q: float,
+    cell: tuple[float, float, float, float],
+    pieces: tuple[int, int, int, int],
 ) -> float:
-    """The crossing of one scan cell ``(a, b, D(a), D(b))``, ``D(a) > 0 >= D(b)`` [rpm].
+    """The crossing of one scan cell ``(a, b, D(a), D(b))``, ``D(a) > 0 >= D(b)`` [rpm];
+    ``pieces`` are the curve intervals holding a, b, q * a and q * b.
 
     D is evaluated on the one or two cubic pieces n and q * n pass in the cell, choosing
     the piece as ``TorqueCurve.torque_scalar`` does, so the root finding takes the same
@@ -112,7 +109,7 @@ def _cell_crossing(
     curve itself where a cell spans more pieces.
     """
     a, b, fa, fb = cell
-    cur, nxt = _cubics(curve, a, b), _cubics(curve, q * a, q * b)
+    cur, nxt = _cubics(curve, pieces[0], pieces[1]), _cubics(curve, pieces[2], pieces[3])
     if cur is None or nxt is None:
         torque = curve.torque_scalar
         return bracketed_crossing(lambda n: k1 * torque(n) - k2 * torque(n * q), a, b, fa, fb)
@@ -178,11 +175,17 @@ def force_crossings(
     >>> round(float(n[0]), 6)
     4800.0
     """
+    q = np.asarray(step, dtype=np.float64)[rows]
+    x = curve.rpm
+    # the interval of each cell's ends in both gears, as torque_scalar finds it
+    pieces = np.searchsorted(x, np.concatenate((a, b, a * q, b * q)), side="right") - 1
+    np.clip(pieces, 0, x.size - 2, out=pieces)
+    ends = zip(*pieces.reshape(4, -1).tolist(), strict=True)
     cells = zip(a.tolist(), b.tolist(), fa.tolist(), fb.tolist(), strict=True)
     return np.array(
         [
-            _cell_crossing(curve, k_cur[k], k_next[k], step[k], cell)
-            for k, cell in zip(rows.tolist(), cells, strict=True)
+            _cell_crossing(curve, k_cur[k], k_next[k], step[k], cell, end)
+            for k, cell, end in zip(rows.tolist(), cells, ends, strict=True)
         ],
         dtype=np.float64,
     )
