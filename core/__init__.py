@@ -131,6 +131,7 @@ from core.shifts import best as _shifts_best
 from core.shifts import overtake as _shifts_overtake
 from core.shifts import pattern as _shifts_pattern
 from core.shifts import plan as _shifts_plan
+from core.shifts import scan as _shifts_scan
 from core.shifts import search as _shifts_search
 from core.shifts import shift_rpm as _shifts_shift_rpm
 from core.shifts import window as _shifts_window
@@ -138,6 +139,7 @@ from core.shifts.best import *  # noqa: F403
 from core.shifts.overtake import *  # noqa: F403
 from core.shifts.pattern import *  # noqa: F403
 from core.shifts.plan import *  # noqa: F403
+from core.shifts.scan import *  # noqa: F403
 from core.shifts.search import *  # noqa: F403
 from core.shifts.shift_rpm import *  # noqa: F403
 from core.shifts.window import *  # noqa: F403
@@ -208,6 +210,7 @@ __all__ += _shifts_best.__all__
 __all__ += _shifts_overtake.__all__
 __all__ += _shifts_pattern.__all__
 __all__ += _shifts_plan.__all__
+__all__ += [n for n in _shifts_scan.__all__ if n not in __all__]
 __all__ += _shifts_search.__all__
 __all__ += _shifts_shift_rpm.__all__
 __all__ += _shifts_window.__all__
