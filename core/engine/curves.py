@@ -152,9 +152,9 @@ class TorqueCurve:
         """
         x = self.rpm
         n = np.minimum(np.maximum(np.asarray(rpm, dtype=np.float64), x[0]), x[-1])
-        i = np.searchsorted(x, n, side="right")
-        i -= 1
-        np.minimum(i, x.size - 2, out=i)
+        # the interval of each n: inner samples at or below it, so the last sample falls
+        # in the last interval with no clamp
+        i = np.searchsorted(x[1:-1], n, side="right")
         dx = n - x.take(i)
         # one contiguous gather per coefficient row: cheaper than gathering (m, 4) rows
         # and walking their strided columns, with the same arithmetic in the same order
