@@ -289,7 +289,10 @@ def _clutch_shifts(
     def efforts(n: FloatArray) -> tuple[FloatArray, FloatArray]:
         # both gears' torque in one compiled evaluation
         both = curve.torque_fast(np.concatenate((n, n * step[:, None])))
-        return k_cur * both[: step.size], k_next * both[step.size :]
+        cur, nxt = both[: step.size], both[step.size :]
+        cur *= k_cur
+        nxt *= k_next
+        return cur, nxt
 
     choices = best_shifts(
         efforts,
