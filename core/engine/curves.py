@@ -185,7 +185,7 @@ class TorqueCurve:
             Torque [N*m], never negative.
         """
         x = self.rpm
-        n = np.clip(np.asarray(rpm, dtype=np.float64), x[0], x[-1])
+        n = np.minimum(np.maximum(np.asarray(rpm, dtype=np.float64), x[0]), x[-1])
         out: FloatArray = self._compiled(n)
         return np.maximum(out, 0.0, out=out)
 

@@ -178,8 +178,7 @@ def force_crossings(
     q = np.asarray(step, dtype=np.float64)[rows]
     x = curve.rpm
     # the interval of each cell's ends in both gears, as torque_scalar finds it
-    pieces = np.searchsorted(x, np.concatenate((a, b, a * q, b * q)), side="right") - 1
-    np.clip(pieces, 0, x.size - 2, out=pieces)
+    pieces = np.searchsorted(x[1:-1], np.concatenate((a, b, a * q, b * q)), side="right")
     ends = zip(*pieces.reshape(4, -1).tolist(), strict=True)
     cells = zip(a.tolist(), b.tolist(), fa.tolist(), fb.tolist(), strict=True)
     return np.array(
