@@ -207,8 +207,8 @@ def best_shifts(
     e_cur, e_next = efforts(grid)
     diff = e_cur - e_next
     positive = bool(e_cur.min(initial=np.inf) > 0.0)  # False with a NaN too
-    peak_cur = e_cur.max(axis=1) if positive else np.max(np.abs(e_cur), axis=1)
-    scale = np.maximum(peak_cur, np.max(np.abs(e_next), axis=1))
+    peak_cur = e_cur.max(axis=1) if positive else np.abs(e_cur).max(axis=1)
+    scale = np.maximum(peak_cur, np.abs(e_next).max(axis=1))
     np.maximum(scale, 1e-300, out=scale)
     cost = _cost(grid, e_cur, e_next, scale)
     refine = cell_crossings
