@@ -17,7 +17,7 @@ from typing import Any
 import numpy as np
 import orjson
 
-from bench.common import app_cpu_per_request, ratio_line, time_call
+from bench.common import app_cpu_per_request, demo_drive_model, ratio_line, time_call
 from bench.server import VARY, median_wrk, serve, server_cpu
 from core import (
     Drivetrain,
@@ -28,6 +28,7 @@ from core import (
     tire_from_size,
     torque_curve_from_torque,
 )
+from core.runs.performance import acceleration_shifts, model_converter
 from service.schemas.shift_plan import ShiftPlanRequest, ShiftPlanResponse
 
 SERVED_REPEATS = 5
@@ -55,6 +56,30 @@ def _core(body: dict[str, Any]) -> tuple[TorqueCurve, Drivetrain, Tire]:
     print("core shift_plan, 6 gears, 100-point curve")
     print("  ", time_call(lambda: shift_plan(curve, drivetrain, tire), runs=500))
     return curve, drivetrain, tire
+
+
+def _core_cars() -> None:
+    """Time the core plans of two demo cars: by net acceleration, and with a converter."""
+    sedan = demo_drive_model("demo_sedan_run_metric")
+    wagon = demo_drive_model("demo_wagon_converter_us")
+    converter = model_converter(wagon)
+    print("core net-acceleration shifts, demo sedan (road load, inertia, traction)")
+    print("  ", time_call(lambda: acceleration_shifts(sedan), runs=300))
+    print("core shift_plan with a torque converter, demo wagon")
+    print(
+        "  ",
+        time_call(
+            lambda: shift_plan(
+                wagon.curve,
+                wagon.drivetrain,
+                wagon.tire,
+                rev_limit_rpm=wagon.rev_limit_rpm,
+                converter=converter,
+            ),
+            runs=60,
+            warmup=5,
+        ),
+    )
 
 
 def _serialisation(body: dict[str, Any], car: tuple[TorqueCurve, Drivetrain, Tire]) -> None:
@@ -186,6 +211,7 @@ def _served(body: dict[str, Any]) -> None:
 def main() -> None:
     body = _hundred_point_request()
     car = _core(body)
+    _core_cars()
     _serialisation(body, car)
     _pchip(car[0])
     _app_cpu(body)

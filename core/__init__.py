@@ -128,14 +128,18 @@ from core.runs.report import *  # noqa: F403
 from core.runs.run_blocks import *  # noqa: F403
 from core.runs.simulate import *  # noqa: F403
 from core.shifts import best as _shifts_best
+from core.shifts import overtake as _shifts_overtake
 from core.shifts import pattern as _shifts_pattern
 from core.shifts import plan as _shifts_plan
+from core.shifts import scan as _shifts_scan
 from core.shifts import search as _shifts_search
 from core.shifts import shift_rpm as _shifts_shift_rpm
 from core.shifts import window as _shifts_window
 from core.shifts.best import *  # noqa: F403
+from core.shifts.overtake import *  # noqa: F403
 from core.shifts.pattern import *  # noqa: F403
 from core.shifts.plan import *  # noqa: F403
+from core.shifts.scan import *  # noqa: F403
 from core.shifts.search import *  # noqa: F403
 from core.shifts.shift_rpm import *  # noqa: F403
 from core.shifts.window import *  # noqa: F403
@@ -203,8 +207,10 @@ __all__ += _runs_report.__all__
 __all__ += _runs_run_blocks.__all__
 __all__ += _runs_simulate.__all__
 __all__ += _shifts_best.__all__
+__all__ += _shifts_overtake.__all__
 __all__ += _shifts_pattern.__all__
 __all__ += _shifts_plan.__all__
+__all__ += [n for n in _shifts_scan.__all__ if n not in __all__]
 __all__ += _shifts_search.__all__
 __all__ += _shifts_shift_rpm.__all__
 __all__ += _shifts_window.__all__

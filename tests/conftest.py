@@ -6,6 +6,7 @@ The demo cars in tests/data are invented scenarios, not real vehicles or dyno sh
 from __future__ import annotations
 
 import json
+import os
 from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
@@ -13,6 +14,10 @@ from typing import Any
 import httpx
 import pytest
 from anyio.from_thread import BlockingPortal, start_blocking_portal
+
+# An app whose lifespan runs in this process (schemathesis loads the schema through one)
+# would keep the whole test process on one CPU, and the browser and servers it starts after.
+os.environ.setdefault("GEARWORK_PIN_CPU", "false")
 
 from service.app import app
 

@@ -200,30 +200,33 @@ def gear_tables(
     """
     ratios = drivetrain.overall_ratios
     r = tire.rolling_radius_m
-    torque = curve.torque_at(rpm)
-    power = torque * rpm * RPM_TO_RAD_S
-    wheel_torque = np.outer(ratios * efficiency, torque)
-    speed = np.outer(1.0 / ratios, rpm * RPM_TO_RAD_S * r)
     if converter is not None:
         return _converter_tables(curve, ratios, r, rpm, efficiency, converter)
-    tables = []
-    for i in range(ratios.size):
-        tables.append(
-            GearTable(
-                gear=i + 1,
-                overall_ratio=float(ratios[i]),
-                efficiency=float(efficiency[i]),
-                max_speed_m_s=float(speed[i, -1]),
-                rpm=rpm,
-                speed_m_s=speed[i],
-                engine_torque_nm=torque,
-                engine_power_w=power,
-                wheel_torque_nm=wheel_torque[i],
-                tractive_force_n=wheel_torque[i] / r,
-                wheel_power_w=power * efficiency[i],
-            )
+    torque = curve.torque_at(rpm)
+    power = torque * rpm * RPM_TO_RAD_S
+    # every gear's rows at once: one array per quantity, a row of it per gear
+    wheel_torque = np.outer(ratios * efficiency, torque)
+    force = wheel_torque / r
+    speed = np.outer(1.0 / ratios, rpm * RPM_TO_RAD_S * r)
+    wheel_power = np.outer(efficiency, power)
+    return tuple(
+        GearTable(
+            gear=i + 1,
+            overall_ratio=g,
+            efficiency=e,
+            max_speed_m_s=top,
+            rpm=rpm,
+            speed_m_s=speed[i],
+            engine_torque_nm=torque,
+            engine_power_w=power,
+            wheel_torque_nm=wheel_torque[i],
+            tractive_force_n=force[i],
+            wheel_power_w=wheel_power[i],
         )
-    return tuple(tables)
+        for i, (g, e, top) in enumerate(
+            zip(ratios.tolist(), efficiency.tolist(), speed[:, -1].tolist(), strict=True)
+        )
+    )
 
 
 def _converter_tables(

@@ -16,6 +16,7 @@ from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
+from scipy.interpolate import PPoly
 
 from core.engine.pchip import pchip_coefficients
 from core.errors import CurveError
@@ -92,6 +93,7 @@ class TorqueCurve:
     source: CurveSource = CurveSource.ENGINE
     _coef: FloatArray = field(init=False, repr=False, compare=False)
     _scalar: Any = field(init=False, repr=False, compare=False)
+    _compiled: PPoly = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         rpm = _validated_rpm(self.rpm)
@@ -107,8 +109,9 @@ class TorqueCurve:
             coef[3] = torque[:-1]
         # piecewise cubic on each interval: ((c0*dx + c1)*dx + c2)*dx + c3, dx = n - rpm[i]
         object.__setattr__(self, "_coef", coef)
-        scalar = (rpm.tolist(), coef.T.tolist())
-        object.__setattr__(self, "_scalar", scalar)
+        pieces = (tuple(rpm.tolist()), tuple(map(tuple, coef.T.tolist())))
+        object.__setattr__(self, "_scalar", pieces)
+        object.__setattr__(self, "_compiled", PPoly.construct_fast(coef, rpm))
 
     @property
     def rpm_min(self) -> float:
@@ -119,6 +122,13 @@ class TorqueCurve:
     def rpm_max(self) -> float:
         """Highest sampled engine speed [rpm]."""
         return float(self.rpm[-1])
+
+    @property
+    def pieces(self) -> tuple[tuple[float, ...], tuple[tuple[float, float, float, float], ...]]:
+        """The fill as cubic pieces, for work one point at a time: the sampled speeds ``x``
+        [rpm], and per interval ``i`` the coefficients ``(c0, c1, c2, c3)`` of its torque
+        ``((c0*dx + c1)*dx + c2)*dx + c3`` [N*m], ``dx = rpm - x[i]``."""
+        return self._scalar  # type: ignore[no-any-return]
 
     def torque_at(self, rpm: ArrayLike) -> FloatArray:
         """Interpolated torque [N*m] at engine speeds inside the sampled range.
@@ -142,9 +152,9 @@ class TorqueCurve:
         """
         x = self.rpm
         n = np.minimum(np.maximum(np.asarray(rpm, dtype=np.float64), x[0]), x[-1])
-        i = np.searchsorted(x, n, side="right")
-        i -= 1
-        np.minimum(i, x.size - 2, out=i)
+        # the interval of each n: inner samples at or below it, so the last sample falls
+        # in the last interval with no clamp
+        i = np.searchsorted(x[1:-1], n, side="right")
         dx = n - x.take(i)
         # one contiguous gather per coefficient row: cheaper than gathering (m, 4) rows
         # and walking their strided columns, with the same arithmetic in the same order
@@ -156,6 +166,27 @@ class TorqueCurve:
         out += c2.take(i)
         out *= dx
         out += c3.take(i)
+        return np.maximum(out, 0.0, out=out)
+
+    def torque_fast(self, rpm: ArrayLike) -> FloatArray:
+        """Interpolated torque [N*m] as ``torque_at``, in compiled code (scipy's ``PPoly``).
+
+        The same cubic pieces summed by powers of ``dx`` rather than nested: equal to
+        ``torque_at`` to rounding, and about twice as quick on a large array.
+
+        Parameters
+        ----------
+        rpm : array_like, any shape
+            Engine speed [rpm]; values outside ``[rpm_min, rpm_max]`` are clipped to it.
+
+        Returns
+        -------
+        ndarray, the shape of ``rpm``
+            Torque [N*m], never negative.
+        """
+        x = self.rpm
+        n = np.minimum(np.maximum(np.asarray(rpm, dtype=np.float64), x[0]), x[-1])
+        out: FloatArray = self._compiled(n)
         return np.maximum(out, 0.0, out=out)
 
     def torque_scalar(self, rpm: float) -> float:
@@ -211,7 +242,7 @@ class TorqueCurve:
         best grid point and its neighbours (error well under 1 rpm).
         """
         grid = np.linspace(self.rpm[0], self.rpm[-1], 1001)
-        p = self.power_at(grid)
+        p = self.torque_at(grid) * grid * RPM_TO_RAD_S  # power_at, its clip left out
         k = int(np.argmax(p))
         if k == 0 or k == grid.size - 1:
             return float(grid[k])

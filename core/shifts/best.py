@@ -10,11 +10,12 @@ range when shifting at speed s is, up to a constant,
 so dJ/ds = 1/e_i(s) - 1/e_{i+1}(s): J is stationary where the two efforts cross, and a
 minimum where gear i's effort falls below gear i+1's. This module scans every gear pair at
 once on a fine grid (stall, coincident band, sign changes and falling cells found for all
-pairs in array operations), refines each such crossing by bracketed root finding on the
-interpolated curves (an Illinois secant to 1e-7 rpm, the tolerance ``scipy.optimize.brentq``
-was given here; the tests hold the two together), adds the ends of the range as candidates,
-and keeps the candidate with the least J (a cumulative trapezoid), so curves that cross
-more than once still get the quickest shift. Where the efforts coincide over a stretch, J is
+pairs in array operations, :mod:`core.shifts.scan`), refines each such crossing by
+bracketed root finding on the interpolated curves (an Illinois secant to 1e-7 rpm, the
+tolerance ``scipy.optimize.brentq`` was given here; the tests hold the two together;
+:mod:`core.shifts.overtake`), adds the ends of the range as candidates, and keeps the
+candidate with the least J (a cumulative trapezoid), so curves that cross more than once
+still get the quickest shift. Where the efforts coincide over a stretch, J is
 flat there and the band is reported.
 
 Everything is written in the current gear's engine speed n, which is proportional to road
@@ -31,11 +32,24 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from core.shifts.overtake import REFINE_STEPS, XTOL, bracketed_crossing
+from core.shifts.scan import (
+    COINCIDENT_RTOL,
+    SCAN_POINTS,
+    UNIT_SCAN,
+    CellCrossings,
+    ScanFound,
+    found_cut,
+    found_plain,
+    is_plain,
+)
+
 __all__ = [
     "COINCIDENT_RTOL",
     "REFINE_STEPS",
     "SCAN_POINTS",
     "XTOL",
+    "CellCrossings",
     "ScalarDiff",
     "ShiftChoice",
     "ShiftReason",
@@ -47,11 +61,7 @@ FloatArray = NDArray[np.float64]
 BoolArray = NDArray[np.bool_]
 VectorEfforts = Callable[[FloatArray], tuple[FloatArray, FloatArray]]
 ScalarDiff = Callable[[int, float], float]
-
-COINCIDENT_RTOL = 1e-4
-SCAN_POINTS = 513
-XTOL = 1e-7  # [rpm] width of the bracket a refined crossing is found in
-REFINE_STEPS = 100  # bound on the steps of one refinement (a handful are used)
+IntArray = NDArray[np.intp]
 
 
 class ShiftReason(enum.Enum):
@@ -102,159 +112,40 @@ class ShiftChoice:
     overtake_rpm: tuple[float, ...] = ()
 
 
-def _coincident_band(
-    grid: FloatArray, diff: FloatArray, scale: float
-) -> tuple[float, float] | None:
-    close = np.abs(diff) <= COINCIDENT_RTOL * scale
-    if not close.any():
-        return None
-    edges = np.flatnonzero(np.diff(np.concatenate(([0], close.astype(np.int8), [0]))))
-    starts, stops = edges[::2], edges[1::2] - 1
-    k = int(np.argmax(grid[stops] - grid[starts]))
-    lo, hi = float(grid[starts[k]]), float(grid[stops[k]])
-    if hi - lo < 0.02 * float(grid[-1] - grid[0]):
-        return None
-    return lo, hi
+def _scalar_crossings(diff_scalar: ScalarDiff) -> CellCrossings:
+    """Cell crossings refined one at a time on ``diff_scalar``."""
+
+    def cells(
+        rows: IntArray, a: FloatArray, b: FloatArray, fa: FloatArray, fb: FloatArray
+    ) -> FloatArray:
+        ends = zip(a.tolist(), b.tolist(), fa.tolist(), fb.tolist(), strict=True)
+        return np.array(
+            [
+                bracketed_crossing(functools.partial(diff_scalar, k), *end)
+                for k, end in zip(rows.tolist(), ends, strict=True)
+            ],
+            dtype=np.float64,
+        )
+
+    return cells
 
 
-def _crossing(f: Callable[[float], float], a: float, b: float, fa: float, fb: float) -> float:
-    """The crossing of ``f`` in ``[a, b]`` [rpm], where ``fa = f(a) > 0 >= f(b) = fb``.
-
-    Bracketed root finding to ``XTOL``, as ``scipy.optimize.brentq(f, a, b, xtol=XTOL)``
-    but without its per-call wrapping: each step takes the Illinois (modified regula falsi)
-    point and, when the crossing is not on its near side, a second point ``XTOL / 2``
-    beyond it, so once the estimate is within half the tolerance the bracket closes on the
-    crossing. The bracket always holds the sign change.
-    """
-    half = 0.5 * XTOL
-    kept = 0  # the end the last step kept: -1 a, +1 b
-    for _ in range(REFINE_STEPS):
-        w = b - a
-        if w <= XTOL:
-            break
-        s = min(max(a + fa / (fa - fb) * w, a + 0.5 * half), b - 0.5 * half)
-        ds = f(s)
-        if ds == 0.0:
-            return s
-        left = ds < 0.0  # the crossing is in [a, s]
-        if left == (s - a < b - s):  # on the short side of s: keep that part
-            s2, d2 = s, ds
-        else:  # on the long side: try just beyond s, to close the bracket
-            s2 = s - half if left else s + half
-            d2 = f(s2)
-            if d2 == 0.0:
-                return s2
-            if (d2 < 0.0) != left:  # between s and s2
-                a, b, fa, fb = (s2, s, d2, ds) if left else (s, s2, ds, d2)
-                break
-        if left:  # replace b; a kept (Illinois: halve it when kept twice)
-            b, fb = s2, d2
-            fa, kept = (0.5 * fa if kept == -1 else fa), -1
-        else:
-            a, fa = s2, d2
-            fb, kept = (0.5 * fb if kept == 1 else fb), 1
-    return min(max(a + fa / (fa - fb) * (b - a), a), b)
-
-
-@dataclass(frozen=True)
-class _Scan:
-    """Every gear change's scan, each row cut where the current gear stops accelerating.
-
-    ``grid`` and ``diff`` are (p, m); in a row whose current-gear effort falls to zero the
-    point where it does (linear in the scan cell) replaces the first point past it, and the
-    row ends there: ``last`` is the index of each row's last point (-1 for an empty range,
-    0 where the gear cannot accelerate at all), ``top`` the end of each row's range [rpm].
-    """
-
-    grid: FloatArray
-    diff: FloatArray
-    last: NDArray[np.intp]
-    top: FloatArray
-    inside: NDArray[np.bool_]
-
-    @classmethod
-    def of(
-        cls,
-        grid: FloatArray,
-        diff: FloatArray,
-        e_cur: FloatArray,
-        hi: FloatArray,
-        valid: BoolArray,
-    ) -> _Scan:
-        m = grid.shape[1]
-        stalled = e_cur <= 0.0
-        stops = stalled.any(axis=1)
-        last = np.where(stops, np.argmax(stalled, axis=1), m - 1)
-        last[~valid] = -1
-        top = hi.copy()
-        cut = np.flatnonzero(stops & valid & (last > 0))
-        if cut.size:
-            grid, diff = grid.copy(), diff.copy()
-            j = last[cut]
-            e0, e1 = e_cur[cut, j - 1], e_cur[cut, j]
-            frac = e0 / (e0 - e1)
-            g0, g1 = grid[cut, j - 1], grid[cut, j]
-            top[cut] = grid[cut, j] = g0 + frac * (g1 - g0)
-            diff[cut, j] = diff[cut, j - 1] + frac * (diff[cut, j] - diff[cut, j - 1])
-        inside = np.arange(m) <= last[:, None]
-        return cls(grid, diff, last, top, inside)
-
-
-def _bands(scan: _Scan, scale: FloatArray, span: FloatArray) -> dict[int, tuple[float, float]]:
-    """The coincident band of each gear change that has one, by row.
-
-    A band must be 2 % of its row's range wide: a row without enough close points to
-    span that many scan cells has none and is not looked at further."""
-    close = (np.abs(scan.diff) <= COINCIDENT_RTOL * scale[:, None]) & scan.inside
-    rows = np.arange(scan.last.size)
-    reach = (close.sum(axis=1) - 1) * (span / (SCAN_POINTS - 1)) * (1.0 + 1e-9)
-    wide = reach >= 0.02 * (scan.grid[rows, scan.last] - scan.grid[:, 0])
-    bands = {}
-    for k in np.flatnonzero(wide & (scan.last > 0)).tolist():
-        n = int(scan.last[k]) + 1
-        band = _coincident_band(scan.grid[k, :n], scan.diff[k, :n], float(scale[k]))
-        if band is not None:
-            bands[k] = band
-    return bands
-
-
-def _intersection_counts(scan: _Scan, bands: dict[int, tuple[float, float]]) -> NDArray[np.intp]:
-    """Sign changes of each row's ``diff``, zeros and a coincident band left out: every
-    row's kept points in one flat sequence, a change counted only within a row."""
-    keep = (scan.diff != 0.0) & scan.inside
-    for k, (b_lo, b_hi) in bands.items():
-        g = scan.grid[k]
-        keep[k] &= (g < b_lo) | (g > b_hi)
-    at = np.flatnonzero(keep)  # row-major: each row's kept points in order
-    row = at // scan.diff.shape[1]
-    rising = scan.diff.ravel()[at] > 0.0
-    change = (rising[1:] != rising[:-1]) & (row[1:] == row[:-1])
-    return np.bincount(row[1:][change], minlength=scan.diff.shape[0])
-
-
-def _falling_roots(
-    scan: _Scan, diff_scalar: ScalarDiff | None
-) -> tuple[NDArray[np.intp], FloatArray]:
-    """Each scan cell where the current gear falls behind (row-major order): its row and the
-    crossing in it [rpm], refined on ``diff_scalar`` or linear in the cell."""
-    g, d = scan.grid, scan.diff
-    falls = (d[:, :-1] > 0.0) & (d[:, 1:] <= 0.0) & scan.inside[:, 1:] & (scan.last > 0)[:, None]
-    rows, cols = np.nonzero(falls)
-    a, b = g[rows, cols], g[rows, cols + 1]
-    fa, fb = d[rows, cols], d[rows, cols + 1]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        roots = np.where(fb == 0.0, b, a + fa / (fa - fb) * (b - a))
-    if diff_scalar is not None:
-        for i in np.flatnonzero(fb != 0.0).tolist():
-            f = functools.partial(diff_scalar, int(rows[i]))
-            roots[i] = _crossing(f, float(a[i]), float(b[i]), float(fa[i]), float(fb[i]))
-    return rows, roots
-
-
-def _cost(grid: FloatArray, slowness: FloatArray) -> FloatArray:
-    """Cumulative trapezoid along each row from 0, as ``cumulative_trapezoid(initial=0)``."""
-    steps = np.diff(grid, axis=1) * (slowness[:, 1:] + slowness[:, :-1]) / 2.0
-    out = np.zeros_like(grid)
+def _cost(
+    grid: FloatArray, e_cur: FloatArray, e_next: FloatArray, scale: FloatArray
+) -> FloatArray:
+    """Cumulative trapezoid of the slowness ``1/e_cur - 1/e_next`` (each effort floored at
+    ``1e-9 * scale``) along each row from 0, as ``cumulative_trapezoid(initial=0)``."""
+    floor = 1e-9 * scale[:, None]
+    slowness = np.maximum(e_cur, floor)
+    np.divide(1.0, slowness, out=slowness)
+    behind = np.maximum(e_next, floor)
+    np.divide(1.0, behind, out=behind)
+    slowness -= behind
+    steps = grid[:, 1:] - grid[:, :-1]
+    steps *= np.add(slowness[:, 1:], slowness[:, :-1], out=behind[:, 1:])
+    steps *= 0.5
+    out = np.empty_like(grid)
+    out[:, 0] = 0.0
     np.cumsum(steps, axis=1, out=out[:, 1:])
     return out
 
@@ -264,6 +155,8 @@ def best_shifts(
     diff_scalar: ScalarDiff | None,
     rpm_low: ArrayLike,
     rpm_high: ArrayLike,
+    *,
+    cell_crossings: CellCrossings | None = None,
 ) -> tuple[ShiftChoice, ...]:
     """The quickest shift for each of p gear changes, computed together.
 
@@ -284,6 +177,12 @@ def best_shifts(
         Start of each shared range in current-gear rpm (the next gear's lowest usable speed).
     rpm_high : array_like, shape (p,)
         End of each shared range: the current gear's rev limit [rpm].
+    cell_crossings : callable, optional
+        ``cell_crossings(rows, a, b, fa, fb) -> n``: the crossing [rpm] in each scan cell
+        ``[a, b]`` of gear change ``rows`` where ``current - next`` falls from ``fa > 0`` to
+        ``fb < 0``, found to ``XTOL`` [rpm] (all arrays of one shape); used instead of
+        ``diff_scalar`` when given, for efforts whose crossings can be found more cheaply
+        together (:func:`core.shifts.overtake.force_crossings`).
 
     Returns
     -------
@@ -304,49 +203,43 @@ def best_shifts(
     hi = np.atleast_1d(np.asarray(rpm_high, dtype=np.float64))
     valid = hi > lo
     span = np.where(valid, hi - lo, 1.0)
-    grid = lo[:, None] + span[:, None] * np.linspace(0.0, 1.0, SCAN_POINTS)
+    grid = lo[:, None] + span[:, None] * UNIT_SCAN
     e_cur, e_next = efforts(grid)
     diff = e_cur - e_next
-    scale = np.maximum(np.max(np.abs(e_cur), axis=1), np.max(np.abs(e_next), axis=1))
-    scale = np.maximum(scale, 1e-300)
-    floor = 1e-9 * scale[:, None]
-    slowness = 1.0 / np.maximum(e_cur, floor) - 1.0 / np.maximum(e_next, floor)
-    cost = _cost(grid, slowness)
-
-    scan = _Scan.of(grid, diff, e_cur, hi, valid)
-    bands = _bands(scan, scale, span)
-    crossed = _intersection_counts(scan, bands)
-    rows, roots = _falling_roots(scan, diff_scalar)
-    found: list[list[float]] = [[] for _ in range(lo.size)]
-    for k, root in zip(rows.tolist(), roots.tolist(), strict=True):
-        band = bands.get(k)
-        if band is None or not band[0] <= root <= band[1]:
-            found[k].append(root)
-
-    return _choose(grid, cost, scan, lo, hi, bands, found, crossed, (diff[:, 0] < 0.0).tolist())
+    positive = bool(e_cur.min(initial=np.inf) > 0.0)  # False with a NaN too
+    peak_cur = e_cur.max(axis=1) if positive else np.abs(e_cur).max(axis=1)
+    scale = np.maximum(peak_cur, np.abs(e_next).max(axis=1))
+    np.maximum(scale, 1e-300, out=scale)
+    cost = _cost(grid, e_cur, e_next, scale)
+    refine = cell_crossings
+    if refine is None and diff_scalar is not None:
+        refine = _scalar_crossings(diff_scalar)
+    if positive and is_plain(grid, diff, (valid, span), scale):
+        found = found_plain(grid, diff, hi, refine)
+    else:
+        found = found_cut(grid, diff, e_cur, (hi, span, valid), scale, refine)
+    return _choose(grid, cost, lo, hi, found, (diff[:, 0] < 0.0).tolist())
 
 
 def _choose(
     grid: FloatArray,
     cost: FloatArray,
-    scan: _Scan,
     lo: FloatArray,
     hi: FloatArray,
-    bands: dict[int, tuple[float, float]],
-    found: list[list[float]],
-    crossed: NDArray[np.intp],
+    found: ScanFound,
     behind: list[bool],
 ) -> tuple[ShiftChoice, ...]:
     """Each gear change's quickest candidate (range start, range end, the crossings, the
     band's end), by the crossing time ``cost`` interpolated on its scan."""
     choices = []
-    for k, (start, limit, top, last, n) in enumerate(
+    for k, (start, limit, top, last, n, here) in enumerate(
         zip(
             lo.tolist(),
             hi.tolist(),
-            scan.top.tolist(),
-            scan.last.tolist(),
-            crossed.tolist(),
+            found.top,
+            found.last,
+            found.intersections,
+            found.crossings,
             strict=True,
         )
     ):
@@ -356,7 +249,7 @@ def _choose(
         if last == 0:  # the car cannot accelerate at the range's start
             choices.append(ShiftChoice(start, ShiftReason.DRAG_LIMIT, 0, None, False))
             continue
-        band, here = bands.get(k), found[k]
+        band = found.bands.get(k)
         candidates = [start, top, *here]
         if band is not None:
             candidates.append(band[1])

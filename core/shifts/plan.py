@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -16,6 +17,7 @@ from core.engine.curves import RPM_TO_RAD_S, CurveSource, TorqueCurve
 from core.errors import CurveError
 from core.notices import Notice
 from core.shifts.best import ShiftChoice, ShiftReason, best_shifts
+from core.shifts.overtake import force_crossings
 
 __all__ = ["ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan"]
 
@@ -248,55 +250,120 @@ def shift_plan(
     tables = gear_tables(curve, drivetrain, tire, rows, efficiency, converter)
     ratios = drivetrain.overall_ratios
     r = tire.rolling_radius_m
-    k_cur = ratios[:-1] * efficiency[:-1] / r
-    k_next = ratios[1:] * efficiency[1:] / r
+    force_per_torque = ratios * efficiency / r
+    if converter is None:
+        shifts = _clutch_shifts(curve, ratios, force_per_torque, r, limit, notes)
+    else:
+        shifts = _converter_shifts(curve, (ratios, force_per_torque, r), limit, converter, notes)
+    torque_rpm, power_rpm = curve.peak_torque_rpm(), curve.peak_power_rpm()
+    return ShiftPlan(
+        gears=tables,
+        shifts=shifts,
+        rev_limit_rpm=limit,
+        efficiency_applied=not chassis,
+        peak_torque_rpm=torque_rpm,
+        peak_power_rpm=power_rpm,
+        peak_torque_nm=curve.torque_scalar(torque_rpm),
+        peak_power_w=curve.torque_scalar(power_rpm) * power_rpm * RPM_TO_RAD_S,
+        notices=tuple(notes),
+    )
+
+
+def _clutch_shifts(
+    curve: TorqueCurve,
+    ratios: FloatArray,
+    force_per_torque: FloatArray,
+    r: float,
+    limit: float,
+    notes: list[Notice],
+) -> tuple[ShiftPoint, ...]:
+    """Every gear change without a torque converter (engine speed is gearbox input speed);
+    the notices of each appended to ``notes``. ``force_per_torque`` is each gear's wheel
+    force per unit engine torque [1/m], ``r`` the rolling radius [m]."""
     step = ratios[1:] / ratios[:-1]
-
-    def input_torque(gear: int, n: FloatArray) -> FloatArray:
-        if converter is None:
-            return curve.torque_at(n)
-        return converter_input(converter, curve, limit, gear, n).torque_nm
-
-    def one_torque(gear: int, n: float) -> float:
-        # without a converter the scalar path: the same arithmetic, none of the array setup
-        if converter is None:
-            return torque(n)
-        return float(input_torque(gear, np.array([n]))[0])
-
-    def engine_rpm(gear: int, n: float) -> float:
-        if converter is None:
-            return n
-        return float(converter_input(converter, curve, limit, gear, np.array([n])).engine_rpm[0])
+    k_cur, k_next = force_per_torque[:-1, None], force_per_torque[1:, None]
+    kc: list[float] = force_per_torque[:-1].tolist()
+    kn: list[float] = force_per_torque[1:].tolist()
+    qs: list[float] = step.tolist()
 
     def efforts(n: FloatArray) -> tuple[FloatArray, FloatArray]:
-        if converter is None:
-            return (
-                k_cur[:, None] * curve.torque_at(n),
-                k_next[:, None] * curve.torque_at(n * step[:, None]),
-            )
-        cur = np.stack([k_cur[k] * input_torque(k, n[k]) for k in range(step.size)])
-        nxt = np.stack([k_next[k] * input_torque(k + 1, n[k] * step[k]) for k in range(step.size)])
+        # both gears' torque in one compiled evaluation
+        both = curve.torque_fast(np.concatenate((n, n * step[:, None])))
+        cur, nxt = both[: step.size], both[step.size :]
+        cur *= k_cur
+        nxt *= k_next
         return cur, nxt
 
+    choices = best_shifts(
+        efforts,
+        None,
+        curve.rpm_min / step,
+        np.full(step.size, limit),
+        cell_crossings=functools.partial(force_crossings, curve, kc, kn, qs),
+    )
+    torque = curve.torque_scalar
+    shifts = []
+    for i, (choice, g1, q) in enumerate(zip(choices, ratios.tolist(), qs, strict=False)):
+        n = choice.shift_rpm
+        after = n * q
+        notes.extend(_choice_notices(i + 1, choice, after, curve.rpm_min))
+        shifts.append(
+            ShiftPoint(
+                from_gear=i + 1,
+                to_gear=i + 2,
+                shift_rpm=n,
+                shift_speed_m_s=n * RPM_TO_RAD_S * r / g1,
+                rpm_after=after,
+                rpm_drop=n - after,
+                reason=choice.reason,
+                force_before_n=kc[i] * torque(n),
+                force_after_n=kn[i] * torque(after),
+                crossings=choice.crossings,
+                coincident_rpm=choice.coincident_rpm,
+                intersections=choice.intersections,
+                overtake_rpm=choice.overtake_rpm,
+            )
+        )
+    return tuple(shifts)
+
+
+def _converter_shifts(
+    curve: TorqueCurve,
+    gearing: tuple[FloatArray, FloatArray, float],
+    limit: float,
+    converter: ConverterDrive,
+    notes: list[Notice],
+) -> tuple[ShiftPoint, ...]:
+    """Every gear change with a torque converter, found in gearbox input (turbine) speed
+    and reported in engine speed; the notices of each appended to ``notes``. ``gearing``
+    holds the overall ratios, each gear's wheel force per unit input torque [1/m] and the
+    rolling radius [m]."""
+    ratios, force_per_torque, r = gearing
+    k_cur, k_next = force_per_torque[:-1], force_per_torque[1:]
+    step = ratios[1:] / ratios[:-1]
+
+    def drive(gear: int, n: float) -> tuple[float, float]:
+        """Input torque [N*m] and engine speed [rpm] at turbine speed ``n`` [rpm]."""
+        got = converter_input(converter, curve, limit, gear, np.array([n]))
+        return float(got.torque_nm[0]), float(got.engine_rpm[0])
+
+    def efforts(n: FloatArray) -> tuple[FloatArray, FloatArray]:
+        def torque(gear: int, n: FloatArray) -> FloatArray:
+            return converter_input(converter, curve, limit, gear, n).torque_nm
+
+        cur = np.stack([k_cur[k] * torque(k, n[k]) for k in range(step.size)])
+        nxt = np.stack([k_next[k] * torque(k + 1, n[k] * step[k]) for k in range(step.size)])
+        return cur, nxt
+
+    choices = best_shifts(efforts, None, curve.rpm_min / step, np.full(step.size, limit))
     kc: list[float] = k_cur.tolist()
     kn: list[float] = k_next.tolist()
-    qs: list[float] = step.tolist()
-    torque = curve.torque_scalar
-
-    def diff_scalar(k: int, n: float) -> float:
-        return kc[k] * torque(n) - kn[k] * torque(n * qs[k])
-
-    low = curve.rpm_min / step
-    choices = best_shifts(
-        efforts, diff_scalar if converter is None else None, low, np.full(step.size, limit)
-    )
     shifts = []
-    for i, choice in enumerate(choices):
-        g1 = float(ratios[i])
-        q = qs[i]
+    pairs = zip(choices, ratios.tolist(), step.tolist(), strict=False)
+    for i, (choice, g1, q) in enumerate(pairs):
         turbine = choice.shift_rpm
-        n_s = engine_rpm(i, turbine)
-        after = engine_rpm(i + 1, turbine * q)
+        before, n_s = drive(i, turbine)
+        after_torque, after = drive(i + 1, turbine * q)
         notes.extend(_choice_notices(i + 1, choice, after, curve.rpm_min))
         shifts.append(
             ShiftPoint(
@@ -307,23 +374,12 @@ def shift_plan(
                 rpm_after=after,
                 rpm_drop=n_s - after,
                 reason=choice.reason,
-                force_before_n=kc[i] * one_torque(i, turbine),
-                force_after_n=kn[i] * one_torque(i + 1, turbine * q),
+                force_before_n=kc[i] * before,
+                force_after_n=kn[i] * after_torque,
                 crossings=choice.crossings,
                 coincident_rpm=choice.coincident_rpm,
                 intersections=choice.intersections,
-                overtake_rpm=tuple(engine_rpm(i, x) for x in choice.overtake_rpm),
+                overtake_rpm=tuple(drive(i, x)[1] for x in choice.overtake_rpm),
             )
         )
-    torque_rpm, power_rpm = curve.peak_torque_rpm(), curve.peak_power_rpm()
-    return ShiftPlan(
-        gears=tables,
-        shifts=tuple(shifts),
-        rev_limit_rpm=limit,
-        efficiency_applied=not chassis,
-        peak_torque_rpm=torque_rpm,
-        peak_power_rpm=power_rpm,
-        peak_torque_nm=curve.torque_scalar(torque_rpm),
-        peak_power_w=curve.torque_scalar(power_rpm) * power_rpm * RPM_TO_RAD_S,
-        notices=tuple(notes),
-    )
+    return tuple(shifts)

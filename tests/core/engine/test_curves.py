@@ -108,3 +108,34 @@ def test_pchip_fill_matches_scipy_pchip_interpolator(torque: list[float]) -> Non
     expected = np.maximum(PchipInterpolator(rpm, torque)(fine), 0.0)
     assert_allclose(curve.torque_at(fine), expected, rtol=1e-12, atol=1e-9)
     assert_allclose([curve.torque_scalar(n) for n in fine[::50]], expected[::50], rtol=1e-12)
+
+
+@pytest.mark.parametrize(
+    "interpolation",
+    [
+        pytest.param(Interpolation.PCHIP, id="pchip"),
+        pytest.param(Interpolation.LINEAR, id="linear"),
+    ],
+)
+def test_compiled_torque_equals_torque_at_to_rounding(interpolation: Interpolation) -> None:
+    # the same pieces summed by powers instead of nested: equal to a few units in the
+    # last place, any shape, clipped outside the curve (invented random curve)
+    rng = np.random.default_rng(3)
+    rpm = np.unique(np.round(rng.uniform(800.0, 9000.0, 40)))
+    curve = torque_curve_from_torque(
+        rpm, rng.uniform(50.0, 500.0, rpm.size), interpolation=interpolation
+    )
+    n = rng.uniform(500.0, 9500.0, (3, 200))
+    assert_allclose(curve.torque_fast(n), curve.torque_at(n.ravel()).reshape(n.shape), rtol=1e-13)
+    assert curve.torque_fast(n).min() >= 0.0
+
+
+def test_pieces_give_torque_scalar_by_nested_sum() -> None:
+    # the pieces are the fill itself: evaluated as documented they give torque_scalar
+    curve = torque_curve_from_torque(RPM, TORQUE)
+    xs, coef = curve.pieces
+    for n in np.linspace(1000.0, 4999.0, 37).tolist():
+        i = min(int(np.searchsorted(xs, n, side="right")) - 1, len(xs) - 2)
+        c0, c1, c2, c3 = coef[i]
+        dx = n - xs[i]
+        assert ((c0 * dx + c1) * dx + c2) * dx + c3 == curve.torque_scalar(n)
