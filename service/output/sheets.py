@@ -56,7 +56,11 @@ def printable_line(line: str) -> str:
 
 
 def printable(lines: Iterable[str]) -> str:
-    """Lines joined into a sheet, each made printable."""
+    """Lines joined into a sheet, each made printable (lines of ASCII only are already:
+    they are only cut and stripped)."""
+    lines = list(lines)
+    if all(line.isascii() for line in lines):
+        return "\n".join(line[:WIDTH].rstrip() for line in lines)
     return "\n".join(printable_line(line) for line in lines)
 
 
