@@ -3,12 +3,14 @@ on the common path, with FastAPI's own handling for everything else.
 
 A calculation endpoint's signature is a request model and the ``JsonBody`` check
 (``create_shift_plan(body: ShiftPlanRequest, _json: JsonBody)``). For such a route FastAPI
-would, on every request, parse the JSON with the standard library, solve the dependency
-graph and validate the parsed body through a type adapter. ``JsonBodyRoute`` answers a
-request whose ``Content-Type`` declares JSON and whose body parses and validates by calling
-the endpoint with the validated model at once. Any other request (no or another content
-type, an empty body, a body that does not parse or validate) goes through FastAPI's handler
-unchanged, so every refusal, problem document and message is the one FastAPI's path gives:
+would, on every request, build a request object and two exit stacks, parse the JSON with
+the standard library, solve the dependency graph and validate the parsed body through a
+type adapter. ``JsonBodyRoute`` answers a request whose ``Content-Type`` declares JSON and
+whose body parses and validates by calling the endpoint with the validated model at once
+and sending its response; an error the endpoint raises goes up to the application's
+exception middleware, which holds the same handlers FastAPI's route would use. Any other
+request (no or another content type, an empty body, a body that does not parse or validate)
+goes through FastAPI's handler unchanged, with the body replayed, so every refusal, problem document and message is the one FastAPI's path gives:
 the quick path only ever answers what that path would accept, and the validation is the same
 model validation of the same parsed document (orjson and the standard library read the same
 numbers, strings and objects from every body orjson accepts; one orjson refuses goes the
@@ -19,9 +21,10 @@ change.
 
 from __future__ import annotations
 
+import functools
 import inspect
 import typing
-from collections.abc import Callable, Coroutine
+from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any
 
@@ -29,14 +32,13 @@ import orjson
 from fastapi.dependencies.models import Dependant
 from fastapi.routing import APIRoute
 from pydantic import BaseModel
-from starlette.requests import Request
 from starlette.responses import Response
+from starlette.types import ASGIApp, Receive, Scope, Send
 
+from service.http.body import no_body, read_body, replayed
 from service.http.deps import declares_json, require_json_body
 
 __all__ = ["JsonBodyRoute", "quick_body"]
-
-Handler = Callable[[Request], Coroutine[Any, Any, Response]]
 
 
 @dataclass(frozen=True)
@@ -102,29 +104,53 @@ def _answers_response(call: Callable[..., Any]) -> bool:
     return isinstance(answer, type) and issubclass(answer, Response)
 
 
-class JsonBodyRoute(APIRoute):
-    """An API route whose JSON-body endpoints skip FastAPI's per-request dependency
-    solving on the common path (see the module docstring)."""
+def _declares_json(scope: Scope) -> bool:
+    """Whether the request's first ``Content-Type`` (as Starlette's headers read it)
+    declares JSON."""
+    for name, value in scope["headers"]:
+        if name == b"content-type":
+            declared = value.decode("latin-1")
+            return bool(declared) and declares_json(declared)
+    return False
 
-    def get_route_handler(self) -> Handler:
-        full = super().get_route_handler()
+
+class JsonBodyRoute(APIRoute):
+    """An API route whose JSON-body endpoint is called at once with the validated model on
+    the common path (see the module docstring).
+
+    Such a request skips FastAPI's request object, exit stacks and per-route exception
+    wrapper as well: an error raised by the endpoint goes up to the application's exception
+    middleware, whose handlers are the same ones.
+    """
+
+    def __init__(self, path: str, endpoint: Callable[..., Any], **kwargs: Any) -> None:
+        super().__init__(path, endpoint, **kwargs)
+        self._quick = self._quick_app()
+
+    def _quick_app(self) -> ASGIApp | None:
         call = self.endpoint
         quick = quick_body(self.dependant)
-        if quick is None or not _answers_response(call):
-            return full
+        if quick is None or self.max_body_size is not None or not _answers_response(call):
+            return None
         model, body_name = quick.model, quick.body_name
         checks = dict.fromkeys(quick.check_names)
+        full = functools.partial(APIRoute.handle, self)
 
-        async def handler(request: Request) -> Response:
-            declared = request.headers.get("content-type")
-            if declared and declares_json(declared):
-                raw = await request.body()
+        async def app(scope: Scope, receive: Receive, send: Send) -> None:
+            if _declares_json(scope):
+                raw = await read_body(receive)
                 body = _validated(model, raw) if raw else None
                 if body is not None:
                     response = await call(**{body_name: body}, **checks)
-                    if not isinstance(response, Response):  # pragma: no cover - annotated
-                        raise TypeError(f"{call.__name__} answered {type(response)}")
-                    return response
-            return await full(request)
+                    await response(scope, receive, send)
+                    return
+                receive = no_body if raw is None else replayed(raw)
+            await full(scope, receive, send)
 
-        return handler
+        return app
+
+    async def handle(self, scope: Scope, receive: Receive, send: Send) -> None:
+        if self._quick is not None and scope["method"] in (self.methods or ()):
+            await self._quick(scope, receive, send)
+            return
+        await super().handle(scope, receive, send)

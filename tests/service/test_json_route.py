@@ -50,6 +50,8 @@ def _raw_cases() -> list[Any]:
     huge_tire["drivetrain"]["tire"] = {"diameter": 400.0}
     no_drivetrain = load_demo("demo_coupe_us")
     del no_drivetrain["drivetrain"]
+    ascending = load_demo("demo_coupe_us")  # valid to the schema, refused by core
+    ascending["drivetrain"]["gear_ratios"] = [1.0, 2.0, 3.0]
     json_type = "application/json"
     return [
         pytest.param(coupe, json_type, id="valid"),
@@ -61,6 +63,7 @@ def _raw_cases() -> list[Any]:
         pytest.param(json.dumps(bool_rpm), json_type, id="bool-in-number-list"),
         pytest.param(json.dumps(huge_tire), json_type, id="si-limit"),
         pytest.param(json.dumps(no_drivetrain), json_type, id="missing-field"),
+        pytest.param(json.dumps(ascending), json_type, id="core-error"),
         pytest.param(_coupe(wheelbase=2.7), json_type, id="unknown-field"),
         pytest.param(
             coupe.replace('"units": "us"', '"units": "us", "units": "metric"'),
