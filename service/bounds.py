@@ -62,19 +62,18 @@ def _unpack(annotation: Any) -> list[tuple[Any, tuple[Any, ...]]]:
 
 
 _Member = tuple[Any, tuple[Any, ...], Any, tuple[Any, ...]]
-_ORIGINS: dict[Any, list[_Member]] = {}
+_ORIGINS: dict[int, tuple[Any, list[_Member]]] = {}
 
 
 def _origins(annotation: Any) -> list[_Member]:
-    """:func:`_members` of an annotation, each with its origin and arguments (kept per
-    annotation, as the members are)."""
-    try:
-        return _ORIGINS[annotation]
-    except KeyError:
-        pass
-    except TypeError:  # an annotation that cannot be a key: work it out each time
-        return _with_origins(annotation)
-    found = _ORIGINS[annotation] = _with_origins(annotation)
+    """:func:`_members` of an annotation, each with its origin and arguments, kept per
+    annotation object (held with them, so its id is not reused): hashing a typing form
+    walks its metadata in Python."""
+    kept = _ORIGINS.get(id(annotation))
+    if kept is not None and kept[0] is annotation:
+        return kept[1]
+    found = _with_origins(annotation)
+    _ORIGINS[id(annotation)] = (annotation, found)
     return found
 
 
