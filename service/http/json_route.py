@@ -1,5 +1,5 @@
-"""Routes that take one JSON body: parsed once by orjson and validated by the request model
-on the common path, with FastAPI's own handling for everything else.
+"""Routes that take one JSON body: parsed once and validated by the request model on the
+common path, with FastAPI's own handling for everything else.
 
 A calculation endpoint's signature is a request model and the ``JsonBody`` check
 (``create_shift_plan(body: ShiftPlanRequest, _json: JsonBody)``). For such a route FastAPI
@@ -8,15 +8,19 @@ the standard library, solve the dependency graph and validate the parsed body th
 type adapter. ``JsonBodyRoute`` answers a request whose ``Content-Type`` declares JSON and
 whose body parses and validates by calling the endpoint with the validated model at once
 and sending its response; an error the endpoint raises goes up to the application's
-exception middleware, which holds the same handlers FastAPI's route would use. Any other
-request (no or another content type, an empty body, a body that does not parse or validate)
-goes through FastAPI's handler unchanged, with the body replayed, so every refusal, problem document and message is the one FastAPI's path gives:
-the quick path only ever answers what that path would accept, and the validation is the same
-model validation of the same parsed document (orjson and the standard library read the same
-numbers, strings and objects from every body orjson accepts; one orjson refuses goes the
-FastAPI way). Routes with any other parameter (a query, the request, a header) are left to
-FastAPI entirely. The OpenAPI document is built from the route as before, so it does not
-change.
+exception middleware, which holds the same handlers FastAPI's route would use.
+
+Any other request (no or another content type, an empty body, a body that does not parse
+or validate) goes through FastAPI's handler unchanged, with the body replayed, so every
+refusal, problem document and message is the one FastAPI's path gives: the quick path
+only ever answers what that path would accept, with the same model validation of the same
+parsed document. The body is parsed by pydantic-core's ``from_json``, which reads every
+number, string and object of a body it accepts as the standard library does (integers of
+any size exactly, floats correctly rounded, the last of repeated keys); a body it refuses
+(a lone surrogate escape, say) goes the FastAPI way.
+
+Routes with any other parameter (a query, the request, a header) are left to FastAPI
+entirely. The OpenAPI document is built from the route as before, so it does not change.
 """
 
 from __future__ import annotations
@@ -28,10 +32,10 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any
 
-import orjson
 from fastapi.dependencies.models import Dependant
 from fastapi.routing import APIRoute
 from pydantic import BaseModel
+from pydantic_core import from_json
 from starlette.responses import Response
 from starlette.types import ASGIApp, Receive, Scope, Send
 
@@ -87,7 +91,7 @@ def _validated(model: type[BaseModel], raw: bytes) -> BaseModel | None:
     """The body as the request model, or None when it does not parse or validate (the
     caller then takes FastAPI's path, which says why)."""
     try:
-        return model.model_validate(orjson.loads(raw))
+        return model.model_validate(from_json(raw))
     except Exception:
         return None
 

@@ -5,7 +5,9 @@ from __future__ import annotations
 import json
 from typing import Any
 
+import numpy as np
 import pytest
+from pydantic_core import from_json
 
 from service.app import app
 from service.http import json_route
@@ -119,3 +121,29 @@ def test_a_valid_json_body_is_validated_once_on_the_quick_path(
     )
     assert r.status_code == 200
     assert len(seen) == 1 and seen[0] is not None
+
+
+def _numbers() -> list[str]:
+    """Invented numbers: integers up to far past 64 bits, decimals, exponents to both
+    ends of the double range."""
+    rng = np.random.default_rng(12)
+    out = []
+    for _ in range(20000):
+        digits = "".join(map(str, rng.integers(0, 10, size=int(rng.integers(1, 26)))))
+        text = str(rng.integers(1, 10)) + digits
+        if rng.random() < 0.6:
+            cut = int(rng.integers(1, len(text) + 1))
+            text = text[:cut] + "." + (text[cut:] or "0")
+        if rng.random() < 0.3:
+            text += f"e{int(rng.integers(-330, 330))}"
+        out.append(("-" if rng.random() < 0.5 else "") + text)
+    return out
+
+
+def test_the_quick_parse_reads_every_number_as_the_standard_library_does() -> None:
+    # reference: Python's json module, the parser of FastAPI's own path; the quick path
+    # parses with pydantic-core's from_json
+    for text in _numbers():
+        expected = json.loads(text)
+        got = from_json(text.encode())
+        assert (type(got), repr(got)) == (type(expected), repr(expected)), text
