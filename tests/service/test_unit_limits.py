@@ -243,7 +243,8 @@ def test_a_limited_list_reaching_its_limits_flags_what_the_one_value_check_flags
         at = limits._from_si(limit_si, unit, system)
         for edge in (at, np.nextafter(at, toward), np.nextafter(np.nextafter(at, toward), toward)):
             values = [float(inside), float(edge), float(inside)]
-            instance = model.model_construct(**{name: values})
+            given: dict[str, Any] = {name: values}
+            instance = model.model_construct(**given)
             found = [e["field"] for e in bound_violations(instance, system)]
             expected = [
                 f"{name}[{i}]" for i, v in enumerate(values) if limits.problem(v, instance, system)
