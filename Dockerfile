@@ -14,10 +14,11 @@ RUN python -c "import tomllib; print('\n'.join(tomllib.load(open('pyproject.toml
  && /opt/venv/bin/pip install -c constraints.txt -r requirements.txt
 
 # Stage 2: the runtime, no build tools, no pip cache, code byte-compiled at build time so a
-# read-only root filesystem costs nothing at start.
+# read-only root filesystem costs nothing at start. Containers share the host's CPUs and
+# cannot see each other's CPU claims, so workers are not pinned to one CPU each here.
 FROM python:3.11-slim-bookworm
 ENV PYTHONDONTWRITEBYTECODE=1 PYTHONUNBUFFERED=1 PATH=/opt/venv/bin:$PATH \
-    GEARWORK_HOST=0.0.0.0 GEARWORK_PORT=8000 GEARWORK_WORKERS=2 \
+    GEARWORK_HOST=0.0.0.0 GEARWORK_PORT=8000 GEARWORK_WORKERS=2 GEARWORK_PIN_CPU=false \
     PROMETHEUS_MULTIPROC_DIR=/tmp/metrics MPLBACKEND=Agg MPLCONFIGDIR=/tmp/matplotlib
 RUN groupadd --system --gid 10001 gearwork \
  && useradd --system --uid 10001 --gid 10001 --no-create-home --shell /usr/sbin/nologin gearwork

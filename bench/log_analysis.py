@@ -10,6 +10,7 @@ from __future__ import annotations
 import asyncio
 import itertools
 import json
+import os
 from pathlib import Path
 from typing import Any
 
@@ -31,6 +32,7 @@ _calls = itertools.count()
 def _request(body: dict[str, Any], url: str) -> httpx.Response:
     """One POST through the ASGI app; a fresh reference each time keeps the result cache
     from answering (it keys on the body)."""
+    os.environ.setdefault("GEARWORK_REQUEST_LOG", "false")  # no access log lines in the figures
     from service.app import app
 
     fresh = {**body, "reference": f"BENCH-{next(_calls)}"}

@@ -1,13 +1,14 @@
 """Probes while the worker is saturated: /healthz latency with every calculation slot busy.
 
-    python -m bench.saturation [--seconds 20] [--clients 12] [--slots 0,1,2,4]
+    python -m bench.saturation [--seconds 20] [--clients 12] [--slots 0,1,2,4] [--pin true]
 
 For each slot count (``GEARWORK_CALC_SLOTS``; 0 computes on the event loop, as before the
 slots existed) it serves ``python -m service`` with one worker, keeps ``--clients``
 connections posting the heaviest admissible requests (the PDF and HTML reports of the
 largest optimised acceleration run, and the largest optimised run itself; the reference
 varies so the cache never answers), and meanwhile opens a new connection to GET /healthz
-every 50 ms, as a kubelet probe does. It prints the probe's p50, p99 and max latency, the
+every 50 ms, as a kubelet probe does (``--pin true,false`` adds rows with the worker left
+unpinned, ``GEARWORK_PIN_CPU``). It prints the probe's p50, p99 and max latency, the
 calculations answered per second and their statuses. The target (issue 11): /healthz p99
 under 100 ms and max under 500 ms. Figures are printed, never asserted: the machine is
 shared, and the load generator runs on the same cores as the server.
@@ -112,17 +113,20 @@ def main(argv: list[str] | None = None) -> None:
     parser.add_argument("--seconds", type=float, default=20)
     parser.add_argument("--clients", type=int, default=12)
     parser.add_argument("--slots", default="0,1,2,4", help="comma-separated slot counts")
+    parser.add_argument("--pin", default="true", help="GEARWORK_PIN_CPU values, comma-separated")
     args = parser.parse_args(argv)
     print(
         f"gearwork saturation: 1 worker, {args.clients} clients posting the heaviest "
         f"requests for {args.seconds:g} s; /healthz probed on a new connection every 50 ms"
     )
     print(
-        f"{'slots':>5s} {'probes':>7s} {'p50 ms':>8s} {'p99 ms':>8s} {'max ms':>8s} "
+        f"{'slots':>5s} {'pin':>5s} {'probes':>7s} {'p50 ms':>8s} {'p99 ms':>8s} {'max ms':>8s} "
         f"{'calc/s':>7s}  statuses"
     )
-    for slots in [int(s) for s in args.slots.split(",")]:
+    runs = [(int(s), p) for s in args.slots.split(",") for p in args.pin.split(",")]
+    for slots, pin in runs:
         env = {
+            "GEARWORK_PIN_CPU": pin,
             "GEARWORK_REQUEST_LOG": "false",
             "GEARWORK_CALC_SLOTS": str(slots),
             "GEARWORK_WAIT_BUDGET_S": "10",
@@ -140,7 +144,8 @@ def main(argv: list[str] | None = None) -> None:
             probes, statuses, answered = saturate(port, args.seconds, args.clients)
         ms = np.array(probes) * 1e3
         print(
-            f"{slots:5d} {len(ms):7d} {np.percentile(ms, 50):8.1f} {np.percentile(ms, 99):8.1f} "
+            f"{slots:5d} {pin:>5s} {len(ms):7d} {np.percentile(ms, 50):8.1f} "
+            f"{np.percentile(ms, 99):8.1f} "
             f"{ms.max():8.1f} {answered / args.seconds:7.1f}  "
             + ", ".join(f"{k}: {v}" for k, v in sorted(statuses.items()))
         )

@@ -195,8 +195,9 @@ def _served(body: dict[str, Any]) -> None:
     """Throughput served by uvicorn with one and two workers, against /healthz."""
     fresh = json.dumps({**body, "reference": f"BENCH-{VARY}"}).encode()
     same = json.dumps({**body, "reference": "BENCH"}).encode()
-    for workers in (1, 2):
-        with serve(workers) as server:
+    # one worker pinned to a CPU (the default), the same unpinned, two workers pinned
+    for workers, pin in ((1, "true"), (1, "false"), (2, "true")):
+        with serve(workers, {"GEARWORK_PIN_CPU": pin}) as server:
             base = server.base
             median_wrk({"warm": (base + "/v1/shift-plan", fresh)}, repeats=1, seconds=1)
             got = median_wrk(
@@ -210,7 +211,9 @@ def _served(body: dict[str, Any]) -> None:
             )
         health, plan, cached = got["health"], got["plan"], got["cached"]
         print(
-            f"served by uvicorn, {workers} worker(s); wrk 1 thread, 16 connections, "
+            f"served by uvicorn, {workers} worker(s), "
+            f"{'each kept on one CPU' if pin == 'true' else 'unpinned'}; "
+            "wrk 1 thread, 16 connections, "
             f"3 s x {SERVED_REPEATS} interleaved repeats, medians; CPU: the server's "
             "processes only, per answered request"
         )

@@ -12,6 +12,7 @@ from typing import Any
 from fastapi import FastAPI
 
 from service.http.admission import Admission, AdmissionGate, CalculationSlots
+from service.http.affinity import pin_worker
 from service.http.cache import ResultCache
 from service.http.compression import OffLoopGZip
 from service.http.docs import install_docs
@@ -174,6 +175,8 @@ def create_app() -> FastAPI:
     @contextlib.asynccontextmanager
     async def lifespan(_: FastAPI) -> AsyncIterator[None]:
         _drain_on_signals(admission)  # the server has installed its handlers by now
+        if settings.pin_cpu:
+            pin_worker()
         yield
 
     app = FastAPI(

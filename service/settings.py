@@ -51,6 +51,12 @@ class Settings(BaseSettings):
         description="How often a computing thread hands the interpreter lock to the event "
         "loop [s] (Python's default is 0.005; 0.001 measured best: README, Scaling out).",
     )
+    pin_cpu: bool = Field(
+        True,
+        description="Keep each worker process on one CPU of its own (Linux): its event loop "
+        "and calculation threads share one interpreter lock, and a lock handed between "
+        "CPUs costs about twice the CPU time (README, Scaling out).",
+    )
     queue_limit: int = Field(
         16,
         ge=0,
