@@ -11,6 +11,7 @@ often than a short one, which wall-clock ratios would count against it.
 from __future__ import annotations
 
 import asyncio
+import inspect
 import json
 import statistics
 import time
@@ -32,6 +33,8 @@ __all__ = [
     "DATA",
     "Timing",
     "app_cpu_per_request",
+    "asgi_call",
+    "async_side_by_side",
     "demo_drive_model",
     "demo_log",
     "healthz_call",
@@ -153,7 +156,7 @@ def _asgi_scope(path: str, body: bytes | None) -> dict[str, Any]:
     }
 
 
-async def _asgi_call(app: Any, path: str, body: bytes | None) -> None:
+async def asgi_call(app: Any, path: str, body: bytes | None) -> None:
     """One request through ``app``, the answer dropped; anything but a 200 stops the run."""
     sent = False
 
@@ -195,9 +198,32 @@ def app_cpu_per_request(
                         if bodies is not None:
                             body = bodies[counters[name] % len(bodies)]
                             counters[name] += 1
-                        await _asgi_call(app, path, body)
+                        await asgi_call(app, path, body)
                     if not warm:
                         per[name].append((time.process_time() - t0) / calls)
+        return {k: float(np.median(v)) for k, v in per.items()}
+
+    return asyncio.run(run())
+
+
+def async_side_by_side(
+    cases: dict[str, Callable[[], object]], *, rounds: int = 15, calls: int = 40
+) -> dict[str, float]:
+    """CPU seconds per call of each case, interleaved round by round on one event loop: a
+    case's call may return an awaitable, which is awaited inside its timing. The figure is
+    the median over the rounds of each round's mean (one untimed round first)."""
+
+    async def run() -> dict[str, float]:
+        per: dict[str, list[float]] = {k: [] for k in cases}
+        for r in range(rounds + 1):
+            for name, fn in cases.items():
+                t0 = time.process_time()
+                for _ in range(calls):
+                    got = fn()
+                    if inspect.isawaitable(got):
+                        await got
+                if r > 0:
+                    per[name].append((time.process_time() - t0) / calls)
         return {k: float(np.median(v)) for k, v in per.items()}
 
     return asyncio.run(run())

@@ -17,7 +17,14 @@ from typing import Any
 import numpy as np
 import orjson
 
-from bench.common import app_cpu_per_request, demo_drive_model, ratio_line, time_call
+from bench.common import (
+    app_cpu_per_request,
+    asgi_call,
+    async_side_by_side,
+    demo_drive_model,
+    ratio_line,
+    time_call,
+)
 from bench.server import VARY, median_wrk, serve, server_cpu
 from core import (
     Drivetrain,
@@ -162,6 +169,54 @@ def _app_cpu(body: dict[str, Any]) -> None:
     )
 
 
+def _outside_core(body: dict[str, Any]) -> None:
+    """What a computed shift plan costs beyond the core plan, side by side in one run: the
+    core plan of the request's own curve, drivetrain and tire; the handler (validate the
+    parsed body, compute, document, summary, orjson); the whole app from the body's bytes."""
+    from service.app import app
+    from service.mapping.inputs import build_curve, build_drivetrain, build_tire
+    from service.routes.shift_plan import create_shift_plan
+
+    request = ShiftPlanRequest.model_validate(body)
+    units, engine = request.units, request.engine
+    curve = build_curve(engine.curve, units)
+    drivetrain = build_drivetrain(request.drivetrain)
+    tire = build_tire(request.drivetrain.tire, units)
+    fresh = [json.dumps({**body, "reference": f"OUT-{i}"}).encode() for i in range(20000)]
+    count = iter(range(10**9))
+
+    def app_call() -> object:
+        return asgi_call(app, "/v1/shift-plan", fresh[next(count) % len(fresh)])
+
+    cpu = async_side_by_side(
+        {
+            "core": lambda: shift_plan(
+                curve, drivetrain, tire, rev_limit_rpm=engine.rev_limit_rpm
+            ),
+            "handler": lambda: create_shift_plan(ShiftPlanRequest.model_validate(body), None),
+            "app": app_call,
+        }
+    )
+    core, handler, whole = cpu["core"], cpu["handler"], cpu["app"]
+    print(
+        "outside the core: CPU per computed shift plan, interleaved side by side, medians "
+        "of 15 rounds of 40"
+    )
+    print(f"   core shift_plan (the request's own inputs)  {core * 1e3:8.3f} ms")
+    print(f"   handler (validate, compute, document, text) {handler * 1e3:8.3f} ms")
+    print(f"   whole app, computed (fresh bodies)          {whole * 1e3:8.3f} ms")
+    print(f"   handler minus core                          {(handler - core) * 1e3:8.3f} ms")
+    print(f"   app minus handler (middleware, routing)     {(whole - handler) * 1e3:8.3f} ms")
+    print(f"   app CPU per request minus core              {(whole - core) * 1e3:8.3f} ms")
+    print(
+        ratio_line(
+            "app CPU outside the core / core",
+            (whole - core) / core,
+            "none: the aim is <= 0.35 ms outside the core",
+        )
+    )
+
+
 def _served(body: dict[str, Any]) -> None:
     """Throughput served by uvicorn with one and two workers, against /healthz."""
     fresh = json.dumps({**body, "reference": f"BENCH-{VARY}"}).encode()
@@ -215,6 +270,7 @@ def main() -> None:
     _serialisation(body, car)
     _pchip(car[0])
     _app_cpu(body)
+    _outside_core(body)
     _served(body)
 
 

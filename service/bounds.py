@@ -1,196 +1,29 @@
 """Limits defined once in SI and checked after conversion from the caller's units.
 
-A request field that carries a unit is annotated with :class:`SiLimits` instead of pydantic's
-``ge``/``le``, so 5000 m is the same limit as 16404.1 ft and 110 kPa the same as 32.48 inHg.
-:func:`bound_violations` walks a validated request, converts every such value to SI with the
-request's ``units`` and names each offending field by its exact path (``run.extra_distances[2]``),
-quoting the limit in the caller's unit. Every other bound (ratios, shares, rpm, counts) is the
-same number in both systems and stays a plain pydantic constraint.
-
-In the OpenAPI document a limited number carries ``x-si-limits`` (the limits in SI), ``x-limits``
-(the same limits in each unit system) and, as ``minimum``/``maximum``, the loosest of them, so
-a generator or a fuzzer knows the envelope.
+A request field that carries a unit is annotated with :class:`SiLimits` (from
+:mod:`service.si_limits`) instead of pydantic's ``ge``/``le``, so 5000 m is the same limit
+as 16404.1 ft and 110 kPa the same as 32.48 inHg. :func:`bound_violations` walks a validated
+request, converts every such value to SI with the request's ``units`` and names each
+offending field by its exact path (``run.extra_distances[2]``), quoting the limit in the
+caller's unit. Every other bound (ratios, shares, rpm, counts) is the same number in both
+systems and stays a plain pydantic constraint.
 """
 
 from __future__ import annotations
 
-import functools
-import math
 import types
 import typing
-from collections.abc import Callable, Iterator
-from dataclasses import dataclass
+from collections.abc import Iterator
 from typing import Any
 
 import numpy as np
-from pydantic import BaseModel, GetJsonSchemaHandler
-from pydantic.json_schema import JsonSchemaValue
-from pydantic_core import CoreSchema
+from pydantic import BaseModel
 
 from service.http.problems import ProblemError
-from service.units import (
-    NAMED_UNITS,
-    Quantity,
-    UnitSystem,
-    from_named,
-    si_label,
-    to_named,
-    to_si,
-    unit_label,
-)
-from service.units import from_si as _from_si
+from service.si_limits import SiLimits
+from service.units import UnitSystem
 
 __all__ = ["BoundsError", "SiLimits", "bound_violations", "check_bounds", "limited_fields"]
-
-_SIG = 6
-
-
-def _round_sig(x: float, direction: int) -> float:
-    """``x`` to six significant digits, rounded toward +inf (1) or -inf (-1)."""
-    x = float(f"{x:.12g}")  # drop conversion noise first: -39.99999999999997 is -40
-    if x == 0.0 or not math.isfinite(x):
-        return x
-    scale = 10.0 ** (_SIG - 1 - math.floor(math.log10(abs(x))))
-    y = (math.ceil if direction > 0 else math.floor)(x * scale) / scale
-    return float(f"{y:.{_SIG}g}")
-
-
-@dataclass(frozen=True)
-class SiLimits:
-    """A range in SI for a quantity given in the caller's units.
-
-    ``quantity`` converts by the request's unit system; a field whose sibling ``unit_field``
-    names its unit (a log channel) converts by that unit, or by the system's speed unit when
-    the sibling is null. ``si_unit`` labels a quantity outside :class:`Quantity`.
-    """
-
-    quantity: Quantity | None
-    gt: float | None = None
-    ge: float | None = None
-    lt: float | None = None
-    le: float | None = None
-    unit_field: str | None = None
-    choices: tuple[str, ...] = ()
-    si_unit: str = ""
-
-    def _quantity(self) -> Quantity:
-        if self.quantity is None:
-            raise TypeError("limits without a quantity need `unit_field` and `choices`")
-        return self.quantity
-
-    def _unit(self, model: BaseModel | None, units: UnitSystem) -> str:
-        named = (
-            None if model is None or self.unit_field is None else getattr(model, self.unit_field)
-        )
-        if named is not None:
-            return str(named)
-        if self.quantity is None:  # pragma: no cover - a named unit field has a default
-            return self.si_unit
-        return unit_label(self.quantity, units)
-
-    def _from_si(self, value: float, unit: str, units: UnitSystem) -> float:
-        if self.unit_field is not None and unit in NAMED_UNITS:
-            return to_named(value, unit)
-        return _from_si(value, self._quantity(), units)
-
-    def _to_si(self, value: float, unit: str, units: UnitSystem) -> float:
-        if self.unit_field is not None and unit in NAMED_UNITS:
-            return from_named(value, unit)
-        return to_si(value, self._quantity(), units)
-
-    def problem(self, value: float, model: BaseModel | None, units: UnitSystem) -> str | None:
-        """What is wrong with ``value`` (in the caller's unit), or None when it is inside."""
-        unit = self._unit(model, units)
-        si = self._to_si(value, unit, units)
-        got = f"got {value:g} {unit}"
-        for limit, above, strict in (
-            (self.gt, True, True),
-            (self.ge, True, False),
-            (self.lt, False, True),
-            (self.le, False, False),
-        ):
-            if limit is None:
-                continue
-            bad = (
-                (si <= limit if strict else si < limit)
-                if above
-                else (si >= limit if strict else si > limit)
-            )
-            if bad:
-                # the limit quoted is rounded inward, so the number quoted is itself accepted
-                shown = _round_sig(self._from_si(limit, unit, units), 1 if above else -1)
-                word = (
-                    ("above" if strict else "at least")
-                    if above
-                    else ("below" if strict else "at most")
-                )
-                return f"must be {word} {shown:g} {unit}, {got}"
-        return None
-
-    def _units_and_values(self) -> list[tuple[str, dict[str, float]]]:
-        """The limits in each unit the field may be given in."""
-        convert: list[tuple[str, Callable[[float], float]]]
-        if self.unit_field is not None:
-            convert = [(u, functools.partial(to_named, unit=u)) for u in self.choices]
-        else:
-            q = self._quantity()
-            convert = [
-                (unit_label(q, s), functools.partial(_from_si, quantity=q, system=s))
-                for s in UnitSystem
-            ]
-        out = []
-        for label, f in convert:
-            vals = {
-                k: float(f(v))
-                for k, v in (("gt", self.gt), ("ge", self.ge), ("lt", self.lt), ("le", self.le))
-                if v is not None
-            }
-            out.append((label, vals))
-        return out
-
-    def __get_pydantic_json_schema__(
-        self, core_schema: CoreSchema, handler: GetJsonSchemaHandler
-    ) -> JsonSchemaValue:
-        js = handler(core_schema)
-        target = js
-        for branch in js.get("anyOf", ()):
-            if branch.get("type") in {"number", "integer"}:
-                target = branch
-        per_unit = self._units_and_values()
-        low = [
-            (v.get("gt", v.get("ge")), "gt" in v) for _, v in per_unit if v.keys() & {"gt", "ge"}
-        ]
-        high = [
-            (v.get("lt", v.get("le")), "lt" in v) for _, v in per_unit if v.keys() & {"lt", "le"}
-        ]
-        if low:
-            value, strict = min(low, key=lambda t: t[0] or 0.0)
-            target["exclusiveMinimum" if strict else "minimum"] = _round_sig(float(value or 0), -1)
-        if high:
-            value, strict = max(high, key=lambda t: t[0] or 0.0)
-            target["exclusiveMaximum" if strict else "maximum"] = _round_sig(float(value or 0), 1)
-        si_unit = si_label(self.quantity) if self.quantity is not None else self.si_unit
-        si = {
-            k: v for k, v in (("gt", self.gt), ("ge", self.ge), ("lt", self.lt), ("le", self.le))
-        }
-        target["x-si-limits"] = {"unit": si_unit, **{k: v for k, v in si.items() if v is not None}}
-        target["x-limits"] = {label: _describe(vals, label) for label, vals in per_unit}
-        return js
-
-
-def _describe(vals: dict[str, float], unit: str) -> str:
-    """``0 < x <= 16404.1 ft`` from the limits in one unit."""
-    parts = []
-    if "gt" in vals:
-        parts.append(f"{_round_sig(vals['gt'], 1):g} <")
-    elif "ge" in vals:
-        parts.append(f"{_round_sig(vals['ge'], 1):g} <=")
-    parts.append("x")
-    if "lt" in vals:
-        parts.append(f"< {_round_sig(vals['lt'], -1):g}")
-    elif "le" in vals:
-        parts.append(f"<= {_round_sig(vals['le'], -1):g}")
-    return " ".join(parts) + f" {unit}"
 
 
 class BoundsError(ProblemError):
@@ -228,21 +61,46 @@ def _unpack(annotation: Any) -> list[tuple[Any, tuple[Any, ...]]]:
     return [(annotation, ())]
 
 
-def _pick(value: Any, annotation: Any) -> tuple[Any, tuple[Any, ...]]:
-    """The member of ``annotation`` that ``value`` was validated as."""
-    for ann, meta in _members(annotation):
-        origin = typing.get_origin(ann) or ann
-        if isinstance(value, BaseModel) and isinstance(origin, type) and isinstance(value, origin):
-            return ann, meta
-        if isinstance(value, list | tuple) and origin in {list, tuple}:
-            return ann, meta
-        if (
-            isinstance(value, int | float)
-            and not isinstance(value, bool)
-            and origin in {float, int}
-        ):
-            return ann, meta
-    return None, ()
+_Member = tuple[Any, tuple[Any, ...], Any, tuple[Any, ...]]
+_ORIGINS: dict[int, tuple[Any, list[_Member]]] = {}
+
+
+def _origins(annotation: Any) -> list[_Member]:
+    """:func:`_members` of an annotation, each with its origin and arguments, kept per
+    annotation object (held with them, so its id is not reused): hashing a typing form
+    walks its metadata in Python."""
+    kept = _ORIGINS.get(id(annotation))
+    if kept is not None and kept[0] is annotation:
+        return kept[1]
+    found = _with_origins(annotation)
+    _ORIGINS[id(annotation)] = (annotation, found)
+    return found
+
+
+def _with_origins(annotation: Any) -> list[_Member]:
+    return [
+        (ann, meta, typing.get_origin(ann) or ann, typing.get_args(ann))
+        for ann, meta in _members(annotation)
+    ]
+
+
+def _pick(value: Any, annotation: Any) -> _Member:
+    """The member of ``annotation`` that ``value`` was validated as, with its origin and
+    arguments."""
+    if isinstance(value, BaseModel):
+        for member in _origins(annotation):
+            origin = member[2]
+            if isinstance(origin, type) and isinstance(value, origin):
+                return member
+    elif isinstance(value, list | tuple):
+        for member in _origins(annotation):
+            if member[2] in {list, tuple}:
+                return member
+    elif isinstance(value, int | float) and not isinstance(value, bool):
+        for member in _origins(annotation):
+            if member[2] in {float, int}:
+                return member
+    return None, (), None, ()
 
 
 def _scan(
@@ -253,16 +111,15 @@ def _scan(
     model: BaseModel,
     units: UnitSystem,
 ) -> Iterator[dict[str, str]]:
-    ann, meta = _pick(value, annotation)
+    _, meta, origin, args = _pick(value, annotation)
     if isinstance(value, BaseModel):
         yield from _walk(value, path, units)
     elif isinstance(value, list | tuple):
-        args = typing.get_args(ann)
-        if typing.get_origin(ann) is list and args and _all_numbers(value):
+        if origin is list and args and _all_numbers(value):
             yield from _scan_numbers(value, args[0], path, model, units)
             return
         for i, item in enumerate(value):
-            item_ann = args[0] if typing.get_origin(ann) is list or len(args) <= i else args[i]
+            item_ann = args[0] if origin is list or len(args) <= i else args[i]
             yield from _scan(item, item_ann, (), f"{path}[{i}]", model, units)
     elif isinstance(value, int | float) and not isinstance(value, bool):
         for limits in (*metadata, *meta):
@@ -288,10 +145,11 @@ def _scan_numbers(
     """:func:`_scan` of a list of plain numbers, every item at once: the items are
     converted to SI as one array (the same multiply and add as one at a time, so the same
     numbers) and only an item found outside a limit is looked at on its own, for its
-    message."""
-    _, meta = _pick(0.0, annotation)
+    message. When the least and the greatest item are inside every limit, all are (the
+    conversion to SI never decreases with the value), and nothing more is looked at."""
+    _, meta, _, _ = _pick(0.0, annotation)
     limits = [m for m in meta if isinstance(m, SiLimits)]
-    if not limits:
+    if not limits or _extremes_inside(values, limits, model, units):
         return
     raw = np.asarray(values, dtype=np.float64)
     flagged = np.zeros(raw.shape, dtype=bool)
@@ -309,6 +167,31 @@ def _scan_numbers(
                 flagged |= bad(si, limit)
     for i in np.flatnonzero(flagged).tolist():
         yield from _scan(values[i], annotation, (), f"{path}[{i}]", model, units)
+
+
+def _extremes_inside(
+    values: list[Any] | tuple[Any, ...],
+    limits: list[SiLimits],
+    model: BaseModel,
+    units: UnitSystem,
+) -> bool:
+    """Whether the least and the greatest of plain numbers are inside every limit, in SI
+    (False also when they cannot be told so: the items are then looked at one by one)."""
+    try:
+        low, high = float(min(values)), float(max(values))
+        for lim in limits:
+            unit = lim._unit(model, units)
+            si_low, si_high = lim._to_si(low, unit, units), lim._to_si(high, unit, units)
+            if (
+                (lim.gt is not None and si_low <= lim.gt)
+                or (lim.ge is not None and si_low < lim.ge)
+                or (lim.lt is not None and si_high >= lim.lt)
+                or (lim.le is not None and si_high > lim.le)
+            ):
+                return False
+    except (ArithmeticError, ValueError):
+        return False
+    return True
 
 
 def _mentions_limits(annotation: Any) -> bool:

@@ -197,8 +197,13 @@ def si_label(quantity: Quantity) -> str:
     return _SI_LABELS[quantity]
 
 
+_LABELS: dict[UnitSystem, dict[str, str]] = {
+    system: {**{q.value: u.label for q, u in table.items()}, "engine_speed": "rpm"}
+    for system, table in _TABLE.items()
+}
+
+
 def unit_labels(system: UnitSystem) -> dict[str, str]:
-    """The unit of every quantity in a response, by quantity name, rpm included."""
-    labels = {q.value: u.label for q, u in _TABLE[system].items()}
-    labels["engine_speed"] = "rpm"
-    return labels
+    """The unit of every quantity in a response, by quantity name, rpm included (a new
+    dict each call, the caller's to change)."""
+    return dict(_LABELS[system])

@@ -6,6 +6,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.acceleration import compute_acceleration_run, run_summary
@@ -13,7 +14,7 @@ from service.schemas.acceleration import AccelerationRunRequest, AccelerationRun
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["acceleration run"])
+router = APIRouter(prefix="/v1", tags=["acceleration run"], route_class=JsonBodyRoute)
 
 
 @router.post(

@@ -9,6 +9,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.calibration import (
@@ -20,7 +21,7 @@ from service.schemas.calibration import CalibrationRequest, CalibrationResponse
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["calibration"])
+router = APIRouter(prefix="/v1", tags=["calibration"], route_class=JsonBodyRoute)
 
 
 @router.post(

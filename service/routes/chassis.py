@@ -9,6 +9,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.chassis import (
@@ -21,7 +22,7 @@ from service.schemas.chassis import ChassisConversionRequest, ChassisConversionR
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["chassis dyno"])
+router = APIRouter(prefix="/v1", tags=["chassis dyno"], route_class=JsonBodyRoute)
 
 
 @router.post(

@@ -6,6 +6,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.comparison import COMPARISON_FIELDS, compare_setups, comparison_document
@@ -14,7 +15,7 @@ from service.schemas.comparison import ComparisonRequest, ComparisonResponse
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["comparison"])
+router = APIRouter(prefix="/v1", tags=["comparison"], route_class=JsonBodyRoute)
 
 
 @router.post(

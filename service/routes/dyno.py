@@ -9,6 +9,7 @@ from starlette.responses import Response
 
 from core.dyno.road import MAX_OVERALL_RATIO
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.dyno import (
@@ -30,7 +31,7 @@ from service.units import UnitSystem
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["dyno"])
+router = APIRouter(prefix="/v1", tags=["dyno"], route_class=JsonBodyRoute)
 _RATIO = (
     "Speed-based export only: overall ratio (gear * final drive * extra reduction) of the "
     "gear it was run in; with the tire (one of `tire_size`, `tire_diameter`, "

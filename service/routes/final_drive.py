@@ -6,6 +6,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.final_drive import (
@@ -18,7 +19,7 @@ from service.schemas.final_drive import FinalDriveSweepRequest, FinalDriveSweepR
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["final drive sweep"])
+router = APIRouter(prefix="/v1", tags=["final drive sweep"], route_class=JsonBodyRoute)
 
 
 @router.post(

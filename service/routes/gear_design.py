@@ -6,6 +6,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.gear_design import (
@@ -25,7 +26,7 @@ from service.schemas.gear_design import (
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["gear design"])
+router = APIRouter(prefix="/v1", tags=["gear design"], route_class=JsonBodyRoute)
 
 
 @router.post(

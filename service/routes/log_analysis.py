@@ -6,6 +6,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.log_analysis import (
@@ -18,7 +19,7 @@ from service.schemas.log_analysis import LogAnalysisRequest, LogAnalysisResponse
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["log analysis"])
+router = APIRouter(prefix="/v1", tags=["log analysis"], route_class=JsonBodyRoute)
 
 
 @router.post(

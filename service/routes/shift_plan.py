@@ -6,6 +6,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.shift_plan import compute_shift_plan
@@ -14,7 +15,7 @@ from service.schemas.shift_plan import ShiftPlanRequest, ShiftPlanResponse
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["shift plan"])
+router = APIRouter(prefix="/v1", tags=["shift plan"], route_class=JsonBodyRoute)
 
 
 @router.post(

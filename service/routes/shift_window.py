@@ -9,6 +9,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.shift_window import (
@@ -21,7 +22,7 @@ from service.schemas.shift_window import ShiftWindowRequest, ShiftWindowResponse
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["shift window"])
+router = APIRouter(prefix="/v1", tags=["shift window"], route_class=JsonBodyRoute)
 
 
 @router.post(

@@ -9,6 +9,7 @@ from fastapi import APIRouter
 from starlette.responses import Response
 
 from service.http.deps import JsonBody
+from service.http.json_route import JsonBodyRoute
 from service.http.openapi import PROBLEM_RESPONSES
 from service.http.responses import FastJSONResponse
 from service.mapping.weather import study_weather, weather_document, weather_summary
@@ -16,7 +17,7 @@ from service.schemas.weather import WeatherCorrectionRequest, WeatherCorrectionR
 
 __all__ = ["router"]
 
-router = APIRouter(prefix="/v1", tags=["weather"])
+router = APIRouter(prefix="/v1", tags=["weather"], route_class=JsonBodyRoute)
 
 
 @router.post(

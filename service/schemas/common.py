@@ -96,6 +96,19 @@ def _unbool(value: Any) -> Any:
     return value
 
 
+_NUMERIC_FIELDS: dict[type[BaseModel], tuple[str, ...]] = {}
+
+
+def _numeric_fields(model: type[BaseModel]) -> tuple[str, ...]:
+    """The fields of a model class that hold numbers (worked out once per class)."""
+    names = _NUMERIC_FIELDS.get(model)
+    if names is None:
+        names = _NUMERIC_FIELDS[model] = tuple(
+            name for name, info in model.model_fields.items() if _numeric(info.annotation)
+        )
+    return names
+
+
 class ApiModel(BaseModel):
     """Base of every request and response model: unknown fields rejected, finite numbers,
     and `true`/`false` never taken for 1 and 0."""
@@ -108,12 +121,11 @@ class ApiModel(BaseModel):
         if not isinstance(data, dict):
             return data
         fixed = None
-        for name, info in cls.model_fields.items():
+        for name in _numeric_fields(cls):
             value = data.get(name)
-            has_bool = isinstance(value, bool) or (
+            if isinstance(value, bool) or (
                 isinstance(value, list) and bool in set(map(type, value))
-            )
-            if has_bool and _numeric(info.annotation):
+            ):
                 fixed = dict(data) if fixed is None else fixed
                 fixed[name] = _unbool(value)
         return data if fixed is None else fixed

@@ -333,3 +333,31 @@ def test_paper_setting_overrides_the_units(
     source.write_bytes(pdf)
     info = subprocess.run(["pdfinfo", str(source)], capture_output=True, text=True, check=True)
     assert "595.28 x 841.89 pts (A4)" in info.stdout and "Pages:           1" in info.stdout
+
+
+def _sentences(count: int) -> Iterator[tuple[str, str]]:
+    """Invented sentences: words of 1 to 12 characters, now and then a long one (up to 79,
+    past the plain limit), with the indents the sheets use."""
+    rng = np.random.default_rng(2291)
+    letters = np.array(list("abcdefghijk,.;()-0123456789"))
+    for _ in range(count):
+        sizes = rng.integers(1, 13, size=int(rng.integers(1, 50)))
+        sizes[rng.random(sizes.size) < 0.03] = rng.choice([30, 60, 77, 78, 79])
+        words = ["".join(rng.choice(letters, size=int(n))) for n in sizes]
+        yield " ".join(words), str(rng.choice(["", "- ", "  ", "-"]))
+
+
+def test_wrap_text_gives_the_lines_textwrap_gives() -> None:
+    # reference: Python's textwrap.wrap (width 80, continuation indent two spaces, no
+    # breaks on hyphens), which the plain-sentence fill must match line for line
+    import textwrap
+
+    from service.output.sheets import wrap_text
+
+    for text, indent in _sentences(3000):
+        expected = textwrap.wrap(
+            text, 80, initial_indent=indent, subsequent_indent="  ", break_on_hyphens=False
+        )
+        assert wrap_text(text, indent) == expected, (text, indent)
+    for text in ("", " lead", "trail ", "two  spaces", "tab\there", "caf\u00e9 au lait"):
+        assert wrap_text(text) == textwrap.wrap(text, 80, subsequent_indent="  ")

@@ -222,6 +222,36 @@ def test_a_limited_list_flags_exactly_the_items_the_one_value_check_flags(
     assert 1 <= len(found) < len(values)
 
 
+@pytest.mark.parametrize("system", [pytest.param(s, id=s.value) for s in UnitSystem])
+@pytest.mark.parametrize(("model", "name", "limits", "shape"), LIMITED_LISTS)
+def test_a_limited_list_reaching_its_limits_flags_what_the_one_value_check_flags(
+    model: type[BaseModel], name: str, limits: SiLimits, shape: str, system: UnitSystem
+) -> None:
+    # a list whose least and greatest items are at each limit or the neighbouring double
+    # inside it is passed on those two alone: every item must still get the answer that
+    # SiLimits.problem gives it on its own
+    unit = _caller_unit(limits, system)
+    inside = _convert(_inside(limits), limits.si_unit or si_label(limits.quantity), unit)  # type: ignore[arg-type]
+    for limit_si, toward in (
+        (limits.gt, np.inf),
+        (limits.ge, np.inf),
+        (limits.lt, -np.inf),
+        (limits.le, -np.inf),
+    ):
+        if limit_si is None:
+            continue
+        at = limits._from_si(limit_si, unit, system)
+        for edge in (at, np.nextafter(at, toward), np.nextafter(np.nextafter(at, toward), toward)):
+            values = [float(inside), float(edge), float(inside)]
+            given: dict[str, Any] = {name: values}
+            instance = model.model_construct(**given)
+            found = [e["field"] for e in bound_violations(instance, system)]
+            expected = [
+                f"{name}[{i}]" for i, v in enumerate(values) if limits.problem(v, instance, system)
+            ]
+            assert found == expected
+
+
 def _us_run(api: Any, run: dict[str, Any], **vehicle: Any) -> Any:
     from tests.conftest import load_demo
 
