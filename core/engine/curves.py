@@ -270,13 +270,17 @@ def _validated_rpm(rpm: ArrayLike) -> FloatArray:
             f"`rpm` must have at most {MAX_CURVE_POINTS} points, got {arr.size}",
             parameter="rpm",
         )
+    step = np.diff(arr)
+    # one pass when all is well (a NaN fails both comparisons); the culprit sought after
+    if float(arr[0]) >= MIN_RPM and float(step.min()) >= MIN_RPM_STEP and np.isfinite(arr[-1]):
+        return arr
     bad = np.flatnonzero(~np.isfinite(arr) | (arr < MIN_RPM))
     if bad.size:
         i = int(bad[0])
         raise CurveError(
             f"`rpm[{i}]` must be finite and >= {MIN_RPM:g}, got {arr[i]}", parameter=f"rpm[{i}]"
         )
-    close = np.flatnonzero((np.diff(arr) > 0.0) & (np.diff(arr) < MIN_RPM_STEP))
+    close = np.flatnonzero((step > 0.0) & (step < MIN_RPM_STEP))
     if close.size:
         i = int(close[0]) + 1
         raise CurveError(
@@ -284,7 +288,7 @@ def _validated_rpm(rpm: ArrayLike) -> FloatArray:
             f"{arr[i - 1]:g}, got {arr[i]:g}",
             parameter=f"rpm[{i}]",
         )
-    steps = np.flatnonzero(np.diff(arr) <= 0.0)
+    steps = np.flatnonzero(step <= 0.0)
     if steps.size:
         i = int(steps[0]) + 1
         raise CurveError(
@@ -302,6 +306,8 @@ def _validated_values(values: ArrayLike, name: str, size: int) -> FloatArray:
             f"`{name}` must have one value per rpm point ({size}), got {arr.size}",
             parameter=name,
         )
+    if float(arr.min()) >= 0.0 and 0.0 < float(arr.max()) < math.inf:  # NaN fails both
+        return arr
     bad = np.flatnonzero(~np.isfinite(arr) | (arr < 0.0))
     if bad.size:
         i = int(bad[0])

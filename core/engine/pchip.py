@@ -12,13 +12,17 @@ __all__ = ["pchip_coefficients"]
 FloatArray = NDArray[np.float64]
 
 
+def _sign(v: float) -> int:
+    return (v > 0.0) - (v < 0.0)
+
+
 def _pchip_edge_slope(h0: float, h1: float, m0: float, m1: float) -> float:
     d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1)
-    if np.sign(d) != np.sign(m0):
+    if _sign(d) != _sign(m0):
         return 0.0
-    if np.sign(m0) != np.sign(m1) and abs(d) > 3.0 * abs(m0):
+    if _sign(m0) != _sign(m1) and abs(d) > 3.0 * abs(m0):
         return 3.0 * m0
-    return float(d)
+    return d
 
 
 def pchip_coefficients(x: FloatArray, y: FloatArray) -> FloatArray:
@@ -50,8 +54,10 @@ def pchip_coefficients(x: FloatArray, y: FloatArray) -> FloatArray:
     with np.errstate(divide="ignore", invalid="ignore"):
         whmean = (w1 / m[:-1] + w2 / m[1:]) / (w1 + w2)
         d[1:-1] = np.where(flat, 0.0, 1.0 / whmean)
-    d[0] = _pchip_edge_slope(h[0], h[1], m[0], m[1])
-    d[-1] = _pchip_edge_slope(h[-1], h[-2], m[-1], m[-2])
+    (h0, h1), (hl, hp) = h[:2].tolist(), h[-1:-3:-1].tolist()
+    (m0, m1), (ml, mp) = m[:2].tolist(), m[-1:-3:-1].tolist()
+    d[0] = _pchip_edge_slope(h0, h1, m0, m1)
+    d[-1] = _pchip_edge_slope(hl, hp, ml, mp)
     coef = np.empty((4, x.size - 1))
     coef[0] = (d[:-1] + d[1:] - 2.0 * m) / h**2
     coef[1] = (3.0 * m - 2.0 * d[:-1] - d[1:]) / h
