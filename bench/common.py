@@ -11,11 +11,13 @@ often than a short one, which wall-clock ratios would count against it.
 from __future__ import annotations
 
 import asyncio
+import contextlib
 import inspect
 import json
+import os
 import statistics
 import time
-from collections.abc import Callable, Collection
+from collections.abc import Callable, Collection, Iterator
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -39,12 +41,30 @@ __all__ = [
     "demo_log",
     "healthz_call",
     "interleaved_ms",
+    "one_cpu",
     "ratio_line",
     "side_by_side",
     "time_call",
 ]
 
 DATA = Path(__file__).resolve().parent.parent / "tests" / "data"
+
+
+@contextlib.contextmanager
+def one_cpu() -> Iterator[None]:
+    """Keep this thread, and threads it starts meanwhile, on one CPU, as a served
+    worker keeps itself (service.http.affinity): an app measured in process then runs its
+    calculation threads as a server does. The CPUs allowed before are restored after, so
+    servers and load generators started later are not confined (Linux; elsewhere nothing)."""
+    if not hasattr(os, "sched_setaffinity"):
+        yield
+        return
+    allowed = os.sched_getaffinity(0)
+    os.sched_setaffinity(0, {min(allowed)})
+    try:
+        yield
+    finally:
+        os.sched_setaffinity(0, allowed)
 
 
 @dataclass(frozen=True)

@@ -22,6 +22,7 @@ from bench.common import (
     asgi_call,
     async_side_by_side,
     demo_drive_model,
+    one_cpu,
     ratio_line,
     time_call,
 )
@@ -265,12 +266,14 @@ def _served(body: dict[str, Any]) -> None:
 
 def main() -> None:
     body = _hundred_point_request()
-    car = _core(body)
-    _core_cars()
-    _serialisation(body, car)
-    _pchip(car[0])
-    _app_cpu(body)
-    _outside_core(body)
+    print("in process: kept on one CPU, as a served worker keeps itself")
+    with one_cpu():
+        car = _core(body)
+        _core_cars()
+        _serialisation(body, car)
+        _pchip(car[0])
+        _app_cpu(body)
+        _outside_core(body)
     _served(body)
 
 
