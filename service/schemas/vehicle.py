@@ -2,12 +2,13 @@
 
 from __future__ import annotations
 
-from typing import Literal, Self
+from typing import Annotated, Literal, Self
 
 from pydantic import ConfigDict, Field, model_validator
 
 from core.car.vehicle import MIN_FRICTION_COEFFICIENT
 from service.schemas.common import ApiModel, schema_rules
+from service.schemas.inputs import MAX_GEARS
 from service.schemas.quantities import (
     AirPressure,
     AirTemperature,
@@ -207,9 +208,9 @@ class LaunchIn(ApiModel):
         3000.0, ge=300, le=30000, description="Clutch: engine speed held while it slips [rpm]."
     )
     converter: ConverterIn | None = None
-    lockup_gears: list[int] = Field(
+    lockup_gears: list[Annotated[int, Field(ge=1, le=MAX_GEARS)]] = Field(
         default_factory=list,
-        max_length=12,
+        max_length=MAX_GEARS,
         description="Gears (1 = first) where the converter's lock-up clutch closes.",
     )
     shift_time: float = Field(
