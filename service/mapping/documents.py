@@ -22,7 +22,7 @@ FloatArray = NDArray[np.float64]
 def rounded(values: FloatArray | float, digits: int = 3) -> Any:
     """Round for display; arrays stay NumPy arrays (orjson writes them directly)."""
     if isinstance(values, np.ndarray):
-        return np.round(values, digits)
+        return values.round(digits)  # np.round's result, without its dispatch
     return round(float(values), digits)
 
 
