@@ -17,6 +17,7 @@ from collections.abc import Iterator
 from typing import Any
 
 import numpy as np
+from numpy.typing import NDArray
 from pydantic import BaseModel
 
 from service.http.problems import ProblemError
@@ -151,7 +152,15 @@ def _scan_numbers(
     limits = [m for m in meta if isinstance(m, SiLimits)]
     if not limits or _extremes_inside(values, limits, model, units):
         return
-    raw = np.asarray(values, dtype=np.float64)
+    flagged = _outside(np.asarray(values, dtype=np.float64), limits, model, units)
+    for i in np.flatnonzero(flagged).tolist():
+        yield from _scan(values[i], annotation, (), f"{path}[{i}]", model, units)
+
+
+def _outside(
+    raw: NDArray[np.float64], limits: list[SiLimits], model: BaseModel, units: UnitSystem
+) -> NDArray[np.bool_]:
+    """Which of the caller's numbers are outside some limit once converted to SI."""
     flagged = np.zeros(raw.shape, dtype=bool)
     for lim in limits:
         unit = lim._unit(model, units)
@@ -165,8 +174,7 @@ def _scan_numbers(
         ):
             if limit is not None:
                 flagged |= bad(si, limit)
-    for i in np.flatnonzero(flagged).tolist():
-        yield from _scan(values[i], annotation, (), f"{path}[{i}]", model, units)
+    return flagged
 
 
 def _extremes_inside(
@@ -178,20 +186,10 @@ def _extremes_inside(
     """Whether the least and the greatest of plain numbers are inside every limit, in SI
     (False also when they cannot be told so: the items are then looked at one by one)."""
     try:
-        low, high = float(min(values)), float(max(values))
-        for lim in limits:
-            unit = lim._unit(model, units)
-            si_low, si_high = lim._to_si(low, unit, units), lim._to_si(high, unit, units)
-            if (
-                (lim.gt is not None and si_low <= lim.gt)
-                or (lim.ge is not None and si_low < lim.ge)
-                or (lim.lt is not None and si_high >= lim.lt)
-                or (lim.le is not None and si_high > lim.le)
-            ):
-                return False
+        extremes = np.array([float(min(values)), float(max(values))])
     except (ArithmeticError, ValueError):
         return False
-    return True
+    return not _outside(extremes, limits, model, units).any()
 
 
 def _mentions_limits(annotation: Any) -> bool:
