@@ -27,45 +27,10 @@ WIDTH = 80
 
 
 def wrap_text(text: str, indent: str = "") -> list[str]:
-    """Lines of at most 80 columns, continuation lines indented two spaces: the lines of
-    ``textwrap.wrap`` (without breaking on hyphens).
-
-    A sentence of printable ASCII words, each of at most 78 characters, one space between
-    them, is filled word by word here, as textwrap fills it: a word joins the line while
-    the line, its space and the word fit; every other text goes to textwrap itself.
-
-    >>> wrap_text(" ".join(["one two three"] * 9), "- ")[1]
-    '  three one two three one two three one two three'
-    """
-    words = _plain_words(text, indent)
-    if words is None:
-        return textwrap.wrap(
-            text, WIDTH, initial_indent=indent, subsequent_indent="  ", break_on_hyphens=False
-        )
-    lines = []
-    line, room = indent + words[0], WIDTH - len(indent) - len(words[0])
-    for word in words[1:]:
-        if len(word) < room:
-            line += " " + word
-            room -= len(word) + 1
-        else:
-            lines.append(line)
-            line, room = "  " + word, WIDTH - 2 - len(word)
-    lines.append(line)
-    return lines
-
-
-def _plain_words(text: str, indent: str) -> list[str] | None:
-    """The words of a sentence of printable ASCII with single spaces between words of at
-    most 78 characters and an indent of at most two; None for any other text."""
-    if not (text and text.isascii() and text.isprintable() and len(indent) <= 2):
-        return None
-    if text[0] == " " or text[-1] == " " or "  " in text:
-        return None
-    words = text.split(" ")
-    if max(map(len, words)) > WIDTH - 2:
-        return None
-    return words
+    """Lines of at most 80 columns, continuation lines indented two spaces."""
+    return textwrap.wrap(
+        text, WIDTH, initial_indent=indent, subsequent_indent="  ", break_on_hyphens=False
+    )
 
 
 def cell(value: float | None, width: int, fmt: str, signed: bool = False) -> str:
@@ -91,11 +56,7 @@ def printable_line(line: str) -> str:
 
 
 def printable(lines: Iterable[str]) -> str:
-    """Lines joined into a sheet, each made printable (lines of ASCII only are already:
-    they are only cut and stripped)."""
-    lines = list(lines)
-    if all(line.isascii() for line in lines):
-        return "\n".join(line[:WIDTH].rstrip() for line in lines)
+    """Lines joined into a sheet, each made printable."""
     return "\n".join(printable_line(line) for line in lines)
 
 
