@@ -269,6 +269,34 @@ def shift_plan(
     )
 
 
+def _shift_point(
+    i: int,
+    choice: ShiftChoice,
+    rpm: tuple[float, float],
+    speed_m_s: float,
+    forces: tuple[float, float],
+    overtake_rpm: tuple[float, ...],
+) -> ShiftPoint:
+    """Gear change ``i + 1`` to ``i + 2``: engine speed at the shift and after it [rpm], road
+    speed [m/s], wheel force before and after [N], and the overtakes in engine speed [rpm]."""
+    before, after = rpm
+    return ShiftPoint(
+        from_gear=i + 1,
+        to_gear=i + 2,
+        shift_rpm=before,
+        shift_speed_m_s=speed_m_s,
+        rpm_after=after,
+        rpm_drop=before - after,
+        reason=choice.reason,
+        force_before_n=forces[0],
+        force_after_n=forces[1],
+        crossings=choice.crossings,
+        coincident_rpm=choice.coincident_rpm,
+        intersections=choice.intersections,
+        overtake_rpm=overtake_rpm,
+    )
+
+
 def _clutch_shifts(
     curve: TorqueCurve,
     ratios: FloatArray,
@@ -307,23 +335,9 @@ def _clutch_shifts(
         n = choice.shift_rpm
         after = n * q
         notes.extend(_choice_notices(i + 1, choice, after, curve.rpm_min))
-        shifts.append(
-            ShiftPoint(
-                from_gear=i + 1,
-                to_gear=i + 2,
-                shift_rpm=n,
-                shift_speed_m_s=n * RPM_TO_RAD_S * r / g1,
-                rpm_after=after,
-                rpm_drop=n - after,
-                reason=choice.reason,
-                force_before_n=kc[i] * torque(n),
-                force_after_n=kn[i] * torque(after),
-                crossings=choice.crossings,
-                coincident_rpm=choice.coincident_rpm,
-                intersections=choice.intersections,
-                overtake_rpm=choice.overtake_rpm,
-            )
-        )
+        forces = (kc[i] * torque(n), kn[i] * torque(after))
+        speed = n * RPM_TO_RAD_S * r / g1
+        shifts.append(_shift_point(i, choice, (n, after), speed, forces, choice.overtake_rpm))
     return tuple(shifts)
 
 
@@ -365,21 +379,8 @@ def _converter_shifts(
         before, n_s = drive(i, turbine)
         after_torque, after = drive(i + 1, turbine * q)
         notes.extend(_choice_notices(i + 1, choice, after, curve.rpm_min))
-        shifts.append(
-            ShiftPoint(
-                from_gear=i + 1,
-                to_gear=i + 2,
-                shift_rpm=n_s,
-                shift_speed_m_s=float(road_speed_m_s(turbine, g1, r)),
-                rpm_after=after,
-                rpm_drop=n_s - after,
-                reason=choice.reason,
-                force_before_n=kc[i] * before,
-                force_after_n=kn[i] * after_torque,
-                crossings=choice.crossings,
-                coincident_rpm=choice.coincident_rpm,
-                intersections=choice.intersections,
-                overtake_rpm=tuple(drive(i, x)[1] for x in choice.overtake_rpm),
-            )
-        )
+        forces = (kc[i] * before, kn[i] * after_torque)
+        speed = float(road_speed_m_s(turbine, g1, r))
+        overtake = tuple(drive(i, x)[1] for x in choice.overtake_rpm)
+        shifts.append(_shift_point(i, choice, (n_s, after), speed, forces, overtake))
     return tuple(shifts)

@@ -101,6 +101,13 @@ class _Scan:
         return cls(grid, diff, last, top, inside)
 
 
+def _may_hold_band(close: BoolArray, span: FloatArray, width: FloatArray) -> BoolArray:
+    """Whether each row has enough ``close`` points to span 2 % of its scanned ``width``
+    [rpm], the least a coincident band covers (``span``: each row's range [rpm])."""
+    reach = (np.count_nonzero(close, axis=1) - 1) * (span / (SCAN_POINTS - 1)) * (1.0 + 1e-9)
+    return np.asarray(reach >= 0.02 * width)
+
+
 def _bands(scan: _Scan, scale: FloatArray, span: FloatArray) -> dict[int, tuple[float, float]]:
     """The coincident band of each gear change that has one, by row.
 
@@ -108,8 +115,7 @@ def _bands(scan: _Scan, scale: FloatArray, span: FloatArray) -> dict[int, tuple[
     span that many scan cells has none and is not looked at further."""
     close = (np.abs(scan.diff) <= COINCIDENT_RTOL * scale[:, None]) & scan.inside
     rows = np.arange(scan.last.size)
-    reach = (close.sum(axis=1) - 1) * (span / (SCAN_POINTS - 1)) * (1.0 + 1e-9)
-    wide = reach >= 0.02 * (scan.grid[rows, scan.last] - scan.grid[:, 0])
+    wide = _may_hold_band(close, span, scan.grid[rows, scan.last] - scan.grid[:, 0])
     bands = {}
     for k in np.flatnonzero(wide & (scan.last > 0)).tolist():
         n = int(scan.last[k]) + 1
@@ -182,8 +188,7 @@ def is_plain(
     close = np.abs(diff) <= COINCIDENT_RTOL * scale[:, None]
     if not close.any():
         return True
-    reach = (np.count_nonzero(close, axis=1) - 1) * (span / (SCAN_POINTS - 1)) * (1.0 + 1e-9)
-    wide = reach >= 0.02 * (grid[:, -1] - grid[:, 0])
+    wide = _may_hold_band(close, span, grid[:, -1] - grid[:, 0])
     return not (wide.any() or (diff[close] == 0.0).any())
 
 
@@ -200,9 +205,8 @@ def found_plain(
     rows, at = rows[falls], rows[falls] * m + cols[falls]
     crossings: list[list[float]] = [[] for _ in range(p)]
     if rows.size:
-        a, b = grid.take(at), grid.take(at + 1)
-        fa, fb = diff.take(at), diff.take(at + 1)
-        roots = a + fa / (fa - fb) * (b - a) if refine is None else refine(rows, a, b, fa, fb)
+        cells = (grid.take(at), grid.take(at + 1), diff.take(at), diff.take(at + 1))
+        roots = _cell_roots(rows, cells, refine)
         for k, root in zip(rows.tolist(), roots.tolist(), strict=True):
             crossings[k].append(root)
     return ScanFound(hi.tolist(), [m - 1] * p, {}, crossings, counts)
