@@ -242,7 +242,7 @@ class TorqueCurve:
         best grid point and its neighbours (error well under 1 rpm).
         """
         grid = np.linspace(self.rpm[0], self.rpm[-1], 1001)
-        p = self.torque_at(grid) * grid * RPM_TO_RAD_S  # power_at, its clip left out
+        p = self.power_at(grid)
         k = int(np.argmax(p))
         if k == 0 or k == grid.size - 1:
             return float(grid[k])
