@@ -67,16 +67,21 @@ def _wait_ready(base: str, proc: subprocess.Popen[bytes], seconds: float) -> Non
 
 @contextmanager
 def serve(
-    workers: int = 1, env: dict[str, str] | None = None, *, ready_s: float = 120.0
+    workers: int = 1,
+    env: dict[str, str] | None = None,
+    *,
+    ready_s: float = 120.0,
+    module: str = "service",
 ) -> Iterator[Server]:
-    """Run ``python -m service`` with ``workers`` on a free loopback port until it is ready
-    (``/readyz`` answers 200); yield it, and stop it after."""
+    """Run ``python -m service`` (or another ``module`` taking its flags) with ``workers``
+    on a free loopback port until it is ready (``/readyz`` answers 200); yield it, and stop
+    it after."""
     port = free_port()
     proc = subprocess.Popen(
         [
             sys.executable,
             "-m",
-            "service",
+            module,
             "--host",
             "127.0.0.1",
             "--port",
@@ -227,15 +232,16 @@ def median_wrk(
     *,
     repeats: int = 3,
     seconds: int = 3,
-    cpu: Callable[[], float] | None = None,
+    cpu: Callable[[], float] | dict[str, Callable[[], float]] | None = None,
 ) -> dict[str, WrkResult]:
     """wrk runs of several targets, interleaved ``repeats`` times; per target the median
-    throughput, p50, p99 and (with ``cpu``) server CPU per request over the repeats
-    (errors summed)."""
+    throughput, p50, p99 and (with ``cpu``, one clock or a clock per target) server CPU per
+    request over the repeats (errors summed)."""
     got: dict[str, list[WrkResult]] = {k: [] for k in runs}
+    clocks = cpu if isinstance(cpu, dict) else dict.fromkeys(runs, cpu)
     for _ in range(repeats):
         for name, (url, body) in runs.items():
-            got[name].append(wrk(url, body=body, seconds=seconds, cpu=cpu))
+            got[name].append(wrk(url, body=body, seconds=seconds, cpu=clocks.get(name)))
     return {
         k: WrkResult(
             float(np.median([r.requests_per_s for r in v])),

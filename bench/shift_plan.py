@@ -9,6 +9,7 @@ each shift-plan request carries its own reference, so the result cache never ans
 from __future__ import annotations
 
 import asyncio
+import contextlib
 import json
 import os
 from pathlib import Path
@@ -26,7 +27,7 @@ from bench.common import (
     ratio_line,
     time_call,
 )
-from bench.server import VARY, median_wrk, serve, server_cpu
+from bench.server import VARY, WrkResult, median_wrk, serve, server_cpu
 from core import (
     Drivetrain,
     Tire,
@@ -43,7 +44,7 @@ SERVED_REPEATS = 5
 DEMO = Path(__file__).resolve().parent.parent / "tests" / "data" / "demo_coupe_us.json"
 
 
-def _hundred_point_request() -> dict[str, Any]:
+def hundred_point_request() -> dict[str, Any]:
     """The demo coupe with its curve resampled to 100 points (invented data)."""
     body: dict[str, Any] = json.loads(DEMO.read_text())
     curve = body["engine"]["curve"]
@@ -218,24 +219,53 @@ def _outside_core(body: dict[str, Any]) -> None:
     )
 
 
+def _served_floor(health: WrkResult, plan: WrkResult, floor: WrkResult) -> None:
+    """What the serving path alone allows: the same requests answered by a plan computed
+    beforehand (:mod:`bench.serving_floor`), against the computed plan and /healthz."""
+    print("   /v1/shift-plan, answered from a plan computed beforehand (the serving floor)")
+    print("                                     ", floor)
+    print(
+        ratio_line(
+            "serving floor / healthz throughput",
+            floor.requests_per_s / health.requests_per_s,
+            "none: the most any computation can reach",
+        )
+    )
+    left = 4.0 * health.server_cpu_ms - floor.server_cpu_ms
+    print(
+        f"   server CPU: floor {floor.server_cpu_ms:.3f} ms, so computation, document and "
+        f"summary cost {plan.server_cpu_ms - floor.server_cpu_ms:.3f} ms served; "
+        f"0.25x leaves them {left:.3f} ms"
+    )
+
+
 def _served(body: dict[str, Any]) -> None:
-    """Throughput served by uvicorn with one and two workers, against /healthz."""
+    """Throughput served by uvicorn with one and two workers, against /healthz; with one
+    pinned worker, the serving floor side by side."""
     fresh = json.dumps({**body, "reference": f"BENCH-{VARY}"}).encode()
     same = json.dumps({**body, "reference": "BENCH"}).encode()
     # one worker pinned to a CPU (the default), the same unpinned, two workers pinned
     for workers, pin in ((1, "true"), (1, "false"), (2, "true")):
-        with serve(workers, {"GEARWORK_PIN_CPU": pin}) as server:
+        floored = workers == 1 and pin == "true"
+        with contextlib.ExitStack() as stack:
+            server = stack.enter_context(serve(workers, {"GEARWORK_PIN_CPU": pin}))
             base = server.base
-            median_wrk({"warm": (base + "/v1/shift-plan", fresh)}, repeats=1, seconds=1)
-            got = median_wrk(
-                {
-                    "health": (base + "/healthz", None),
-                    "plan": (base + "/v1/shift-plan", fresh),
-                    "cached": (base + "/v1/shift-plan", same),
-                },
-                repeats=SERVED_REPEATS,
-                cpu=server_cpu(server),
-            )
+            runs = {
+                "health": (base + "/healthz", None),
+                "plan": (base + "/v1/shift-plan", fresh),
+                "cached": (base + "/v1/shift-plan", same),
+            }
+            clocks = dict.fromkeys(runs, server_cpu(server))
+            if floored:
+                floor = stack.enter_context(
+                    serve(1, {"GEARWORK_PIN_CPU": pin}, module="bench.serving_floor")
+                )
+                runs["floor"] = (floor.base + "/v1/shift-plan", fresh)
+                clocks["floor"] = server_cpu(floor)
+            for url, _ in runs.values():
+                if url.endswith("shift-plan"):
+                    median_wrk({"warm": (url, fresh)}, repeats=1, seconds=1)
+            got = median_wrk(runs, repeats=SERVED_REPEATS, cpu=clocks)
         health, plan, cached = got["health"], got["plan"], got["cached"]
         print(
             f"served by uvicorn, {workers} worker(s), "
@@ -262,10 +292,12 @@ def _served(body: dict[str, Any]) -> None:
             )
         )
         print(ratio_line("computed shift plan p99 / p50", plan.p99_ms / plan.p50_ms, "<= 4"))
+        if floored:
+            _served_floor(health, plan, got["floor"])
 
 
 def main() -> None:
-    body = _hundred_point_request()
+    body = hundred_point_request()
     print("in process: kept on one CPU, as a served worker keeps itself")
     with one_cpu():
         car = _core(body)
