@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 import functools
 import math
 from dataclasses import dataclass
@@ -48,7 +49,8 @@ class ShiftPoint:
     crossings : int
         Number of points in the gears' shared range where the next gear overtakes.
     coincident_rpm : tuple of float or None
-        Band of shift rpm where both gears give the same force, if any.
+        Band of engine rpm in the current gear where both gears give the same force, if any
+        (with a slipping torque converter, the engine speeds at the band's turbine speeds).
     intersections : int
         How many times the two gears' curves intersect in the shared range, either way.
     overtake_rpm : tuple of float
@@ -374,10 +376,17 @@ def _converter_shifts(
     kn: list[float] = k_next.tolist()
     shifts = []
     pairs = zip(choices, ratios.tolist(), step.tolist(), strict=False)
-    for i, (choice, g1, q) in enumerate(pairs):
-        turbine = choice.shift_rpm
+    for i, (found, g1, q) in enumerate(pairs):
+        turbine = found.shift_rpm
         before, n_s = drive(i, turbine)
         after_torque, after = drive(i + 1, turbine * q)
+        band = found.coincident_rpm
+        # the band, like every rpm reported, in engine speed
+        choice = found
+        if band is not None:
+            choice = dataclasses.replace(
+                found, coincident_rpm=(drive(i, band[0])[1], drive(i, band[1])[1])
+            )
         notes.extend(_choice_notices(i + 1, choice, after, curve.rpm_min))
         forces = (kc[i] * before, kn[i] * after_torque)
         speed = float(road_speed_m_s(turbine, g1, r))

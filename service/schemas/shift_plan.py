@@ -156,7 +156,8 @@ class ShiftOut(ApiModel):
         None,
         min_length=2,
         max_length=2,
-        description="[low, high] shift rpm band where both gears give the same force, if any.",
+        description="[low, high] band of engine speed in this gear where both gears give the "
+        "same force, if any [rpm].",
     )
 
 

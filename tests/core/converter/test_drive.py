@@ -10,10 +10,13 @@ Every car here is invented demo data.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import os
+from typing import Any
 
 import numpy as np
+import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
@@ -30,6 +33,8 @@ from core.runs.drive_model import DriveModel, drive_model
 from core.runs.milestones import time_at_distance
 from core.runs.performance import optimal_shift_rpm
 from core.runs.simulate import simulate_run
+from core.shifts import plan as plan_module
+from core.shifts.best import ShiftChoice, best_shifts
 from core.shifts.plan import shift_plan
 
 LBF_FT_IN_NM = 1.3558179483314004  # scipy.constants: lbf * foot
@@ -110,6 +115,31 @@ def test_converter_plan_shifts_on_engine_rpm_and_counts_the_next_gears_multiplic
         assert s.reason.value == "crossover" and s.crossings == 1
         assert turbine < 6000.0
         assert_allclose(s.force_after_n, s.force_before_n, rtol=2e-3)
+
+
+def test_a_converter_plans_coincident_band_is_reported_in_engine_rpm(
+    monkeypatch: pytest.MonkeyPatch,
+) -> None:
+    # the search works in turbine speed; every rpm the plan reports (shift, overtakes and
+    # the band where both gears pull alike) is the engine speed the converter settles at
+    # there. The band is planted in the search's answer: a real one needs two gears whose
+    # multiplied forces agree to 1e-4 over 2 % of their range.
+    drive = ConverterDrive(CONVERTER)
+    band = (2500.0, 3000.0)  # turbine speed [rpm], gear 1 slipping there
+
+    def with_band(*args: Any, **kwargs: Any) -> tuple[ShiftChoice, ...]:
+        found = best_shifts(*args, **kwargs)
+        return (dataclasses.replace(found[0], coincident_rpm=band), *found[1:])
+
+    monkeypatch.setattr(plan_module, "best_shifts", with_band)
+    plan = shift_plan(CURVE, DRIVETRAIN, TIRE, converter=drive)
+    engine = converter_input(drive, CURVE, 6000.0, 0, np.array(band)).engine_rpm
+    assert engine[0] > band[0] and engine[1] > band[1]  # slipping: engine ahead of turbine
+    got = plan.shifts[0].coincident_rpm
+    assert got is not None
+    assert_allclose(got, engine, rtol=1e-12)
+    (note,) = [n for n in plan.notices if n.code == "coincident_force"]
+    assert f"from {engine[0]:.0f} to {engine[1]:.0f} rpm" in note.message
 
 
 def pickup(mu: float = 0.8) -> DriveModel:
