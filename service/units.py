@@ -74,6 +74,7 @@ class Quantity(enum.StrEnum):
     FORCE_PER_SPEED = "force_per_speed"
     FORCE_PER_SPEED_SQUARED = "force_per_speed_squared"
     ODOMETER = "odometer"
+    DENSITY = "density"
 
 
 @dataclass(frozen=True)
@@ -99,6 +100,7 @@ _TABLE: dict[UnitSystem, dict[Quantity, _Unit]] = {
         Quantity.FORCE_PER_SPEED: _Unit("N/(km/h)", 3.6),
         Quantity.FORCE_PER_SPEED_SQUARED: _Unit("N/(km/h)^2", 3.6**2),
         Quantity.ODOMETER: _Unit("km", 1000.0),
+        Quantity.DENSITY: _Unit("kg/m^3", 1.0),
     },
     UnitSystem.US: {
         Quantity.TORQUE: _Unit("lbf*ft", POUND_FORCE_FOOT_NM),
@@ -117,6 +119,7 @@ _TABLE: dict[UnitSystem, dict[Quantity, _Unit]] = {
         Quantity.FORCE_PER_SPEED: _Unit("lbf/mph", POUND_FORCE_N / MPH_M_S),
         Quantity.FORCE_PER_SPEED_SQUARED: _Unit("lbf/mph^2", POUND_FORCE_N / MPH_M_S**2),
         Quantity.ODOMETER: _Unit("mi", MILE_M),
+        Quantity.DENSITY: _Unit("lb/ft^3", POUND_KG / FOOT_M**3),
     },
 }
 _SI_LABELS: dict[Quantity, str] = {
@@ -135,6 +138,7 @@ _SI_LABELS: dict[Quantity, str] = {
     Quantity.FORCE_PER_SPEED: "N/(m/s)",
     Quantity.FORCE_PER_SPEED_SQUARED: "N/(m/s)^2",
     Quantity.ODOMETER: "m",
+    Quantity.DENSITY: "kg/m^3",
 }
 
 NAMED_UNITS: dict[str, float] = {

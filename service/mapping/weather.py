@@ -145,7 +145,7 @@ def air_document(air: WeatherAir, units: UnitSystem) -> dict[str, Any]:
         "temperature": round(from_si(w.temperature_k, Quantity.TEMPERATURE, units), 2),
         "pressure": round(from_si(w.pressure_pa, Quantity.PRESSURE, units), 3),
         "relative_humidity": round(100.0 * w.relative_humidity, 2),
-        "density": round(air.density_kg_m3, 5),
+        "density": round(from_si(air.density_kg_m3, Quantity.DENSITY, units), 6),
         "density_altitude": round(from_si(air.density_altitude_m, Quantity.DISTANCE, units), 1),
         "relative_density": round(100.0 * air.relative_density, 2),
         "correction_factor": round(air.correction_factor, 5),

@@ -194,6 +194,7 @@ class UnitLabels(ApiModel):
         description="Unit of the coast-down term F2.", examples=["N/(km/h)^2"]
     )
     odometer: str = Field(description="Unit of odometer distances.", examples=["km"])
+    density: str = Field(description="Unit of air densities.", examples=["kg/m^3"])
 
 
 class NoticeOut(ApiModel):

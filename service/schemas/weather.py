@@ -94,7 +94,7 @@ class StripAirOut(ApiModel):
     temperature: float = Field(description="[degC | degF]")
     pressure: float = Field(description="Station pressure [kPa | inHg].")
     relative_humidity: float = Field(description="[%]")
-    density: float = Field(description="Moist-air density [kg/m^3 in both systems].")
+    density: float = Field(description="Moist-air density [kg/m^3 | lb/ft^3].")
     density_altitude: float = Field(description="ISO 2533 altitude of that density [m | ft].")
     relative_density: float = Field(description="Density over ISO sea level [%].")
     correction_factor: float = Field(description="The standard's factor for this air [-].")

@@ -76,6 +76,21 @@ def test_run_and_air_factors_match_scipy_constants(
     assert_allclose(to_si(1.0, quantity, system), si_per_unit, rtol=1e-12)
 
 
+@pytest.mark.parametrize(
+    ("system", "unit"),
+    [
+        pytest.param(UnitSystem.METRIC, "kg/m^3", id="kg/m^3"),
+        pytest.param(UnitSystem.US, "lb/ft^3", id="lb/ft^3"),
+    ],
+)
+def test_air_density_factor_matches_pint(system: UnitSystem, unit: str) -> None:
+    # reference library: pint (pound 0.45359237 kg and foot 0.3048 m, exact by definition);
+    # ISO 2533 sea-level air, 1.225 kg/m^3, is about 0.0765 lb/ft^3
+    si_per_unit = pint.UnitRegistry().Quantity(1.0, unit).to("kg/m^3").magnitude
+    assert_allclose(to_si(1.0, Quantity.DENSITY, system), si_per_unit, rtol=1e-12)
+    assert unit_labels(system)["density"] == unit
+
+
 def test_inch_of_mercury_matches_pint() -> None:
     # reference library: pint's inch of mercury (conventional mercury density, 32 degF);
     # NIST SP 811 lists 3.386389e3 Pa

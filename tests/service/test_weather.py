@@ -44,6 +44,10 @@ def test_standard_air_in_us_units_reads_its_altitude_in_feet(api: ApiClient) -> 
     out = r.json()
     assert_allclose(out["taken_in"]["density_altitude"], 1000.0 / 0.3048, atol=2.0)
     assert out["slip"] is None and out["units"]["distance"] == "ft"
+    # its density in lb/ft^3 (pound 0.45359237 kg, foot 0.3048 m, exact by definition)
+    assert out["units"]["density"] == "lb/ft^3"
+    lb_ft3 = atm.rho * 0.3048**3 / 0.45359237
+    assert_allclose(out["taken_in"]["density"], lb_ft3, rtol=2e-4)
 
 
 def test_prediction_without_the_car_is_a_problem(api: ApiClient) -> None:
