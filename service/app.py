@@ -180,6 +180,8 @@ def create_app() -> FastAPI:
         yield
 
     app = FastAPI(
+        # FastAPI's OpenTelemetry hooks look for a configured SDK on every request
+        telemetry=None if settings.otel else {"tracing": False, "metrics": False, "logs": False},
         lifespan=lifespan,
         docs_url=None,
         redoc_url=None,

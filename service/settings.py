@@ -100,6 +100,11 @@ class Settings(BaseSettings):
     retry_after_s: int = Field(2, ge=1, le=600, description="Retry-After sent with a 503 [s].")
     request_log: bool = Field(True, description="One JSON line per request on stdout.")
     metrics: bool = Field(True, description="Serve Prometheus metrics at /metrics.")
+    otel: bool = Field(
+        False,
+        description="FastAPI's own OpenTelemetry traces, metrics and logs, for a process "
+        "with an OpenTelemetry SDK configured; off, no request asks whether one is.",
+    )
     cors_origins: Annotated[list[str], NoDecode] = Field(
         default_factory=list,
         max_length=32,

@@ -29,7 +29,6 @@ from collections import deque
 from dataclasses import dataclass, field
 from typing import Protocol
 
-import anyio
 from starlette.responses import Response
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
@@ -242,9 +241,9 @@ class AdmissionGate(_AdmissionMiddleware):
 
         async def timed_receive() -> Message:
             nonlocal timed_out
-            remaining = deadline - time.monotonic()
             try:
-                with anyio.fail_after(max(remaining, 0.0)):
+                # the loop's clock is time.monotonic, the clock ``deadline`` is on
+                async with asyncio.timeout_at(deadline):
                     return await receive()
             except TimeoutError:
                 timed_out = True
