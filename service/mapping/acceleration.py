@@ -28,7 +28,7 @@ from core.runs.drive_model import DriveModel
 from core.runs.report import QUARTER_MILE_M
 from core.runs.simulate import RunShift
 from core.units import STANDARD_GRAVITY_M_S2 as G  # accelerations are reported in g
-from service.mapping.documents import notices_out, rounded
+from service.mapping.documents import notice_text, notices_out, rounded
 from service.mapping.inputs import (
     build_curve,
     build_drivetrain,
@@ -154,7 +154,7 @@ def run_document(
             "acceleration": rounded(trace.acceleration_m_s2 / G, 4),
         },
         "optimal_shifts": None if optimal is None else _optimal_document(optimal),
-        "warnings": notices_out(run.notices, fields),
+        "warnings": notices_out(run.notices, fields, units),
         "cautions": list(CAUTIONS),
     }
 
@@ -248,7 +248,7 @@ def run_summary(
             f"{optimal.baseline_time_s:.3f} s with the plan."
         )
     for n in report.run.notices:
-        lines += wrap_text(n.message, "- ")
+        lines += wrap_text(notice_text(n, units), "- ")
     lines.append("")
     lines += wrap_text("Caution: " + SHORT_CAUTION)
     return printable(lines)

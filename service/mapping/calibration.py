@@ -235,7 +235,7 @@ def calibration_document(
         "trace": _trace(fit, u),
         "method": CALIBRATION_METHOD,
         "priors": priors_text(u),
-        "warnings": notices_out(fit.notices, CALIBRATION_FIELDS),
+        "warnings": notices_out(fit.notices, CALIBRATION_FIELDS, u),
         "cautions": list(CAUTIONS),
     }
 
@@ -300,7 +300,7 @@ def _block_lines(doc: Mapping[str, Any]) -> list[str]:
 
 
 def calibration_summary(
-    doc: Mapping[str, Any], fit: PassCalibration, reference: str | None
+    doc: Mapping[str, Any], fit: PassCalibration, units: UnitSystem, reference: str | None
 ) -> str:
     """The calibration as a short printable sheet: 80 columns, printable ASCII."""
     f, lab = doc["fit"], doc["units"]
@@ -332,4 +332,4 @@ def calibration_summary(
         *wrap_text("Method: " + CALIBRATION_METHOD),
         *wrap_text("Priors: " + doc["priors"]),
     ]
-    return summary_sheet("GEARWORK PASS CALIBRATION", reference, body, fit.notices)
+    return summary_sheet("GEARWORK PASS CALIBRATION", reference, body, fit.notices, units)

@@ -14,7 +14,7 @@ from core.driveline.chassis import (
     chassis_conversion,
     efficiency_from_loss,
 )
-from service.mapping.documents import notices_out, rounded
+from service.mapping.documents import notice_text, notices_out, rounded
 from service.mapping.inputs import core_fields
 from service.output.sheets import printable, title_line, wrap_text
 from service.schemas.chassis import ChassisConversionRequest
@@ -130,7 +130,7 @@ def chassis_document(
             "torque_rpm": round(float(c.rpm[k_torque]), 1),
         },
         "gears": gears,
-        "warnings": notices_out(c.notices, fields),
+        "warnings": notices_out(c.notices, fields, units),
     }
 
 
@@ -185,5 +185,5 @@ def chassis_summary(c: ChassisConversion, units: UnitSystem, reference: str | No
     lines += wrap_text(MODEL_NOTE)
     for n in c.notices:
         if n.code != "estimate":
-            lines += wrap_text(f"Note: {n.message}")
+            lines += wrap_text(f"Note: {notice_text(n, units)}")
     return printable(lines)

@@ -161,12 +161,14 @@ def coast_down_document(
         "rolling_coefficient": round(fit.rolling_coefficient, 6),
         "road_load": {"coast_down": at_ref},
         "method": COAST_DOWN_METHOD,
-        "warnings": notices_out(fit.notices, fields),
+        "warnings": notices_out(fit.notices, fields, units),
         "cautions": list(CAUTIONS),
     }
 
 
-def coast_down_summary(doc: Mapping[str, Any], fit: CoastDownFit, reference: str | None) -> str:
+def coast_down_summary(
+    doc: Mapping[str, Any], fit: CoastDownFit, units: UnitSystem, reference: str | None
+) -> str:
     """The fit as a short printable sheet: 80 columns, printable ASCII."""
     cu = doc["coefficient_units"]
     lab = doc["units"]
@@ -193,4 +195,4 @@ def coast_down_summary(doc: Mapping[str, Any], fit: CoastDownFit, reference: str
     ]
     if not doc["reference_conditions"]["applied"]:
         body += wrap_text("No test weather given: coefficients are as measured.")
-    return summary_sheet("GEARWORK COAST-DOWN ROAD LOAD", reference, body, fit.notices)
+    return summary_sheet("GEARWORK COAST-DOWN ROAD LOAD", reference, body, fit.notices, units)

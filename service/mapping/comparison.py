@@ -367,8 +367,8 @@ def comparison_document(
                 ],
                 "run": _run(fig, numbers),
                 "delta": None if not named.changes else numbers_delta(numbers, base),
-                "warnings": _renamed(notices_out(fig.notices, fields), named.renames)
-                + notices_out(own, fields),
+                "warnings": _renamed(notices_out(fig.notices, fields, units), named.renames)
+                + notices_out(own, fields, units),
             }
         )
     return {"units": unit_labels(units), "setups": out, "cautions": list(CAUTIONS)}

@@ -12,9 +12,16 @@ from numpy.typing import NDArray
 
 from core import Notice, Tire
 from service.mapping.inputs import request_field
-from service.units import Quantity, UnitSystem, from_si
+from service.units import Quantity, UnitSystem, from_si, unit_label
 
-__all__ = ["notices_out", "rounded", "seconds_out", "speed_out", "tire_document"]
+__all__ = [
+    "notice_text",
+    "notices_out",
+    "rounded",
+    "seconds_out",
+    "speed_out",
+    "tire_document",
+]
 
 FloatArray = NDArray[np.float64]
 
@@ -26,10 +33,28 @@ def rounded(values: FloatArray | float, digits: int = 3) -> Any:
     return round(float(values), digits)
 
 
-def notices_out(notices: Iterable[Notice], fields: Mapping[str, str]) -> list[dict[str, Any]]:
-    """Warnings with the request field each concerns."""
+def notice_text(notice: Notice, units: UnitSystem) -> str:
+    """A notice's sentence with every physical value it quotes in the caller's units."""
+    if notice.template is None:
+        return notice.message
+    said = []
+    for figure in notice.figures:
+        quantity = Quantity(figure.kind)
+        value = from_si(figure.value, quantity, units)
+        said.append(figure.quoted(value, unit_label(quantity, units)))
+    return notice.template.format(*said)
+
+
+def notices_out(
+    notices: Iterable[Notice], fields: Mapping[str, str], units: UnitSystem
+) -> list[dict[str, Any]]:
+    """Warnings with the request field each concerns, in the caller's units."""
     return [
-        {"code": n.code, "message": n.message, "field": request_field(n.parameter, fields)}
+        {
+            "code": n.code,
+            "message": notice_text(n, units),
+            "field": request_field(n.parameter, fields),
+        }
         for n in notices
     ]
 

@@ -141,7 +141,7 @@ def dyno_correction_document(body: DynoCorrectionRequest, air: AirCorrection) ->
         ],
         "applied": body.standard,
         "corrected_curve": corrected,
-        "warnings": notices_out(air.chosen.notices, AMBIENT_FIELDS),
+        "warnings": notices_out(air.chosen.notices, AMBIENT_FIELDS, u),
     }
 
 
@@ -316,5 +316,5 @@ def imported_document(run: DynoRun, units: UnitSystem, encoding: str) -> dict[st
         "encoding": encoding,
         "rows": run.data_rows,
         "road_speed_conversion": conversion,
-        "warnings": notices_out(run.notices, fields),
+        "warnings": notices_out(run.notices, fields, units),
     }

@@ -278,7 +278,7 @@ def sweep_document(
             "bounds": [opt.bounds[0], opt.bounds[1]],
             "evaluations": opt.evaluations,
         },
-        "warnings": notices_out(sweep.notices, fields),
+        "warnings": notices_out(sweep.notices, fields, units),
         "cautions": list(CAUTIONS),
     }
 
@@ -342,4 +342,4 @@ def sweep_summary(
             f"({_objective_out(sweep, o.objective_value, units)} {unit}), searched between "
             f"{o.bounds[0]:.3f} and {o.bounds[1]:.3f}."
         )
-    return summary_sheet("GEARWORK FINAL DRIVE SWEEP", reference, body, sweep.notices)
+    return summary_sheet("GEARWORK FINAL DRIVE SWEEP", reference, body, sweep.notices, units)

@@ -281,7 +281,7 @@ def spacing_document(
         "units": unit_labels(units),
         "max_progression_factor": None if max_factor is None else round(max_factor, 6),
         "sets": [_set(s, units) for s in studies],
-        "warnings": notices_out(notices, fields),
+        "warnings": notices_out(notices, fields, units),
         "cautions": list(CAUTIONS),
     }
 
@@ -333,6 +333,8 @@ def speedometer_document(study: SpeedometerStudy, units: UnitSystem) -> dict[str
             "nearest_teeth": gear.nearest_teeth,
             "residual_error_percent": round(gear.residual_error_percent, 4),
         },
-        "warnings": notices_out(study.notices, {"final_drive_ratio": "new.final_drive_ratio"}),
+        "warnings": notices_out(
+            study.notices, {"final_drive_ratio": "new.final_drive_ratio"}, units
+        ),
         "cautions": list(SPEEDOMETER_CAUTIONS),
     }

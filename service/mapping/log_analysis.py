@@ -15,7 +15,7 @@ from core.logs.shift import LoggedShift
 from core.logs.text import LogText, read_log_text
 from core.units import STANDARD_GRAVITY_M_S2 as G  # accelerations are reported in g
 from service.http.problems import ProblemError
-from service.mapping.documents import notices_out
+from service.mapping.documents import notice_text, notices_out
 from service.mapping.inputs import build_curve, build_drivetrain, build_tire, core_fields
 from service.mapping.vehicle import CAR_FIELDS, build_launch, build_vehicle
 from service.output.cautions import CAUTIONS, SHORT_CAUTION
@@ -234,7 +234,7 @@ def log_analysis_document(
             for g in analysis.segments
         ],
         "shifts": [_shift(s, model, units) for s in analysis.shifts],
-        "warnings": notices_out(analysis.notices, fields),
+        "warnings": notices_out(analysis.notices, fields, units),
         "cautions": list(CAUTIONS),
     }
 
@@ -320,6 +320,6 @@ def log_summary(
     lines.append("")
     lines += wrap_text(VERDICT_RULE)
     for n in analysis.notices:
-        lines += wrap_text(f"Warning: {n.message}")
+        lines += wrap_text(f"Warning: {notice_text(n, units)}")
     lines += wrap_text(f"Caution: {SHORT_CAUTION}")
     return printable(lines)

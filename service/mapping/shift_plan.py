@@ -155,7 +155,7 @@ def shift_plan_document(
         "tire": tire_document(tire, units),
         "gears": gears,
         "shifts": shifts,
-        "warnings": notices_out(plan.notices, fields),
+        "warnings": notices_out(plan.notices, fields, units),
         "cautions": list(CAUTIONS),
     }
 

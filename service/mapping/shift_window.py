@@ -159,13 +159,13 @@ def shift_window_document(
         ],
         "evaluations": result.evaluations,
         "method": SHIFT_WINDOW_METHOD,
-        "warnings": notices_out(notices, fields),
+        "warnings": notices_out(notices, fields, units),
         "cautions": list(CAUTIONS),
     }
 
 
 def shift_window_summary(
-    doc: Mapping[str, Any], result: ShiftWindows, reference: str | None
+    doc: Mapping[str, Any], result: ShiftWindows, units: UnitSystem, reference: str | None
 ) -> str:
     """The windows as a short printable sheet: 80 columns, printable ASCII."""
     body = [
@@ -175,4 +175,4 @@ def shift_window_summary(
         "",
         *wrap_text("Method: " + SHIFT_WINDOW_METHOD),
     ]
-    return summary_sheet("GEARWORK SHIFT WINDOW", reference, body, window_notices(result))
+    return summary_sheet("GEARWORK SHIFT WINDOW", reference, body, window_notices(result), units)

@@ -133,7 +133,7 @@ def weather_document(body: WeatherCorrectionRequest, study: WeatherStudy) -> dic
         "slip": None if p is None else slip_document(p, u),
         "method": WEATHER_METHOD,
         "limits": WEATHER_LIMITS,
-        "warnings": notices_out(study.notices, WEATHER_FIELDS),
+        "warnings": notices_out(study.notices, WEATHER_FIELDS, u),
         "cautions": list(CAUTIONS),
     }
 
@@ -172,7 +172,10 @@ def slip_document(p: SlipPrediction, units: UnitSystem) -> dict[str, Any]:
 
 
 def weather_summary(
-    doc: Mapping[str, Any], reference: str | None, notices: Sequence[Notice] = ()
+    doc: Mapping[str, Any],
+    units: UnitSystem,
+    reference: str | None,
+    notices: Sequence[Notice] = (),
 ) -> str:
     """Weather and slip as a short printable sheet: 80 columns, printable ASCII."""
     lab = doc["units"]
@@ -199,4 +202,4 @@ def weather_summary(
             f"Predicted:      ET {s['predicted_et']:.3f} s   trap {s['predicted_trap']:.2f} {sp}",
         ]
     body += ["", *wrap_text("Method: " + WEATHER_METHOD), *wrap_text("Limits: " + WEATHER_LIMITS)]
-    return summary_sheet("GEARWORK WEATHER CORRECTION", reference, body, notices)
+    return summary_sheet("GEARWORK WEATHER CORRECTION", reference, body, notices, units)

@@ -18,7 +18,7 @@ from service.mapping.comparison import (
     peak_numbers,
     setup_numbers,
 )
-from service.mapping.documents import speed_out
+from service.mapping.documents import notice_text, speed_out
 from service.output.sheets import WIDTH, cell, summary_sheet, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
 
@@ -101,10 +101,13 @@ def comparison_summary(comparison: Comparison, units: UnitSystem, reference: str
             WIDTH,
             subsequent_indent=" " * 13,
         )
-    notices: list[Notice] = []
+    # each sentence once, as the caller reads it
+    said: dict[str, Notice] = {}
     for fig, own in zip(figures, curve_notices(setups), strict=True):
-        notices += [x for x in (*fig.notices, *own) if x not in notices]
-    return summary_sheet("GEARWORK SETUP COMPARISON", reference, body, notices)
+        for notice in (*fig.notices, *own):
+            said.setdefault(notice_text(notice, units), notice)
+    notices = list(said.values())
+    return summary_sheet("GEARWORK SETUP COMPARISON", reference, body, notices, units)
 
 
 def curves_summary(

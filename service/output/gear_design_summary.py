@@ -15,7 +15,10 @@ __all__ = ["spacing_summary", "speedometer_summary"]
 
 
 def spacing_summary(
-    studies: Sequence[GearSetStudy], notices: Sequence[Notice], reference: str | None
+    studies: Sequence[GearSetStudy],
+    notices: Sequence[Notice],
+    units: UnitSystem,
+    reference: str | None,
 ) -> str:
     """The gear sets and their landings as a printable sheet of at most 80 columns."""
     body: list[str] = []
@@ -49,7 +52,7 @@ def spacing_summary(
                 f"Torque peak {an.peak_torque_rpm:.0f} rpm, power peak {an.peak_power_rpm:.0f} "
                 f"rpm; band {an.band_low_rpm:.0f}-{an.band_high_rpm:.0f} rpm."
             )
-    return summary_sheet("GEARWORK GEAR SPACING", reference, body, notices)
+    return summary_sheet("GEARWORK GEAR SPACING", reference, body, notices, units)
 
 
 def speedometer_summary(study: SpeedometerStudy, units: UnitSystem, reference: str | None) -> str:
@@ -104,5 +107,6 @@ def speedometer_summary(study: SpeedometerStudy, units: UnitSystem, reference: s
         reference,
         body,
         study.notices,
+        units,
         caution=SPEEDOMETER_SHORT_CAUTION,
     )

@@ -11,7 +11,9 @@ import textwrap
 from collections.abc import Iterable, Sequence
 
 from core import Notice
+from service.mapping.documents import notice_text
 from service.output.cautions import SHORT_CAUTION
+from service.units import UnitSystem
 
 __all__ = [
     "WIDTH",
@@ -65,13 +67,15 @@ def summary_sheet(
     reference: str | None,
     body: list[str],
     notices: Sequence[Notice],
+    units: UnitSystem,
     caution: str = SHORT_CAUTION,
 ) -> str:
-    """A titled sheet: heading and reference, body, warnings and the caution."""
+    """A titled sheet: heading and reference, body, warnings (in the caller's ``units``) and
+    the caution."""
     lines = [title_line(head, reference), *body]
     if notices:
         lines += ["", "Warnings:"]
         for n in notices:
-            lines += wrap_text(n.message, "- ")
+            lines += wrap_text(notice_text(n, units), "- ")
     lines += ["", *wrap_text("Caution: " + caution)]
     return printable(lines)

@@ -4,6 +4,7 @@ ASCII."""
 from __future__ import annotations
 
 from core import Drivetrain, ShiftPlan, Tire, TorqueCurve
+from service.mapping.documents import notice_text
 from service.output.cautions import SHORT_CAUTION
 from service.output.sheets import printable, title_line, wrap_text
 from service.units import Quantity, UnitSystem, from_si, unit_labels
@@ -47,7 +48,7 @@ def shift_plan_summary(
         lines.append("")
         lines.append("Warnings:")
         for n in plan.notices:
-            lines += wrap_text(n.message, "- ")
+            lines += wrap_text(notice_text(n, units), "- ")
     lines += _CAUTION_LINES
     return printable(lines)
 

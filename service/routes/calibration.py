@@ -38,5 +38,5 @@ async def create_pass_calibration(body: CalibrationRequest, _json: JsonBody) -> 
     the calibrated `vehicle` and `drivetrain` blocks."""
     fit, density = calibrate_request(body)
     doc = calibration_document(body, fit, density)
-    summary = calibration_summary(doc, fit, body.reference)
+    summary = calibration_summary(doc, fit, body.units, body.reference)
     return FastJSONResponse({"reference": body.reference, **doc, "summary": summary})

@@ -38,5 +38,5 @@ async def create_coast_down_fit(body: CoastDownRequest, _json: JsonBody) -> Resp
     conditions and return a ready `vehicle.road_load` block."""
     fit = fit_coast_downs(body)
     doc = coast_down_document(fit, body.units, COAST_DOWN_FIELDS)
-    summary = coast_down_summary(doc, fit, body.reference)
+    summary = coast_down_summary(doc, fit, body.units, body.reference)
     return FastJSONResponse({"reference": body.reference, **doc, "summary": summary})

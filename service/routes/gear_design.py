@@ -42,7 +42,7 @@ async def create_gear_spacing(body: GearSpacingRequest, _json: JsonBody) -> Resp
     engine curve, how far each landing lies from the torque and power peaks."""
     studies, max_factor, notices = gear_set_studies(body)
     doc = spacing_document(studies, max_factor, notices, body.units, SPACING_FIELDS)
-    summary = spacing_summary(studies, notices, body.reference)
+    summary = spacing_summary(studies, notices, body.units, body.reference)
     return FastJSONResponse({"reference": body.reference, **doc, "summary": summary})
 
 

@@ -38,5 +38,5 @@ async def create_shift_window(body: ShiftWindowRequest, _json: JsonBody) -> Resp
     and the span of rpm that costs less than the tolerance."""
     study = find_shift_windows(body)
     doc = shift_window_document(study, body.units, SHIFT_WINDOW_FIELDS)
-    summary = shift_window_summary(doc, study.windows, body.reference)
+    summary = shift_window_summary(doc, study.windows, body.units, body.reference)
     return FastJSONResponse({"reference": body.reference, **doc, "summary": summary})

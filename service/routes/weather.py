@@ -32,5 +32,5 @@ async def create_weather_correction(body: WeatherCorrectionRequest, _json: JsonB
     predict a slip taken in one weather for another by re-running the car in both."""
     study = study_weather(body)
     doc = weather_document(body, study)
-    summary = weather_summary(doc, body.reference, study.notices)
+    summary = weather_summary(doc, body.units, body.reference, study.notices)
     return FastJSONResponse({**doc, "summary": summary})

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import copy
+import re
 from typing import Any
 
 import pytest
@@ -167,6 +168,21 @@ def test_metric_and_us_requests_agree(api: ApiClient, demo: dict[str, Any]) -> N
             u["run"]["top_speed"]["speed"] * 1.609344, m["run"]["top_speed"]["speed"], rtol=1e-3
         )
         assert_allclose(u["cruise"][0]["rpm"], m["cruise"][0]["rpm"], atol=1.0)
+    # the speed a warning quotes is in the caller's unit: 1 mph = 1.609344 km/h exactly
+    # (NIST SP 811); both are rounded to 0.1 for the sentence
+    said = 0
+    for u, m in zip(us_body["setups"], metric_body["setups"], strict=True):
+        for wu, wm in zip(u["warnings"], m["warnings"], strict=True):
+            if wu["code"] not in ("drag_limited_speed", "rev_limit_held"):
+                continue
+            mph = float(re.search(r"([\d.]+) mph", wu["message"]).group(1))  # type: ignore[union-attr]
+            kmh = float(re.search(r"([\d.]+) km/h", wm["message"]).group(1))  # type: ignore[union-attr]
+            assert "m/s" not in wu["message"] + wm["message"]
+            assert_allclose(mph * 1.609344, kmh, atol=0.2)
+            said += 1
+    assert said >= 2
+    sheet = " ".join(us_body["summary"].split())  # the sheet wraps its warnings
+    assert re.search(r"(drag-limited speed of|rev limit in gear \d at) [\d.]+ mph", sheet)
 
 
 @pytest.mark.parametrize(
