@@ -326,13 +326,13 @@ def _check_torque_range(torque: FloatArray) -> None:
     if high.size:
         i = int(high[0])
         raise CurveError(
-            f"`torque_nm[{i}]` must be at most {MAX_TORQUE_NM:g} N*m, got {torque[i]:g}",
+            f"`torque_nm[{i}]` must be at most {MAX_TORQUE_NM:g} N*m, got {torque[i]:g} N*m",
             parameter=f"torque_nm[{i}]",
         )
     if float(torque.max()) < MIN_PEAK_TORQUE_NM:
         raise CurveError(
             f"`torque_nm` must peak at {MIN_PEAK_TORQUE_NM:g} N*m or more, got "
-            f"{float(torque.max()):g}",
+            f"{float(torque.max()):g} N*m",
             parameter="torque_nm",
         )
 

@@ -42,7 +42,7 @@ from core.logs.signal import (
     window_points,
 )
 from core.logs.spin import match_notices
-from core.notices import Figure, Notice
+from core.notices import Notice
 
 __all__ = [
     "DEFAULT_SMOOTHING_WINDOW_S",
@@ -281,11 +281,10 @@ def _gears_of_pass(
     first, stop = span
     if stop - first + 1 < _MIN_PASS_SAMPLES:
         notes.append(
-            Notice.quoting(
+            Notice(
                 "no_pass",
                 f"The log holds no full-throttle pass of {_MIN_PASS_SAMPLES} samples or more "
-                "above {0} (the speed peaks too soon, or never rises).",
-                (Figure(MOVING_SPEED_M_S, "speed"),),
+                "above 2 m/s (the speed peaks too soon, or never rises).",
                 "speed",
             )
         )

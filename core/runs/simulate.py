@@ -16,7 +16,7 @@ from numpy.typing import NDArray
 
 from core.car.vehicle import Coupling
 from core.errors import SimulationError
-from core.notices import Figure, Notice
+from core.notices import Notice
 from core.runs.drive_model import DriveModel
 from core.runs.integrator import MAX_SPEED_M_S, integrate_runs
 from core.runs.run_blocks import GearBlock, RunEnds, RunStart, ShiftBlock
@@ -233,21 +233,20 @@ def _run_notices(
     settled = float(ends.settled_m_s[0])
     if ends.settled_by[0] == "drag":
         notes.append(
-            Notice.quoting(
+            Notice(
                 "drag_limited_speed",
-                "The car approaches its drag-limited speed of {0} in gear "
+                f"The car approaches its drag-limited speed of {settled:.2f} m/s in gear "
                 f"{int(trace.gears[-1][-1])} and never quite reaches it; the run follows "
                 "the approach to within a part per million and carries on at that speed.",
-                (Figure(settled, "speed"),),
             )
         )
     elif ends.settled_by[0] == "rev_limit":
         notes.append(
-            Notice.quoting(
+            Notice(
                 "rev_limit_held",
                 f"The car reaches the rev limit in gear {int(trace.gears[-1][-1])} at "
-                "{0} and is held there (no acceleration) for the rest of the run.",
-                (Figure(settled, "speed"),),
+                f"{settled:.2f} m/s and is held there (no acceleration) for the rest of the "
+                "run.",
             )
         )
     return notes

@@ -70,7 +70,7 @@ def convert_chassis_curve(body: ChassisConversionRequest) -> ChassisConversion:
     def si(values: list[float] | None, quantity: Quantity) -> np.ndarray | None:
         return None if values is None else to_si(np.asarray(values, np.float64), quantity, u)
 
-    with core_fields(chassis_fields(body)):
+    with core_fields(chassis_fields(body), u):
         return chassis_conversion(
             curve.rpm,
             measured_at=MeasuredAt(curve.measured_at),

@@ -78,7 +78,7 @@ def fit_coast_downs(body: CoastDownRequest) -> CoastDownFit:
         )
         for r in body.runs
     ]
-    with core_fields(COAST_DOWN_FIELDS):
+    with core_fields(COAST_DOWN_FIELDS, u):
         return fit_coast_down(
             runs,
             to_si(body.mass, Quantity.MASS, u),

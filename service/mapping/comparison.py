@@ -140,7 +140,7 @@ def compare_setups(body: ComparisonRequest) -> Comparison:
     criterion = ShiftCriterion(body.shift_criterion)
     figures = []
     for named in setups:
-        with renamed_fields(named.renames), core_fields(COMPARISON_FIELDS):
+        with renamed_fields(named.renames), core_fields(COMPARISON_FIELDS, body.units):
             figures.append(
                 setup_figures(named.setup, criterion=criterion, cruise_speeds_m_s=speeds)
             )

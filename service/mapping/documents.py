@@ -11,8 +11,8 @@ import numpy as np
 from numpy.typing import NDArray
 
 from core import Notice, Tire
-from service.mapping.inputs import request_field
-from service.units import Quantity, UnitSystem, from_si, unit_label
+from service.mapping.inputs import in_callers_units, request_field
+from service.units import Quantity, UnitSystem, from_si
 
 __all__ = [
     "notice_text",
@@ -34,15 +34,9 @@ def rounded(values: FloatArray | float, digits: int = 3) -> Any:
 
 
 def notice_text(notice: Notice, units: UnitSystem) -> str:
-    """A notice's sentence with every physical value it quotes in the caller's units."""
-    if notice.template is None:
-        return notice.message
-    said = []
-    for figure in notice.figures:
-        quantity = Quantity(figure.kind)
-        value = from_si(figure.value, quantity, units)
-        said.append(figure.quoted(value, unit_label(quantity, units)))
-    return notice.template.format(*said)
+    """A notice's sentence with the SI speeds, pressures and torques it quotes in the
+    caller's units (as errors quote them)."""
+    return in_callers_units(notice.message, units)
 
 
 def notices_out(

@@ -74,7 +74,7 @@ def sweep_candidates(body: FinalDriveSweepRequest) -> FloatArray:
     r = body.ratio_range
     if r is None:  # the request model requires one of the two
         raise ProblemError(422, "give `ratios` or `ratio_range`", field="ratios")
-    with core_fields(SWEEP_FIELDS):
+    with core_fields(SWEEP_FIELDS, body.units):
         return final_drive_range(r.low, r.high, r.step)
 
 
@@ -118,7 +118,7 @@ def sweep_ratios(body: FinalDriveSweepRequest) -> SweptRatios:
     launch = None if vehicle is None else build_launch(body.launch or LaunchIn(), curve, u)
     limits = sweep_constraints(body.constraints, u)
     rollout = rollout_m(body.rollout, u)
-    with core_fields({**SWEEP_FIELDS, "final_drive_ratio": "ratios"}):
+    with core_fields({**SWEEP_FIELDS, "final_drive_ratio": "ratios"}, u):
         sweep = sweep_final_drives(
             curve,
             drivetrain,

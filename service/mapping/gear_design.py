@@ -117,7 +117,7 @@ def gear_set_studies(
     curve = None if body.engine is None else build_curve(body.engine.curve, body.units)
     sets: list[tuple[str, FloatArray, float | None]] = []
     limit_factor = None
-    with core_fields(SPACING_FIELDS):
+    with core_fields(SPACING_FIELDS, body.units):
         shift, notes = _shift_rpm(body, curve)
         if body.spacing is not None:
             sp = body.spacing
@@ -190,7 +190,7 @@ def speedometer_study(body: SpeedometerRequest) -> SpeedometerStudy:
         )
     speeds = DEFAULT_SPEEDS[u] if body.indicated_speeds is None else body.indicated_speeds
     lengths = DEFAULT_DISTANCES if body.indicated_distances is None else body.indicated_distances
-    with core_fields({"rolling_radius_m": "new.tire", "driven_teeth": "driven_teeth"}):
+    with core_fields({"rolling_radius_m": "new.tire", "driven_teeth": "driven_teeth"}, u):
         correction = speedometer_correction(
             speedometer_setup(old_tire, old_axle),
             speedometer_setup(new_tire, new_axle),

@@ -100,9 +100,10 @@ def in_callers_units(message: str, units: UnitSystem) -> str:
 
 
 @contextmanager
-def core_fields(fields: Mapping[str, str], units: UnitSystem | None = None) -> Iterator[None]:
-    """Turn a core error inside the block into a 422 problem naming the request field (and,
-    given ``units``, quoting its SI speeds, pressures and torques in the caller's units)."""
+def core_fields(fields: Mapping[str, str], units: UnitSystem | None) -> Iterator[None]:
+    """Turn a core error inside the block into a 422 problem naming the request field and
+    quoting its SI speeds, pressures and torques in the caller's ``units`` (None only for a
+    block whose inputs carry no units, such as ratios)."""
     try:
         yield
     except GearworkError as exc:
@@ -163,7 +164,7 @@ def build_curve(curve: CurveIn, units: UnitSystem) -> TorqueCurve:
     interpolation = Interpolation(curve.interpolation)
     source = CurveSource(curve.source)
     rpm = np.asarray(curve.rpm, dtype=np.float64)
-    with core_fields(ENGINE_FIELDS):
+    with core_fields(ENGINE_FIELDS, units):
         if curve.torque is not None:
             torque = to_si(np.asarray(curve.torque, dtype=np.float64), Quantity.TORQUE, units)
             return torque_curve_from_torque(
@@ -176,7 +177,7 @@ def build_curve(curve: CurveIn, units: UnitSystem) -> TorqueCurve:
 
 def build_tire(tire: TireIn, units: UnitSystem) -> Tire:
     """The core tire of a request's tire."""
-    with core_fields(DRIVETRAIN_FIELDS):
+    with core_fields(DRIVETRAIN_FIELDS, units):
         if tire.diameter is not None:
             d = to_si(tire.diameter, Quantity.LENGTH, units)
             return tire_from_diameter(d, rolling_factor=tire.rolling_factor)
@@ -189,7 +190,7 @@ def build_tire(tire: TireIn, units: UnitSystem) -> Tire:
 
 def build_drivetrain(drivetrain: DrivetrainIn) -> Drivetrain:
     """The core drivetrain of a request's drivetrain (ratios carry no units)."""
-    with core_fields(DRIVETRAIN_FIELDS):
+    with core_fields(DRIVETRAIN_FIELDS, None):  # ratios carry no units
         return make_drivetrain(
             drivetrain.gear_ratios,
             drivetrain.final_drive_ratio,

@@ -74,7 +74,7 @@ def build_pass_log(body: LogIn, units: UnitSystem) -> tuple[PassLog, LogText | N
             raise ProblemError(422, exc.message, field=where) from exc
         return text.log, text
     default = SpeedUnit.KM_H if units is UnitSystem.METRIC else SpeedUnit.MPH
-    with core_fields(LOG_FIELDS):
+    with core_fields(LOG_FIELDS, units):
         log = pass_log(
             body.time or [],
             body.speed or [],
@@ -112,7 +112,7 @@ def model_shifts(body: LogAnalysisRequest, drivetrain: Drivetrain, tire: Tire) -
     units = body.units
     curve = build_curve(body.engine.curve, units)
     limit = body.engine.rev_limit_rpm or body.options.rev_limit_rpm
-    with core_fields(CAR_FIELDS):
+    with core_fields(CAR_FIELDS, units):
         plan = shift_plan(curve, drivetrain, tire, rev_limit_rpm=limit)
         if body.vehicle is None:
             rpm = [s.shift_rpm for s in plan.shifts]
@@ -142,7 +142,7 @@ def check_logged_pass(body: LogAnalysisRequest) -> CheckedPass:
     tire = build_tire(body.drivetrain.tire, units)
     log, text = build_pass_log(body.log, units)
     model = model_shifts(body, drivetrain, tire)
-    with core_fields(LOG_FIELDS):
+    with core_fields(LOG_FIELDS, units):
         analysis = analyse_pass(
             log,
             drivetrain,

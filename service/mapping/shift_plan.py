@@ -250,7 +250,7 @@ def compute_shift_plan(body: ShiftPlanRequest) -> PlanOutcome:
     if body.vehicle is not None:
         launch = build_launch(body.launch or LaunchIn(), curve, units)
     converter = ConverterDrive.of_launch(launch)
-    with core_fields(PLAN_FIELDS):
+    with core_fields(PLAN_FIELDS, units):
         plan = shift_plan(
             curve,
             drivetrain,
@@ -263,7 +263,7 @@ def compute_shift_plan(body: ShiftPlanRequest) -> PlanOutcome:
     model = None
     if body.vehicle is not None and launch is not None:
         vehicle = build_vehicle(body.vehicle, units)
-        with core_fields(PLAN_FIELDS):
+        with core_fields(PLAN_FIELDS, units):
             model = drive_model(
                 curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
             )

@@ -86,7 +86,7 @@ def find_shift_windows(body: ShiftWindowRequest) -> WindowStudy:
             if run.finish_distance is None
             else to_si(run.finish_distance, Quantity.DISTANCE, u)
         )
-    with core_fields(SHIFT_WINDOW_FIELDS):
+    with core_fields(SHIFT_WINDOW_FIELDS, u):
         model = drive_model(
             curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
         )

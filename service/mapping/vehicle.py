@@ -156,7 +156,7 @@ def build_vehicle(body: VehicleIn, units: UnitSystem) -> Vehicle:
 
 def build_launch(body: LaunchIn, curve: TorqueCurve, units: UnitSystem) -> Launch:
     """The core launch (clutch or converter) of a request's launch."""
-    with core_fields(LAUNCH_FIELDS):
+    with core_fields(LAUNCH_FIELDS, units):
         converter = None
         if body.converter is not None:
             c = body.converter

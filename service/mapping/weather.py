@@ -90,7 +90,7 @@ def _carried_slip(
         if body.finish_distance is None
         else to_si(body.finish_distance, Quantity.DISTANCE, u)
     )
-    with core_fields({**WEATHER_FIELDS, "temperature_k": "predict_for.temperature"}):
+    with core_fields({**WEATHER_FIELDS, "temperature_k": "predict_for.temperature"}, u):
         model = drive_model(
             curve, drivetrain, tire, vehicle, launch, rev_limit_rpm=body.engine.rev_limit_rpm
         )
@@ -112,7 +112,7 @@ def study_weather(body: WeatherCorrectionRequest) -> WeatherStudy:
     """What POST /v1/weather-correction computes (core errors become 422 problems)."""
     standard = CorrectionStandard(body.standard)
     taken = _weather(body.taken_in, body.units)
-    with core_fields({**WEATHER_FIELDS, "temperature_k": "taken_in.temperature"}):
+    with core_fields({**WEATHER_FIELDS, "temperature_k": "taken_in.temperature"}, body.units):
         air = weather_air(taken, standard)
     notices = list(air.notices)
     prediction = _carried_slip(body, taken, standard)

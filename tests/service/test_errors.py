@@ -165,3 +165,24 @@ def test_wrong_method_is_405_problem(api: ApiClient) -> None:
     r = api.get(URL)
     assert r.status_code == 405
     assert r.headers["content-type"] == "application/problem+json"
+
+
+@pytest.mark.parametrize(
+    ("units", "sent", "limit"),
+    [
+        # 0.1 N*m is 0.07376 lbf*ft (1 lbf*ft = 1.3558179483314 N*m, NIST SP 811)
+        pytest.param("us", "0.001 lbf*ft", "0.07376 lbf*ft", id="us"),
+        pytest.param("metric", "0.001 N*m", "0.1 N*m", id="metric"),
+    ],
+)
+def test_a_curve_too_weak_to_plan_is_refused_in_the_callers_torque_unit(
+    api: ApiClient, units: str, sent: str, limit: str
+) -> None:
+    body = load_demo("demo_coupe_us")
+    body["units"] = units
+    body["engine"]["curve"]["torque"] = [0.001] * len(body["engine"]["curve"]["rpm"])
+    r = api.post("/v1/shift-plan", json=body)
+    assert r.status_code == 422
+    problem = r.json()
+    assert problem["field"] == "engine.curve.torque"
+    assert f"must peak at {limit} or more, got {sent}" in problem["detail"]
