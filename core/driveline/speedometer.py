@@ -206,7 +206,8 @@ def speedometer_setup(tire: Tire | float, final_drive_ratio: float = 1.0) -> Spe
     low, high = 0.5 * MIN_DIAMETER_M, 0.5 * MAX_DIAMETER_M
     if not math.isfinite(radius) or not low <= radius <= high:
         raise TireSizeError(
-            f"`rolling_radius_m` must be between {low:g} and {high:g} m, got {radius:.4g}",
+            f"`rolling_radius_m` must be between {low * 1e3:g} mm and {high * 1e3:g} mm, got "
+            f"{radius * 1e3:.4g} mm",
             parameter="rolling_radius_m",
         )
     ratio = float(final_drive_ratio)

@@ -94,8 +94,8 @@ def _checked_factor(rolling_factor: float) -> float:
 def _checked_diameter(diameter_m: float, parameter: str) -> float:
     if not math.isfinite(diameter_m) or not MIN_DIAMETER_M <= diameter_m <= MAX_DIAMETER_M:
         raise TireSizeError(
-            f"`{parameter}` must give a diameter between {MIN_DIAMETER_M} and "
-            f"{MAX_DIAMETER_M} m, got {diameter_m:.4g} m",
+            f"`{parameter}` must give a diameter between {MIN_DIAMETER_M * 1e3:g} mm and "
+            f"{MAX_DIAMETER_M * 1e3:g} mm, got {diameter_m * 1e3:.4g} mm",
             parameter=parameter,
         )
     return diameter_m

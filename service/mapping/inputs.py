@@ -80,20 +80,29 @@ def request_field(parameter: str | None, fields: Mapping[str, str]) -> str | Non
     return fields[m["name"]] + m["index"]
 
 
-_SI_FIGURE = re.compile(r"(?<![\w.])(-?\d+(?:\.\d+)?(?:e[+-]?\d+)?) (m/s|Pa|N\*m)(?![\w*/^])")
-_SI_QUANTITY = {"m/s": Quantity.SPEED, "Pa": Quantity.PRESSURE, "N*m": Quantity.TORQUE}
+_SI_FIGURE = re.compile(r"(?<![\w.])(-?\d+(?:\.\d+)?(?:e[+-]?\d+)?) (m/s|Pa|N\*m|mm)(?![\w*/^])")
+# the unit a core message quotes: the quantity, and SI units per that unit
+_SI_QUANTITY = {
+    "m/s": (Quantity.SPEED, 1.0),
+    "Pa": (Quantity.PRESSURE, 1.0),
+    "N*m": (Quantity.TORQUE, 1.0),
+    "mm": (Quantity.LENGTH, 0.001),
+}
 
 
 def in_callers_units(message: str, units: UnitSystem) -> str:
-    """A core message with its SI speeds, pressures and torques in the caller's units.
+    """A core message with its SI speeds, pressures and torques and its lengths in mm in
+    the caller's units.
 
     >>> in_callers_units("speed (26.8224 m/s) too high", UnitSystem.US)
     'speed (60 mph) too high'
+    >>> in_callers_units("diameter 50.8 mm", UnitSystem.US)
+    'diameter 2 in'
     """
 
     def convert(m: re.Match[str]) -> str:
-        quantity = _SI_QUANTITY[m[2]]
-        value = from_si(float(m[1]), quantity, units)
+        quantity, si_per_unit = _SI_QUANTITY[m[2]]
+        value = from_si(float(m[1]) * si_per_unit, quantity, units)
         return f"{value:.4g} {unit_label(quantity, units)}"
 
     return _SI_FIGURE.sub(convert, message)

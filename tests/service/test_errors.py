@@ -186,3 +186,24 @@ def test_a_curve_too_weak_to_plan_is_refused_in_the_callers_torque_unit(
     problem = r.json()
     assert problem["field"] == "engine.curve.torque"
     assert f"must peak at {limit} or more, got {sent}" in problem["detail"]
+
+
+@pytest.mark.parametrize(
+    ("units", "diameter", "said"),
+    [
+        # 200 mm and 3000 mm are 7.874 in and 118.1 in (1 in = 25.4 mm exactly, NIST SP 811)
+        pytest.param("us", 2, "between 7.874 in and 118.1 in, got 2 in", id="us"),
+        pytest.param("metric", 50, "between 200 mm and 3000 mm, got 50 mm", id="metric"),
+    ],
+)
+def test_a_tire_too_small_is_refused_in_the_callers_length_unit(
+    api: ApiClient, units: str, diameter: float, said: str
+) -> None:
+    body = load_demo("demo_coupe_us")
+    body["units"] = units
+    body["drivetrain"]["tire"] = {"diameter": diameter}
+    r = api.post("/v1/shift-plan", json=body)
+    assert r.status_code == 422
+    problem = r.json()
+    assert problem["field"] == "drivetrain.tire.diameter"
+    assert said in problem["detail"]

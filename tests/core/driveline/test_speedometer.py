@@ -182,7 +182,7 @@ def test_exact_driven_teeth_leave_no_error() -> None:
     [
         pytest.param(0.0, 3.7, TireSizeError, "rolling_radius_m", id="zero-radius"),
         pytest.param(float("nan"), 3.7, TireSizeError, "rolling_radius_m", id="nan-radius"),
-        pytest.param(2.0, 3.7, TireSizeError, "between 0.1 and 1.5 m", id="huge-radius"),
+        pytest.param(2.0, 3.7, TireSizeError, "between 100 mm and 1500 mm", id="huge-radius"),
         pytest.param(0.33, 0.0, DrivetrainError, "finite and > 0", id="zero-axle"),
         pytest.param(0.33, float("inf"), DrivetrainError, "finite and > 0", id="inf-axle"),
         pytest.param(0.33, -3.7, DrivetrainError, "finite and > 0", id="negative-axle"),

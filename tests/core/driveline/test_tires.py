@@ -99,5 +99,5 @@ def test_unparseable_size_is_rejected(code: str) -> None:
 
 
 def test_impossible_diameter_is_rejected() -> None:
-    with pytest.raises(TireSizeError, match=r"between 0\.2 and 3"):
+    with pytest.raises(TireSizeError, match=r"between 200 mm and 3000 mm, got 50 mm"):
         tire_from_diameter(0.05)
