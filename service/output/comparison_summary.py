@@ -3,6 +3,7 @@ variant's change against the base, the engine curves a setup brings, and the shi
 
 from __future__ import annotations
 
+import dataclasses
 import textwrap
 from collections.abc import Callable, Sequence
 from typing import Any
@@ -101,12 +102,15 @@ def comparison_summary(comparison: Comparison, units: UnitSystem, reference: str
             WIDTH,
             subsequent_indent=" " * 13,
         )
-    # each sentence once, as the caller reads it
-    said: dict[str, Notice] = {}
-    for fig, own in zip(figures, curve_notices(setups), strict=True):
+    # each sentence once, as the caller reads it, after the setups it concerns
+    said: dict[str, tuple[Notice, list[str]]] = {}
+    for named, fig, own in zip(setups, figures, curve_notices(setups), strict=True):
         for notice in (*fig.notices, *own):
-            said.setdefault(notice_text(notice, units), notice)
-    notices = list(said.values())
+            said.setdefault(notice_text(notice, units), (notice, []))[1].append(named.name)
+    notices = [
+        dataclasses.replace(n, message=f"{', '.join(dict.fromkeys(names))}: {n.message}")
+        for n, names in said.values()
+    ]
     return summary_sheet("GEARWORK SETUP COMPARISON", reference, body, notices, units)
 
 

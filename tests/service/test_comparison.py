@@ -183,6 +183,13 @@ def test_metric_and_us_requests_agree(api: ApiClient, demo: dict[str, Any]) -> N
     assert said >= 2
     sheet = " ".join(us_body["summary"].split())  # the sheet wraps its warnings
     assert re.search(r"(drag-limited speed of|rev limit in gear \d at) [\d.]+ mph", sheet)
+    # each warning on the sheet names the setups it concerns
+    names = [s["name"] for s in us_body["setups"]]
+    for line in us_body["summary"].splitlines():
+        if line.startswith("- The car"):
+            raise AssertionError(f"warning without its setup: {line}")
+        if line.startswith("- ") and ": The car" in line:
+            assert line[2 : line.index(": The car")] in names
 
 
 @pytest.mark.parametrize(
