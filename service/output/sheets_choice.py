@@ -121,9 +121,15 @@ def comparison_report(doc: dict[str, Any], units: UnitSystem) -> Report:
             f"{fastest['name']}, top gear at the limit",
         )
     )
+    # each setup's warnings, every sentence once after the setups it concerns
+    said: dict[str, list[str]] = {}
+    for setup in setups:
+        for w in setup.get("warnings", ()):
+            said.setdefault(w["message"], []).append(setup["name"])
+    notes = tuple(f"{', '.join(dict.fromkeys(names))}: {text}" for text, names in said.items())
     sections = [
         Section("Setups compared", changes, (setup_table, shifts)),
-        *_warnings(doc),
+        *([Section("Warnings", notes=notes)] if notes else []),
     ]
     return _report(
         "Setup comparison", doc, units, sections=tuple(sections), key_figures=tuple(figures)

@@ -163,6 +163,19 @@ def test_format_query_overrides_accept_and_keys_the_cache(
     assert r.headers["content-type"].split(";")[0] == media
 
 
+def test_comparison_sheet_prints_each_setups_warnings_after_its_name(api: ApiClient) -> None:
+    body = load_demo("demo_comparison_us")
+    answer = api.post("/v1/comparison", json=body).json()
+    html = api.post("/v1/reports/comparison", json=body, headers={"accept": "text/html"}).text
+    said = [(s["name"], w["message"]) for s in answer["setups"] for w in s["warnings"]]
+    assert said  # the demo's tall gearing runs into its drag and rev limits
+    notes = html[html.index("Warnings</h2>") :]
+    for name, message in said:  # "name[, other]: message", every sentence once
+        assert notes.count(message) == 1
+        line = notes[: notes.index(message)].rsplit("<li>", 1)[1]
+        assert name in line.removesuffix(": ").split(", ")
+
+
 def test_unknown_format_is_422_naming_format(api: ApiClient) -> None:
     r = api.post("/v1/reports/shift-plan?format=docx", json=load_demo("demo_coupe_us"))
     assert r.status_code == 422, r.text
