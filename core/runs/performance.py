@@ -15,7 +15,7 @@ from core.car.gradeability import gradeability
 from core.converter.drive import ConverterDrive
 from core.runs.drive_model import DriveModel
 from core.shifts.best import ShiftChoice, ShiftReason, best_shifts
-from core.shifts.plan import ShiftPoint, shift_plan
+from core.shifts.plan import ShiftPoint, shift_plan, shift_point
 from core.shifts.search import OptimalShifts, search_shift_rpm
 
 __all__ = [
@@ -284,22 +284,7 @@ def acceleration_shift_points(model: DriveModel) -> tuple[ShiftPoint, ...]:
         v = model.speed_at_rpm(i, turbine)
         before, _ = model.drive(i, np.array([v]))
         after, engine_after = model.drive(i + 1, np.array([v]))
-        rpm_after = float(engine_after[0])
-        out.append(
-            ShiftPoint(
-                from_gear=i + 1,
-                to_gear=i + 2,
-                shift_rpm=n_s,
-                shift_speed_m_s=v,
-                rpm_after=rpm_after,
-                rpm_drop=n_s - rpm_after,
-                reason=choice.reason,
-                force_before_n=float(before[0]),
-                force_after_n=float(after[0]),
-                crossings=choice.crossings,
-                coincident_rpm=choice.coincident_rpm,
-                intersections=choice.intersections,
-                overtake_rpm=choice.overtake_rpm,
-            )
-        )
+        rpm = (n_s, float(engine_after[0]))
+        forces = (float(before[0]), float(after[0]))
+        out.append(shift_point(i, choice, rpm, v, forces, choice.overtake_rpm))
     return tuple(out)

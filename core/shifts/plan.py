@@ -20,7 +20,7 @@ from core.notices import Notice
 from core.shifts.best import ShiftChoice, ShiftReason, best_shifts
 from core.shifts.overtake import force_crossings
 
-__all__ = ["ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan"]
+__all__ = ["ShiftPlan", "ShiftPoint", "resolve_rev_limit", "shift_plan", "shift_point"]
 
 FloatArray = NDArray[np.float64]
 
@@ -271,7 +271,7 @@ def shift_plan(
     )
 
 
-def _shift_point(
+def shift_point(
     i: int,
     choice: ShiftChoice,
     rpm: tuple[float, float],
@@ -279,8 +279,27 @@ def _shift_point(
     forces: tuple[float, float],
     overtake_rpm: tuple[float, ...],
 ) -> ShiftPoint:
-    """Gear change ``i + 1`` to ``i + 2``: engine speed at the shift and after it [rpm], road
-    speed [m/s], wheel force before and after [N], and the overtakes in engine speed [rpm]."""
+    """The record of one gear change, from the search's choice and what it means.
+
+    Parameters
+    ----------
+    i : int
+        Gear index of the change, 0 for 1-2.
+    choice : ShiftChoice
+        The chosen shift (reason, crossings, coincident band, intersections).
+    rpm : tuple of float
+        Engine speed at the shift and after it [rpm].
+    speed_m_s : float
+        Road speed at the shift [m/s].
+    forces : tuple of float
+        Wheel force just before and just after the shift [N].
+    overtake_rpm : tuple of float
+        Engine speed in the current gear at each overtake [rpm].
+
+    Returns
+    -------
+    ShiftPoint
+    """
     before, after = rpm
     return ShiftPoint(
         from_gear=i + 1,
@@ -339,7 +358,7 @@ def _clutch_shifts(
         notes.extend(_choice_notices(i + 1, choice, after, curve.rpm_min))
         forces = (kc[i] * torque(n), kn[i] * torque(after))
         speed = n * RPM_TO_RAD_S * r / g1
-        shifts.append(_shift_point(i, choice, (n, after), speed, forces, choice.overtake_rpm))
+        shifts.append(shift_point(i, choice, (n, after), speed, forces, choice.overtake_rpm))
     return tuple(shifts)
 
 
@@ -391,5 +410,5 @@ def _converter_shifts(
         forces = (kc[i] * before, kn[i] * after_torque)
         speed = float(road_speed_m_s(turbine, g1, r))
         overtake = tuple(drive(i, x)[1] for x in choice.overtake_rpm)
-        shifts.append(_shift_point(i, choice, (n_s, after), speed, forces, overtake))
+        shifts.append(shift_point(i, choice, (n_s, after), speed, forces, overtake))
     return tuple(shifts)
